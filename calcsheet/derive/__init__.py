@@ -1,0 +1,1 @@
+"""The mathematics: classification, integrating-factor solution, numbers and verification."""

@@ -1,0 +1,70 @@
+"""Classification of the stated equation, and the standard form y' + p(x) y = r(x).
+
+Writes F(x, y, y') = lhs - rhs as a y' + b y + c and refuses anything that does not fit that
+shape (a term non-linear in y or y', or a derivative that cancels out).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import sympy as sp
+
+from calcsheet.derive.budget import SIMPLIFY_SECONDS, within
+from calcsheet.errors import ModelRefused
+from calcsheet.mathtext import plain
+from calcsheet.model import Model
+
+
+@dataclass(frozen=True)
+class Classification:
+    order: int
+    linear: bool
+    homogeneous: bool
+    constant_coefficients: bool
+    a: sp.Expr  # coefficient of y'
+    b: sp.Expr  # coefficient of y
+    c: sp.Expr  # everything else
+    p: sp.Expr  # b / a
+    r: sp.Expr  # -c / a
+
+
+def classify(model: Model) -> Classification:
+    y, dy, x = model.unknown.symbol, model.derivative, model.variable.symbol
+    residual = sp.expand(model.residual)
+    _refuse_nonlinear_terms(residual, y, dy, model)
+    a = sp.expand(sp.diff(residual, dy))
+    b = sp.expand(sp.diff(residual, y))
+    c = sp.expand(residual - a * dy - b * y)
+    if _is_zero(a):
+        raise ModelRefused(f"the derivative d{model.unknown.name}/d{model.variable.name} cancels out: "
+                           "the equation is algebraic, not differential", "model.equation")
+    p = tidy(b / a)
+    r = sp.Add(*(tidy(term) for term in sp.Add.make_args(sp.expand(-c / a, deep=False))))
+    return Classification(order=1, linear=True, homogeneous=_is_zero(r),
+                          constant_coefficients=x not in p.free_symbols, a=a, b=b, c=c, p=p, r=r)
+
+
+def tidy(expr: sp.Expr) -> sp.Expr:
+    """A short form of a coefficient: simplify within budget, otherwise cancel."""
+    quick = sp.cancel(sp.together(expr))
+    simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(quick), quick)
+    return simplified if done and sp.count_ops(simplified) <= sp.count_ops(quick) else quick
+
+
+def _refuse_nonlinear_terms(residual: sp.Expr, y: sp.Symbol, dy: sp.Symbol, model: Model) -> None:
+    for term in sp.Add.make_args(residual):
+        for wrt in (y, dy):
+            slope = sp.diff(term, wrt)
+            if slope.has(y) or slope.has(dy):
+                raise ModelRefused(
+                    f"term '{plain(term)}' is not linear in {model.unknown.name} and "
+                    f"d{model.unknown.name}/d{model.variable.name}; the integrating-factor method "
+                    "needs a linear equation", "model.equation")
+
+
+def _is_zero(expr: sp.Expr) -> bool:
+    if expr == 0:
+        return True
+    simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(expr), expr)
+    return done and simplified == 0

@@ -1,0 +1,119 @@
+"""The integrating-factor solution of y' + p y = r, kept symbolic in the parameters.
+
+mu = exp(∫p dx); d(mu y)/dx = mu r; y = (∫mu r dx + K)/mu. The forcing is integrated term by
+term: a term whose integral has no closed form (or whose integration runs out of its time
+budget) stays a definite integral from the initial point and is evaluated by quadrature.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import sympy as sp
+
+from calcsheet.derive.budget import INTEGRATE_SECONDS, within
+from calcsheet.derive.classify import Classification
+from calcsheet.derive.readable import choose_branches, compact, exp_of_logs_to_powers
+from calcsheet.errors import ModelRefused
+from calcsheet.model import Model
+
+
+@dataclass(frozen=True)
+class Solution:
+    x0: sp.Expr  # the initial abscissa: 0 or a symbol such as t_0
+    y0: sp.Symbol  # the initial value, e.g. v_0
+    dummy: sp.Symbol  # integration variable of the definite-integral form
+    P: sp.Expr  # ∫ p dx (no constant)
+    mu: sp.Expr
+    mu_r: sp.Expr
+    antiderivative: sp.Expr  # ∫ mu r dx; open terms stay as Integral
+    open_terms: tuple[sp.Expr, ...]  # terms of r whose ∫ mu r_i dx has no closed form
+    constant: sp.Symbol  # K
+    general: sp.Expr
+    constant_value: sp.Expr
+    particular: sp.Expr
+    natural: sp.Expr
+    forced: sp.Expr
+    forced_closed: sp.Expr  # the part of the forced response that has a closed form
+    branches: tuple[str, ...]  # sympy case splits decided by the stated values
+    fallback_reason: str = ""
+
+    @property
+    def closed_form(self) -> bool:
+        return not self.open_terms
+
+    def initial_values(self, model: Model) -> dict[sp.Symbol, float]:
+        values = {self.y0: model.initial_value.si}
+        if isinstance(self.x0, sp.Symbol):
+            values[self.x0] = model.initial_at.si
+        return values
+
+
+def solve(model: Model, cls: Classification) -> Solution:
+    x = model.variable.symbol
+    values = model.numeric_values()
+    x0, y0 = _initial_symbols(model)
+    P, closed, _ = _integrate(cls.p, x, values)
+    if not closed:
+        raise ModelRefused("the integral of p(x) has no closed form, so the integrating factor cannot be "
+                           "written down; this tool does not handle that case yet", "model.equation")
+    mu = exp_of_logs_to_powers(sp.exp(P))
+    K = sp.Symbol("K")
+    s = sp.Dummy(model.variable.name)  # a Dummy can never clash with a parameter name
+    closed_parts, open_terms, reasons, notes = [], [], [], []
+    for term in sp.Add.make_args(cls.r) if not cls.homogeneous else ():
+        integral, done, reason = _integrate(sp.powsimp(mu * term), x, values)
+        if done:
+            closed_parts.append(integral)
+        else:
+            open_terms.append(term)
+            reasons.append(reason)
+    F, branch_notes = choose_branches(compact(sp.Add(*closed_parts)), values)
+    notes.extend(branch_notes)
+    k_value = compact(y0 * mu.subs(x, x0) - F.subs(x, x0))
+    natural = compact(k_value / mu)
+    forced_closed = compact(F / mu)
+    forced = forced_closed + sp.Add(*(
+        sp.Integral(compact(mu.subs(x, s) * term.subs(x, s) / mu), (s, x0, x)) for term in open_terms))
+    antiderivative = F + sp.Add(*(sp.Integral(sp.powsimp(mu * term), x) for term in open_terms))
+    return Solution(
+        x0=x0, y0=y0, dummy=s, P=P, mu=mu, mu_r=sp.powsimp(mu * cls.r), antiderivative=antiderivative,
+        open_terms=tuple(open_terms), constant=K, general=(antiderivative + K) / mu,
+        constant_value=k_value, particular=natural + forced, natural=natural, forced=forced,
+        forced_closed=forced_closed, branches=tuple(notes), fallback_reason="; ".join(sorted(set(reasons))),
+    )
+
+
+def _initial_symbols(model: Model) -> tuple[sp.Expr, sp.Symbol]:
+    taken = {p.name for p in model.parameters}
+    y0 = sp.Symbol(_free_name(f"{model.unknown.name}_0", taken), real=True)
+    if model.initial_at.si == 0:
+        return sp.Integer(0), y0
+    return sp.Symbol(_free_name(f"{model.variable.name}_0", taken), real=True), y0
+
+
+def _free_name(name: str, taken: set[str]) -> str:
+    while name in taken:
+        name += "i"
+    return name
+
+
+def _integrate(expr: sp.Expr, x: sp.Symbol, values) -> tuple[sp.Expr, bool, str]:
+    """∫ expr dx under the time budget: (result, closed, why not closed).
+
+    The quick rule-based integrator goes first; the full algorithm only when it fails.
+    """
+    def attempt() -> sp.Expr:
+        result = sp.integrate(expr, x, manual=True)
+        if result.has(sp.Integral):
+            result = sp.integrate(expr, x)
+        return result
+
+    result, done = within(INTEGRATE_SECONDS, attempt, None)
+    if not done:
+        return sp.Integral(expr, x), False, (
+            f"symbolic integration did not finish within its budget of {INTEGRATE_SECONDS:g} s")
+    result, _ = choose_branches(result, values)
+    if result.has(sp.Integral) or result.has(sp.Piecewise):
+        return sp.Integral(expr, x), False, "the integral has no closed form in elementary or standard special functions"
+    return result, True, ""

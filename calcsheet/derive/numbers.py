@@ -1,0 +1,196 @@
+"""Design quantities: time constant, final value, values at points, levels reached, criteria."""
+
+from __future__ import annotations
+
+import math
+import operator
+from dataclasses import dataclass
+
+import numpy as np
+import sympy as sp
+from scipy import optimize
+
+from calcsheet.derive.budget import LIMIT_SECONDS, within
+from calcsheet.derive.classify import Classification
+from calcsheet.derive.evaluate import ResponseEvaluator
+from calcsheet.derive.integrating_factor import Solution
+from calcsheet.derive.readable import compact
+from calcsheet.model import Criterion, Model, Point
+
+SEARCH_SCALES = 60  # how many natural scales past the initial point a level is searched for
+OPERATORS = {"<=": operator.le, "<": operator.lt, ">=": operator.ge, ">": operator.gt}
+
+
+@dataclass(frozen=True)
+class ValueAt:
+    at: Point
+    y: float  # SI
+
+
+@dataclass(frozen=True)
+class Reach:
+    level: Point
+    x: float | None  # SI; None when not reached
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class Verdict:
+    criterion: Criterion
+    actual: float | None  # SI value of the checked quantity; None when it does not exist
+    passed: bool
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class Numbers:
+    time_constant: float | None  # SI
+    time_constant_expr: sp.Expr | None
+    time_constant_note: str
+    final_value: float | None  # SI
+    final_value_note: str
+    scale: float  # natural scale of the variable (SI): tau, or 1/|p(x0)|
+    span: tuple[float, float]  # a sensible range to show the response over (SI)
+    domain_end: float | None  # where the solution stops existing, if inside the searched range
+    values: tuple[ValueAt, ...]
+    reach: tuple[Reach, ...]
+    verdicts: tuple[Verdict, ...]
+
+    @property
+    def all_passed(self) -> bool:
+        return all(v.passed for v in self.verdicts)
+
+
+def compute_numbers(model: Model, cls: Classification, solution: Solution, y: ResponseEvaluator) -> Numbers:
+    x = model.variable.symbol
+    values = model.numeric_values()
+    p_value = cls.p.subs(values)
+    x0 = model.initial_at.si
+    tau, tau_expr, tau_note = _time_constant(cls, p_value, model)
+    scale = tau if tau else _natural_scale(p_value, x, x0, model)
+    farthest = max([x0] + [pt.si for pt in _abscissae(model)])
+    span_end = x0 + max(5 * scale, (farthest - x0) * 1.05)
+    grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), 2001 if solution.closed_form else 401)
+    samples, domain_end = _sample(y, grid)
+    final, final_note = _final_value(model, cls, solution, values, p_value)
+    if domain_end is not None:
+        span_end = min(span_end, domain_end)
+    points = tuple(ValueAt(pt, y(pt.si)) for pt in model.evaluate_at)
+    reaches = tuple(_reach(level, y, grid[: len(samples)], samples, final, model) for level in model.reach)
+    verdicts = tuple(_verdict(c, y, grid[: len(samples)], samples, tau, final, model) for c in model.criteria)
+    return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
+                   final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
+                   domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts)
+
+
+def _time_constant(cls: Classification, p_value: sp.Expr, model: Model):
+    word = "time constant" if _is_time(model) else "length constant"
+    if not cls.constant_coefficients:
+        return None, None, f"p varies with {model.variable.name}, so there is no single {word}"
+    p_num = float(p_value)
+    if p_num <= 0:
+        return None, None, f"p = {p_num:g} is not positive: the natural response does not decay, so there is no {word}"
+    return 1.0 / p_num, compact(1 / cls.p), ""
+
+
+def _is_time(model: Model) -> bool:
+    from calcsheet.source.units import registry
+    return registry().Quantity(1, model.variable.unit).dimensionality == registry().Quantity(1, "s").dimensionality
+
+
+def _natural_scale(p_value: sp.Expr, x: sp.Symbol, x0: float, model: Model) -> float:
+    try:
+        p0 = abs(float(p_value.subs(x, x0)))
+    except (TypeError, ValueError):
+        p0 = 0.0
+    if p0 > 0 and math.isfinite(p0):
+        return 1.0 / p0
+    farthest = max([pt.si for pt in _abscissae(model)], default=x0)
+    return farthest - x0 if farthest > x0 else 1.0
+
+
+def _abscissae(model: Model) -> list[Point]:
+    points = list(model.evaluate_at)
+    for c in model.criteria:
+        if c.subject == "value":
+            points.append(c.argument)
+        elif c.subject in ("reach", "time_constant"):
+            points.append(c.limit)
+    return points
+
+
+def _sample(y: ResponseEvaluator, grid: np.ndarray) -> tuple[np.ndarray, float | None]:
+    """y on the grid, stopped at the first point where the solution is not finite."""
+    values = []
+    for xi in grid:
+        value = y(float(xi))
+        if not math.isfinite(value):
+            return np.array(values), float(xi) if values else None
+        values.append(value)
+    return np.array(values), None
+
+
+def _final_value(model: Model, cls: Classification, solution: Solution, values, p_value) -> tuple[float | None, str]:
+    x = model.variable.symbol
+    if cls.constant_coefficients and float(p_value) <= 0:
+        return None, "none: the natural response does not decay (p is not positive)"
+    if solution.closed_form:
+        expr = solution.particular.subs({**values, **solution.initial_values(model)})
+        how = f"limit of the particular solution as {model.variable.name} grows without bound"
+    elif cls.constant_coefficients:
+        expr = (cls.r / cls.p).subs(values)
+        how = f"limit of r/p as {model.variable.name} grows without bound (p constant and positive)"
+    else:
+        return None, "not determined: varying coefficient and no closed form"
+    limit, done = within(LIMIT_SECONDS, lambda: sp.limit(expr, x, sp.oo), None)
+    if not done or limit is None:
+        return None, "not determined: the limit did not finish within its time budget"
+    if limit.is_finite and limit.is_real:
+        return float(limit), how
+    if limit in (sp.oo, -sp.oo):
+        return None, "none: the response grows without bound"
+    return None, "none: the response keeps oscillating or does not settle"
+
+
+def _reach(level: Point, y, grid, samples, final, model: Model) -> Reach:
+    x = _first_crossing(level.si, y, grid, samples)
+    if x is not None:
+        return Reach(level, x)
+    if final is not None:
+        return Reach(level, None, "not reached: the response tends to its final value and never gets there")
+    return Reach(level, None, "not reached within the searched range")
+
+
+def _first_crossing(level: float, y, grid, samples) -> float | None:
+    if len(samples) == 0:
+        return None
+    gap = samples - level
+    if gap[0] == 0:
+        return float(grid[0])
+    signs = np.sign(gap)
+    changes = np.nonzero(signs[1:] != signs[0])[0]
+    if len(changes) == 0:
+        return None
+    i = int(changes[0])
+    if gap[i + 1] == 0:
+        return float(grid[i + 1])
+    span = grid[i + 1] - grid[i]
+    return float(optimize.brentq(lambda s: y(s) - level, grid[i], grid[i + 1], xtol=1e-13 * max(span, 1e-300), rtol=1e-14))
+
+
+def _verdict(criterion: Criterion, y, grid, samples, tau, final, model: Model) -> Verdict:
+    note = ""
+    if criterion.subject == "value":
+        actual = y(criterion.argument.si)
+    elif criterion.subject == "reach":
+        actual = _first_crossing(criterion.argument.si, y, grid, samples)
+        if actual is None:
+            note = "level not reached; taken as never"
+    elif criterion.subject == "time_constant":
+        actual = tau
+    else:
+        actual = final
+    if actual is None and criterion.subject != "reach":
+        return Verdict(criterion, None, False, "the quantity does not exist for this response")
+    compared = math.inf if actual is None else actual
+    return Verdict(criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)), note)

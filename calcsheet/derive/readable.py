@@ -1,0 +1,57 @@
+"""Rewrites that make sympy's results read the way an engineer writes them."""
+
+from __future__ import annotations
+
+from typing import Mapping
+
+import sympy as sp
+
+from calcsheet.derive.budget import SIMPLIFY_SECONDS, within
+
+
+def exp_of_logs_to_powers(expr: sp.Expr) -> sp.Expr:
+    """exp(a*log(u) + b) -> u**a * exp(b): powers rather than exponentials of logarithms."""
+
+    def rewrite(e: sp.Expr) -> sp.Expr:
+        powers, rest = sp.Integer(1), []
+        for term in sp.Add.make_args(sp.expand(e.args[0])):
+            coeff, logs = term.as_independent(sp.log, as_Add=False)
+            if isinstance(logs, sp.log):
+                powers *= logs.args[0] ** coeff
+            else:
+                rest.append(term)
+        return powers * sp.exp(sp.Add(*rest))
+
+    return expr.replace(lambda e: isinstance(e, sp.exp), rewrite)
+
+
+def compact(expr: sp.Expr, seconds: float = SIMPLIFY_SECONDS) -> sp.Expr:
+    """The shortest of a few standard forms, found within a time budget."""
+    candidates = [expr]
+    for transform in (lambda e: sp.powsimp(sp.expand(e)), sp.simplify):
+        result, done = within(seconds, lambda: transform(expr), None)
+        if done and result is not None:
+            candidates.append(exp_of_logs_to_powers(result))
+    return min(candidates, key=lambda e: (sp.count_ops(e), len(sp.srepr(e))))
+
+
+def choose_branches(expr: sp.Expr, values: Mapping[sp.Symbol, float]) -> tuple[sp.Expr, tuple[str, ...]]:
+    """Replace each Piecewise by the branch that holds for the stated parameter values.
+
+    sympy splits cases such as ``a*tau != 1``; the stated numbers decide which case applies, and
+    the sheet says which one was taken. A branch whose condition cannot be decided is left alone.
+    """
+    notes: list[str] = []
+
+    def pick(piecewise: sp.Piecewise) -> sp.Expr:
+        for branch, condition in piecewise.args:
+            verdict = condition.subs(values) if condition is not sp.true else sp.true
+            if verdict is sp.true or verdict == True:  # noqa: E712  (sympy booleans)
+                if condition is not sp.true:
+                    notes.append(sp.sstr(condition).replace("**", "^"))
+                return branch
+            if verdict is not sp.false and verdict != False:  # noqa: E712
+                return piecewise
+        return piecewise
+
+    return expr.replace(lambda e: isinstance(e, sp.Piecewise), pick), tuple(notes)

@@ -1,0 +1,104 @@
+"""The validated Model: what the engineer stated, checked, with units and sympy symbols.
+
+A Model is built once by ``calcsheet.source.loader`` and never changed afterwards. Everything
+numeric in it is also held in SI base units (``si``), the only units the mathematics sees.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import pint
+import sympy as sp
+
+from calcsheet.source import expressions as ex
+
+
+@dataclass(frozen=True)
+class SheetInfo:
+    """The title block and the free-text parts of ``[sheet]``."""
+
+    title: str
+    number: str = ""
+    revision: str = ""
+    project: str = ""
+    originator: str = ""
+    purpose: str = ""
+    references: tuple[str, ...] = ()
+    assumptions: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Declared:
+    """The unknown or the independent variable: a name, the unit to report in, a symbol."""
+
+    name: str
+    unit: pint.Unit
+    unit_text: str
+    symbol: sp.Symbol
+
+
+@dataclass(frozen=True)
+class Parameter:
+    name: str
+    text: str  # the value as written, e.g. "47 kohm"
+    quantity: pint.Quantity
+    si: float
+    si_unit: pint.Unit
+    symbol: sp.Symbol
+    source: str = ""
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class Point:
+    """A quantity from the input (an abscissa or a level), as written and in SI."""
+
+    text: str
+    quantity: pint.Quantity
+    si: float
+
+
+@dataclass(frozen=True)
+class Criterion:
+    """An acceptance check such as ``v(60 s) <= 50 V`` or ``reach(50 V) <= 60 s``.
+
+    ``subject`` is one of ``value`` (the unknown at ``argument``), ``reach`` (where the unknown
+    first reaches ``argument``), ``time_constant`` or ``final_value`` (no argument).
+    """
+
+    text: str
+    check: str
+    subject: str
+    argument: Point | None
+    operator: str
+    limit: Point
+
+
+@dataclass(frozen=True)
+class Model:
+    path: str
+    sheet: SheetInfo
+    equation_text: str
+    equation: ex.Equation
+    unknown: Declared
+    variable: Declared
+    derivative: sp.Symbol  # stands for d(unknown)/d(variable) in the sympy expressions
+    lhs: sp.Expr
+    rhs: sp.Expr
+    parameters: tuple[Parameter, ...]
+    initial_at: Point
+    initial_value: Point
+    evaluate_at: tuple[Point, ...] = ()
+    reach: tuple[Point, ...] = ()
+    criteria: tuple[Criterion, ...] = ()
+    unused_parameters: tuple[str, ...] = field(default=())
+
+    @property
+    def residual(self) -> sp.Expr:
+        """lhs - rhs: the equation as F(x, y, y') = 0."""
+        return self.lhs - self.rhs
+
+    def numeric_values(self) -> dict[sp.Symbol, float]:
+        """Parameter symbols mapped to their SI values."""
+        return {p.symbol: p.si for p in self.parameters}

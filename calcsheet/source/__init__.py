@@ -1,0 +1,1 @@
+"""Reading what the engineer wrote: TOML, expressions, quantities and units."""

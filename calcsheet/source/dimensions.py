@@ -1,0 +1,125 @@
+"""Dimensional analysis on the parsed tree, so errors can quote terms exactly as written."""
+
+from __future__ import annotations
+
+from typing import Callable
+
+import pint
+
+from calcsheet.errors import InputError
+from calcsheet.source import expressions as ex
+from calcsheet.source.units import dimension_text, registry
+
+UnitOf = Callable[[str], pint.Unit]
+
+
+def check_equation(equation: ex.Equation, unit_of: UnitOf, derivative_unit: Callable[[ex.Derivative], pint.Unit]) -> pint.Unit:
+    """Check that every additive term on both sides has one dimension; return it."""
+    terms = ex.additive_terms(equation.left) + ex.additive_terms(equation.right)
+    return _common_dimension([node for _, node in terms], _Analyser(unit_of, derivative_unit))
+
+
+def dimension_of(node: ex.Node, unit_of: UnitOf, derivative_unit=None) -> pint.Unit:
+    """The unit of an expression, after checking everything inside it."""
+    return _Analyser(unit_of, derivative_unit).unit(node)
+
+
+class _Analyser:
+    def __init__(self, unit_of: UnitOf, derivative_unit):
+        self.unit_of = unit_of
+        self.derivative_unit = derivative_unit
+
+    def unit(self, node: ex.Node) -> pint.Unit:
+        ureg = registry()
+        if isinstance(node, ex.Number):
+            return ureg.dimensionless
+        if isinstance(node, ex.Name):
+            return self.unit_of(node.name)
+        if isinstance(node, ex.Derivative):
+            if self.derivative_unit is None:
+                raise InputError(f"a derivative ({node.text}) is not allowed here")
+            return self.derivative_unit(node)
+        if isinstance(node, ex.Unary):
+            return self.unit(node.operand)
+        if isinstance(node, ex.Call):
+            return self.call(node)
+        if node.op in "+-":
+            return _common_dimension([n for _, n in ex.additive_terms(node)], self)
+        if node.op == "*":
+            return _product(self.unit(node.left), self.unit(node.right))
+        if node.op == "/":
+            return _product(self.unit(node.left), self.unit(node.right) ** -1)
+        return self.power(node)
+
+    def call(self, node: ex.Call) -> pint.Unit:
+        inner = self.unit(node.argument)
+        if node.function in ("sqrt", "abs"):
+            return inner ** 0.5 if node.function == "sqrt" else inner
+        if not _dimensionless(inner):
+            raise InputError(
+                f"the argument of {node.function}() must be dimensionless, but "
+                f"'{ex.render(node.argument)}' has dimension {dimension_text(inner)}"
+            )
+        return registry().dimensionless
+
+    def power(self, node: ex.Binary) -> pint.Unit:
+        base = self.unit(node.left)
+        exponent_unit = self.unit(node.right)
+        if not _dimensionless(exponent_unit):
+            raise InputError(f"the exponent '{ex.render(node.right)}' must be dimensionless, "
+                             f"but has dimension {dimension_text(exponent_unit)}")
+        if _dimensionless(base):
+            return registry().dimensionless
+        exponent = constant_value(node.right)
+        if exponent is None:
+            raise InputError(f"'{ex.render(node)}': a quantity with dimension "
+                             f"{dimension_text(base)} can only be raised to a fixed number")
+        return base ** exponent
+
+
+def _common_dimension(nodes: list[ex.Node], analyser: _Analyser) -> pint.Unit:
+    first_unit = None
+    first_node = None
+    for node in nodes:
+        if _is_zero(node):
+            continue  # a literal 0 fits any dimension
+        unit = analyser.unit(node)
+        if first_unit is None:
+            first_unit, first_node = unit, node
+        elif not _same(unit, first_unit):
+            raise InputError(
+                f"term '{ex.render(node)}' has dimension {dimension_text(unit)} but term "
+                f"'{ex.render(first_node)}' has dimension {dimension_text(first_unit)}"
+            )
+    return first_unit if first_unit is not None else registry().dimensionless
+
+
+def constant_value(node: ex.Node) -> float | None:
+    """The value of a tree made of numbers only (e.g. an exponent ``-1/2``), else None."""
+    if isinstance(node, ex.Number):
+        return float(node.text)
+    if isinstance(node, ex.Unary):
+        inner = constant_value(node.operand)
+        return None if inner is None else (-inner if node.op == "-" else inner)
+    if isinstance(node, ex.Binary) and node.op in "+-*/":
+        left, right = constant_value(node.left), constant_value(node.right)
+        if left is None or right is None or (node.op == "/" and right == 0):
+            return None
+        return {"+": left + right, "-": left - right, "*": left * right, "/": left / right}[node.op]
+    return None
+
+
+def _product(a: pint.Unit, b: pint.Unit) -> pint.Unit:
+    return (registry().Quantity(1, a) * registry().Quantity(1, b)).units
+
+
+def _dimensionless(unit: pint.Unit) -> bool:
+    return not registry().Quantity(1, unit).dimensionality
+
+
+def _same(a: pint.Unit, b: pint.Unit) -> bool:
+    return registry().Quantity(1, a).dimensionality == registry().Quantity(1, b).dimensionality
+
+
+def _is_zero(node: ex.Node) -> bool:
+    return isinstance(node, ex.Number) and float(node.text) == 0.0

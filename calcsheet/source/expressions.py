@@ -1,0 +1,315 @@
+"""A whitelisting parser for the equations and expressions engineers write.
+
+User text never reaches eval, exec or sympify: it is tokenised here, parsed by recursive descent
+into a small syntax tree of known node kinds, and only then turned into sympy objects by
+``to_sympy``. Anything outside the grammar is refused with a message naming what was found.
+
+Grammar::
+
+    equation   := expression "=" expression
+    expression := term (("+" | "-") term)*
+    term       := signed (("*" | "/") signed)*
+    signed     := ("+" | "-") signed | power
+    power      := atom (("^" | "**") signed)?
+    atom       := number | derivative | name | function "(" expression ")" | "(" expression ")"
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+from typing import Union
+
+from calcsheet.errors import InputError
+
+FUNCTIONS = (
+    "exp", "log", "ln", "log10", "sqrt", "sin", "cos", "tan", "asin", "acos", "atan",
+    "arcsin", "arccos", "arctan", "sinh", "cosh", "tanh", "abs", "erf",
+)
+CONSTANTS = ("pi",)
+NAME_PATTERN = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")
+MAX_LENGTH = 2000
+
+_NUMBER = re.compile(r"(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?")
+_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
+_DERIVATIVE = re.compile(
+    r"d(?P<order>\^?2|²)?(?P<of>[A-Za-z_][A-Za-z0-9_]*)\s*/\s*d(?P<wrt>[A-Za-z_][A-Za-z0-9_]*?)(?P<order2>\^?2|²)?(?![A-Za-z0-9_])"
+)
+_OPERATORS = ("**", "+", "-", "*", "/", "^", "(", ")", "=")
+
+
+# ----------------------------------------------------------------------------------- tree
+@dataclass(frozen=True)
+class Number:
+    text: str
+
+
+@dataclass(frozen=True)
+class Name:
+    name: str
+
+
+@dataclass(frozen=True)
+class Derivative:
+    """d^order(of)/d(wrt)^order, as written."""
+
+    of: str
+    wrt: str
+    order: int
+    text: str
+
+
+@dataclass(frozen=True)
+class Unary:
+    op: str
+    operand: "Node"
+
+
+@dataclass(frozen=True)
+class Binary:
+    op: str  # one of + - * / ^
+    left: "Node"
+    right: "Node"
+
+
+@dataclass(frozen=True)
+class Call:
+    function: str
+    argument: "Node"
+
+
+Node = Union[Number, Name, Derivative, Unary, Binary, Call]
+
+
+@dataclass(frozen=True)
+class Equation:
+    left: Node
+    right: Node
+
+
+# ------------------------------------------------------------------------------ tokenizer
+@dataclass(frozen=True)
+class Token:
+    kind: str  # number, name, derivative, op, end
+    text: str
+    position: int
+    derivative: Derivative | None = None
+
+
+def tokenize(text: str) -> list[Token]:
+    """Split ``text`` into tokens; any character outside the grammar is refused."""
+    if len(text) > MAX_LENGTH:
+        raise InputError(f"expression is longer than {MAX_LENGTH} characters")
+    tokens: list[Token] = []
+    pos = 0
+    while pos < len(text):
+        char = text[pos]
+        if char.isspace():
+            pos += 1
+            continue
+        token, pos = _next_token(text, pos)
+        tokens.append(token)
+    tokens.append(Token("end", "", len(text)))
+    return tokens
+
+
+def _next_token(text: str, pos: int) -> tuple[Token, int]:
+    if text[pos] == "d":
+        match = _DERIVATIVE.match(text, pos)
+        if match:
+            return _derivative_token(match, pos), match.end()
+    match = _NUMBER.match(text, pos)
+    if match:
+        return Token("number", match.group(0), pos), match.end()
+    match = _NAME.match(text, pos)
+    if match:
+        return Token("name", match.group(0), pos), match.end()
+    for op in _OPERATORS:
+        if text.startswith(op, pos):
+            return Token("op", op, pos), pos + len(op)
+    raise InputError(f"unexpected character '{text[pos]}' at position {pos + 1} in '{text}'")
+
+
+def _derivative_token(match: re.Match, pos: int) -> Token:
+    first, second = match.group("order"), match.group("order2")
+    order = 2 if (first or second) else 1
+    derivative = Derivative(match.group("of"), match.group("wrt"), order, match.group(0))
+    return Token("derivative", match.group(0), pos, derivative)
+
+
+# --------------------------------------------------------------------------------- parser
+class _Parser:
+    """Recursive descent over the token list; one method per grammar rule."""
+
+    def __init__(self, text: str):
+        self.text = text
+        self.tokens = tokenize(text)
+        self.index = 0
+
+    @property
+    def current(self) -> Token:
+        return self.tokens[self.index]
+
+    def take(self) -> Token:
+        token = self.tokens[self.index]
+        self.index += 1
+        return token
+
+    def accept(self, *ops: str) -> str | None:
+        if self.current.kind == "op" and self.current.text in ops:
+            return self.take().text
+        return None
+
+    def expect(self, op: str) -> None:
+        if not self.accept(op):
+            raise self.error(f"expected '{op}'")
+
+    def error(self, message: str) -> InputError:
+        token = self.current
+        found = "the end" if token.kind == "end" else f"'{token.text}'"
+        return InputError(f"{message} but found {found} at position {token.position + 1} in '{self.text}'")
+
+    def expression(self) -> Node:
+        node = self.term()
+        while op := self.accept("+", "-"):
+            node = Binary(op, node, self.term())
+        return node
+
+    def term(self) -> Node:
+        node = self.signed()
+        while op := self.accept("*", "/"):
+            node = Binary(op, node, self.signed())
+        return node
+
+    def signed(self) -> Node:
+        if op := self.accept("+", "-"):
+            return Unary(op, self.signed())
+        return self.power()
+
+    def power(self) -> Node:
+        base = self.atom()
+        if self.accept("^", "**"):
+            return Binary("^", base, self.signed())
+        return base
+
+    def atom(self) -> Node:
+        token = self.current
+        if token.kind == "number":
+            self.take()
+            return Number(token.text)
+        if token.kind == "derivative":
+            self.take()
+            return token.derivative
+        if token.kind == "name":
+            return self.name_or_call()
+        if self.accept("("):
+            node = self.expression()
+            self.expect(")")
+            return node
+        raise self.error("expected a number, a name or '('")
+
+    def name_or_call(self) -> Node:
+        token = self.take()
+        name = token.text
+        if self.accept("("):
+            if name not in FUNCTIONS:
+                raise InputError(f"'{name}' is not a known function (known: {', '.join(FUNCTIONS)})")
+            argument = self.expression()
+            self.expect(")")
+            return Call(_canonical_function(name), argument)
+        if name in FUNCTIONS:
+            raise InputError(f"function '{name}' needs an argument in parentheses, e.g. {name}(x)")
+        if not NAME_PATTERN.match(name) or "__" in name:
+            raise InputError(f"'{name}' is not an allowed name (letters, digits and single underscores)")
+        return Name(name)
+
+
+def _canonical_function(name: str) -> str:
+    return {"ln": "log", "arcsin": "asin", "arccos": "acos", "arctan": "atan"}.get(name, name)
+
+
+def parse_expression(text: str) -> Node:
+    """Parse an expression (no '=')."""
+    if not isinstance(text, str) or not text.strip():
+        raise InputError("expression is empty")
+    parser = _Parser(text)
+    node = parser.expression()
+    if parser.current.kind != "end":
+        raise parser.error("expected an operator or the end")
+    return node
+
+
+def parse_equation(text: str) -> Equation:
+    """Parse ``left = right``; exactly one '=' is allowed."""
+    if not isinstance(text, str) or not text.strip():
+        raise InputError("equation is empty")
+    parser = _Parser(text)
+    left = parser.expression()
+    if not parser.accept("="):
+        raise parser.error("expected '=' between the two sides of the equation")
+    right = parser.expression()
+    if parser.current.kind != "end":
+        raise parser.error("expected an operator or the end")
+    return Equation(left, right)
+
+
+# -------------------------------------------------------------------------------- walking
+def names_in(node: Node) -> set[str]:
+    """Every plain name the tree refers to."""
+    if isinstance(node, Name):
+        return {node.name}
+    return set().union(*(names_in(child) for child in children(node))) if children(node) else set()
+
+
+def derivatives_in(node: Node) -> list[Derivative]:
+    if isinstance(node, Derivative):
+        return [node]
+    return [d for child in children(node) for d in derivatives_in(child)]
+
+
+def children(node: Node) -> tuple[Node, ...]:
+    if isinstance(node, Unary):
+        return (node.operand,)
+    if isinstance(node, Binary):
+        return (node.left, node.right)
+    if isinstance(node, Call):
+        return (node.argument,)
+    return ()
+
+
+def additive_terms(node: Node, sign: int = 1) -> list[tuple[int, Node]]:
+    """Split a sum into its signed terms, as written (used to name the offending term)."""
+    if isinstance(node, Binary) and node.op in "+-":
+        right_sign = sign if node.op == "+" else -sign
+        return additive_terms(node.left, sign) + additive_terms(node.right, right_sign)
+    if isinstance(node, Unary) and node.op == "-" and isinstance(node.operand, Binary) and node.operand.op in "+-":
+        return additive_terms(node.operand, -sign)
+    return [(sign, node)]
+
+
+def render(node: Node) -> str:
+    """Write a tree back as text in the input notation (for messages and the record)."""
+    if isinstance(node, Number):
+        return node.text
+    if isinstance(node, Name):
+        return node.name
+    if isinstance(node, Derivative):
+        return node.text
+    if isinstance(node, Unary):
+        return f"{node.op}{_wrap(node.operand, 3)}"
+    if isinstance(node, Call):
+        return f"{node.function}({render(node.argument)})"
+    level = _LEVEL[node.op]
+    left = _wrap(node.left, level if node.op != "^" else level + 1)
+    right = _wrap(node.right, level + (0 if node.op in "+*" else 1) if node.op != "^" else level)
+    spaced = f" {node.op} " if node.op in "+-" else node.op
+    return f"{left}{spaced}{right}"
+
+
+_LEVEL = {"+": 1, "-": 1, "*": 2, "/": 2, "^": 4}
+
+
+def _wrap(node: Node, level: int) -> str:
+    text = render(node)
+    own = _LEVEL.get(node.op, 5) if isinstance(node, Binary) else (3 if isinstance(node, Unary) else 5)
+    return f"({text})" if own < level else text
