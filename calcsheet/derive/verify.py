@@ -78,7 +78,7 @@ def check_substitution(model: Model, solution: Solution, points: list[float]) ->
     passed = worst <= RESIDUAL_TOLERANCE
     reason = "symbolic simplification did not finish in time" if not done else "symbolic simplification did not reach 0"
     return Check("substitution", passed, "numeric at sample points",
-                 f"{reason}; largest relative residual {worst:.1e} at {len(_sample_points(points))} points "
+                 f"{reason}; largest relative residual {bound(worst)} at {len(_sample_points(points))} points "
                  f"(limit {RESIDUAL_TOLERANCE:.0e})", worst)
 
 
@@ -91,9 +91,9 @@ def check_initial_condition(model: Model, solution: Solution, y) -> Check:
     numeric_gap = abs(value - target) / max(abs(target), 1e-300)
     if done and simplified == 0:
         return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "symbolic and numeric",
-                     f"y(x0) - y0 simplifies to 0; numerically {numeric_gap:.1e} relative", numeric_gap)
+                     f"y(x0) - y0 simplifies to 0; numerical relative gap {bound(numeric_gap)}", numeric_gap)
     return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "numeric",
-                 f"relative gap {numeric_gap:.1e} (limit {RESIDUAL_TOLERANCE:.0e})", numeric_gap)
+                 f"relative gap {bound(numeric_gap)} (limit {RESIDUAL_TOLERANCE:.0e})", numeric_gap)
 
 
 def _integration(model: Model, y, points: list[float]) -> dict:
@@ -115,7 +115,7 @@ def _integration(model: Model, y, points: list[float]) -> dict:
     worst = max(abs(d - n) / max(abs(n), 1e-9 * scale) for _, d, n in compared)
     passed = worst <= AGREEMENT
     return {"integration": Check("numerical integration", passed, method,
-                                 f"largest relative difference {worst:.1e} over {len(compared)} points "
+                                 f"largest relative difference {bound(worst)} over {len(compared)} points "
                                  f"(limit {AGREEMENT:.0e})", worst),
             "compared": compared}
 
@@ -144,3 +144,12 @@ def _sample_points(points: list[float]) -> list[float]:
 def _number(expr: sp.Expr) -> float:
     value = complex(sp.N(expr, 20))
     return value.real if abs(value.imag) <= 1e-12 * max(1.0, abs(value.real)) else math.nan
+
+
+def bound(value: float) -> str:
+    """A measured discrepancy as a power-of-ten bound ('below 1e-9'), stable from run to run."""
+    if value == 0:
+        return "0"
+    if not math.isfinite(value):
+        return "not finite"
+    return f"below 1e{math.ceil(math.log10(value) + 1e-12)}"

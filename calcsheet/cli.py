@@ -1,0 +1,100 @@
+"""Command line: parse options, run the pipeline, map results and errors to exit codes."""
+
+from __future__ import annotations
+
+import os
+import sys
+from pathlib import Path
+
+import click
+
+from calcsheet.errors import EXIT_CHECK_FAILED, EXIT_INPUT_ERROR, EXIT_OK, CalcsheetError
+
+EXIT_INTERNAL = 3
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(package_name="calcsheet")
+def main() -> None:
+    """calcsheet: derive, verify and document first-order linear models as calculation sheets."""
+
+
+@main.command()
+@click.argument("inputs", nargs=-1, required=True)
+@click.option("--out", "out_dir", default="out", show_default=True, help="Folder for the outputs.")
+@click.option("--format", "formats", default=None, help="Comma-separated: html,json,txt (default: all).")
+@click.option("--style", default=None, help="Folder of a house style overriding the default templates and CSS.")
+def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None) -> None:
+    """Build a sheet for each INPUT (file or folder of .toml files) into --out."""
+    from calcsheet.pipeline import DEFAULT_FORMATS, parse_formats, render, write_outputs
+    from calcsheet.writers import WRITERS
+
+    chosen = _guard(lambda: parse_formats(formats, tuple(WRITERS)) if formats else DEFAULT_FORMATS)
+    style_dir = _guard(lambda: _style(style))
+
+    def one(built) -> int:
+        rendered = render(built.sheet, chosen, style_dir)
+        written = write_outputs(Path(out_dir), built.path.stem, rendered)
+        click.echo(f"{built.path}: {_summary(built.derivation)} -> {', '.join(str(w) for w in written)}")
+        return EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED
+
+    sys.exit(_run_each(inputs, one))
+
+
+@main.command()
+@click.argument("inputs", nargs=-1, required=True)
+def check(inputs: tuple[str, ...]) -> None:
+    """Derive, verify and evaluate the criteria of each INPUT; write nothing."""
+
+    def one(built) -> int:
+        click.echo(f"{built.path}: {_summary(built.derivation)}")
+        return EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED
+
+    sys.exit(_run_each(inputs, one))
+
+
+def _run_each(inputs: tuple[str, ...], action) -> int:
+    from calcsheet.pipeline import build_sheet, collect_inputs
+
+    paths = _guard(lambda: collect_inputs(inputs))
+    worst = EXIT_OK
+    for path in paths:
+        try:
+            worst = max(worst, action(build_sheet(path)))
+        except CalcsheetError as error:
+            click.echo(str(error.located(file=str(path))), err=True)
+            worst = max(worst, error.exit_code)
+        except Exception as error:  # a defect of ours, not the user's: one line, no traceback
+            if os.environ.get("CALCSHEET_DEBUG"):
+                raise
+            click.echo(f"{path}: internal error: {type(error).__name__}: {error} "
+                       "(set CALCSHEET_DEBUG=1 for details and please report it)", err=True)
+            worst = max(worst, EXIT_INTERNAL)
+    return worst
+
+
+def _summary(derivation) -> str:
+    verdicts = derivation.numbers.verdicts
+    passed = sum(v.passed for v in verdicts)
+    parts = [f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria",
+             "verification passed" if derivation.verification.passed else "verification FAILED"]
+    return ("PASS" if derivation.passed else "FAIL") + " (" + "; ".join(parts) + ")"
+
+
+def _style(style: str | None) -> Path | None:
+    from calcsheet.errors import InputError
+
+    if style is None:
+        return None
+    path = Path(style)
+    if not path.is_dir():
+        raise InputError("no such style folder", key="--style", file=style)
+    return path
+
+
+def _guard(thunk):
+    try:
+        return thunk()
+    except CalcsheetError as error:
+        click.echo(str(error), err=True)
+        sys.exit(EXIT_INPUT_ERROR)

@@ -1,0 +1,294 @@
+"""Compose a Derivation into a Sheet: every word, number format and ordering decision lives here."""
+
+from __future__ import annotations
+
+import sympy as sp
+
+from calcsheet.derive.derivation import Derivation
+from calcsheet.mathtext import derivative_latex, latex, plain
+from calcsheet.sheet import cautions
+from calcsheet.sheet.document import (Equation, ItemList, Math, Note, Outcome, Paragraph, Section, Sheet,
+                                      Table, TitleBlock)
+from calcsheet.sheet.quantities import in_units, number, numeric_expression
+from calcsheet.sheet.record import build_record
+from calcsheet.source.units import parse_unit, same_dimension, si_unit
+
+
+class _Notation:
+    """How this model's symbols are written: y, x, y(x), dy/dx, mu."""
+
+    def __init__(self, d: Derivation):
+        m = d.model
+        self.y, self.x = m.unknown.symbol, m.variable.symbol
+        self.names = {m.derivative: derivative_latex(m.unknown.name, m.variable.name)}
+        self.dy = Math(self.names[m.derivative], f"d{m.unknown.name}/d{m.variable.name}")
+        self.yx_latex = rf"{latex(self.y)}\left({latex(self.x)}\right)"
+        self.yx_text = f"{m.unknown.name}({m.variable.name})"
+
+    def tex(self, expr) -> str:
+        return latex(expr, self.names)
+
+    def eq(self, left_tex: str, left_text: str, *rights, label: str = "") -> Equation:
+        """left = right1 = right2 ..., each right a sympy expression or a (latex, text) pair."""
+        tex_parts, text_parts = [left_tex], [left_text]
+        for right in rights:
+            if isinstance(right, tuple):
+                tex_parts.append(right[0])
+                text_parts.append(right[1])
+            else:
+                tex_parts.append(self.tex(right))
+                text_parts.append(plain(right))
+        return Equation(Math(" = ".join(tex_parts), " = ".join(text_parts)), label)
+
+    def sym(self, expr) -> Math:
+        return Math(self.tex(expr), plain(expr))
+
+
+def compose(d: Derivation) -> Sheet:
+    n = _Notation(d)
+    steps = [_governing(d, n), _classification(d, n), _standard_form(d, n), _integrating_factor(d, n),
+             _integration(d, n), _initial_condition(d, n), _split(d, n), _numbers(d, n), _verification(d)]
+    numbered = tuple(Section(s.key, s.title, s.blocks, i + 1) for i, s in enumerate(steps))
+    return Sheet(title_block=_title_block(d), outcome=_outcome(d), sections=(_basis(d),) + numbered,
+                 cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model), record=build_record(d, n),
+                 source_name=d.model.path)
+
+
+# ----------------------------------------------------------------------------- front matter
+def _title_block(d: Derivation) -> TitleBlock:
+    info = d.model.sheet
+    fields = (("Calculation", info.number), ("Revision", info.revision), ("Project", info.project),
+              ("Originator", info.originator))
+    return TitleBlock(info.title, tuple((k, v) for k, v in fields if v))
+
+
+def _outcome(d: Derivation) -> Outcome:
+    verdicts = d.numbers.verdicts
+    failed = [v for v in verdicts if not v.passed]
+    verified = d.verification.passed
+    if not verdicts:
+        head = "No acceptance criteria stated."
+    elif failed:
+        head = f"{len(failed)} of {len(verdicts)} criteria FAIL."
+    else:
+        head = f"All {len(verdicts)} criteria pass."
+    head += " Verification passed." if verified else " Verification FAILED: do not rely on these results."
+    lines = tuple(f"{'PASS' if v.passed else 'FAIL'}: {v.criterion.text}" for v in verdicts)
+    return Outcome(passed=not failed and verified, text=head, lines=lines)
+
+
+def _basis(d: Derivation) -> Section:
+    info = d.model.sheet
+    blocks = []
+    if info.purpose:
+        blocks.append(Paragraph(f"Purpose: {info.purpose}"))
+    if info.references:
+        blocks += [Paragraph("References:"), ItemList(info.references)]
+    if info.assumptions:
+        blocks += [Paragraph("Assumptions:"), ItemList(info.assumptions)]
+    if not blocks:
+        blocks.append(Paragraph("No purpose, references or assumptions were stated in the input."))
+    return Section("basis", "Basis of the calculation", tuple(blocks))
+
+
+# --------------------------------------------------------------------------------- steps
+def _governing(d: Derivation, n: _Notation) -> Section:
+    m = d.model
+    rows = tuple((Math(latex(p.symbol), p.name), p.text, f"{number(p.si)} {_si_text(p)}".rstrip(),
+                  p.source or "not stated", p.note) for p in m.parameters)
+    blocks = [
+        Paragraph(f"The model as stated in the input, with {m.unknown.name} in {m.unknown.unit_text or 'no unit'} "
+                  f"as the unknown and {m.variable.name} in {m.variable.unit_text or 'no unit'} as the variable:"),
+        Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "as stated"),
+        Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
+        Table(("Condition", "Value"), ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}(x0)"),
+                                         f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}"),),
+              "Initial condition"),
+        Paragraph("Units were checked on every additive term of the equation and on every function argument; "
+                  "all terms share one dimension."),
+    ]
+    if m.unused_parameters:
+        blocks.append(Note("warning", f"Stated but not used in the equation: {', '.join(m.unused_parameters)}."))
+    return Section("governing", "Governing equation and data", tuple(blocks))
+
+
+def _si_text(p) -> str:
+    text = f"{p.si_unit:~P}" if str(p.si_unit) != "dimensionless" else ""
+    return text.replace(" ", "")
+
+
+def _classification(d: Derivation, n: _Notation) -> Section:
+    c, m = d.classification, d.model
+    y, x = m.unknown.name, m.variable.name
+    rows = (
+        ("Order", "1", f"the highest derivative is d{y}/d{x}"),
+        ("Linearity", "linear", f"{y} and d{y}/d{x} appear only to the first power, never multiplied together "
+                                "or inside a function"),
+        ("Forcing", "homogeneous" if c.homogeneous else "forced",
+         "r(x) = 0: no term free of the unknown" if c.homogeneous else f"a term free of {y} drives the response"),
+        ("Coefficients", "constant" if c.constant_coefficients else "varying",
+         f"p does not depend on {x}" if c.constant_coefficients else f"p depends on {x}"),
+    )
+    return Section("classification", "Classification", (
+        Table(("Property", "Finding", "Reason"), rows),
+        Paragraph("A first-order linear ordinary differential equation: it is solved by the integrating-factor method."),
+    ))
+
+
+def _standard_form(d: Derivation, n: _Notation) -> Section:
+    c = d.classification
+    p, r = sp.Symbol("p"), sp.Symbol("r")
+    return Section("standard_form", "Standard form", (
+        Paragraph(f"Divide by the coefficient of {n.dy.text}, a = {plain(c.a)}, and collect the terms in "
+                  f"{d.model.unknown.name} on the left:"),
+        n.eq(rf"{n.dy.latex} + p\,{latex(n.y)}", f"{n.dy.text} + p*{n.y}", (r"r", "r"), label="form"),
+        n.eq(latex(p), "p", c.p),
+        n.eq(latex(r), "r", c.r),
+        n.eq(rf"{n.dy.latex} + {n.tex(c.p * n.y)}", f"{n.dy.text} + {plain(c.p * n.y)}", c.r, label="standard form"),
+    ))
+
+
+def _integrating_factor(d: Derivation, n: _Notation) -> Section:
+    s, x = d.solution, n.x
+    mu = sp.Symbol("mu")
+    blocks = [
+        Paragraph(f"The integrating factor is the exponential of the integral of p over {x}:"),
+        n.eq(latex(mu), "mu", (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
+             sp.exp(s.P, evaluate=False), s.mu),
+        Paragraph(f"Since d(mu)/d{x} = p mu, multiplying the standard form by mu turns its left side into an "
+                  "exact derivative:"),
+        n.eq(rf"\frac{{d}}{{d{latex(x)}}}\left(\mu\,{latex(n.y)}\right)", f"d(mu*{n.y})/d{x}",
+             (rf"\mu\,r", "mu*r"), s.mu_r),
+    ]
+    return Section("integrating_factor", "Integrating factor", tuple(blocks))
+
+
+def _integration(d: Derivation, n: _Notation) -> Section:
+    s, x = d.solution, n.x
+    blocks = [
+        Paragraph(f"Integrate both sides over {x}; K is the constant of integration:"),
+        n.eq(rf"\mu\,{latex(n.y)}", f"mu*{n.y}", (rf"\int \mu\,r\,d{latex(x)} + K", f"integral of mu*r d{x} + K"),
+             s.antiderivative + s.constant),
+        Paragraph("Divide by mu for the general solution:"),
+        n.eq(n.yx_latex, n.yx_text, s.general, label="general solution"),
+    ]
+    if not s.closed_form:
+        blocks.append(Note("method", f"No closed form for part of the integral: {s.fallback_reason}. That part is "
+                                     "kept as a definite integral from the initial point and evaluated numerically "
+                                     "(step 8)."))
+    if s.branches:
+        blocks.append(Note("method", "sympy split the integral into cases; the stated values select the case "
+                                     + "; ".join(s.branches) + "."))
+    return Section("integration", "Integration and general solution", tuple(blocks))
+
+
+def _initial_condition(d: Derivation, n: _Notation) -> Section:
+    s, m = d.solution, d.model
+    y0 = (latex(s.y0), s.y0.name)
+    blocks = [
+        Paragraph(f"The input gives {m.unknown.name} = {m.initial_value.text} at {m.variable.name} = "
+                  f"{m.initial_at.text}; write it {s.y0.name}" + ("" if s.x0 == 0 else f" at {s.x0}") +
+                  f" and solve the general solution there for K:"),
+        n.eq(rf"{latex(n.y)}\left({latex(s.x0)}\right)", f"{m.unknown.name}({s.x0})", y0),
+        n.eq("K", "K", s.constant_value),
+        Paragraph("The particular solution:"),
+        n.eq(n.yx_latex, n.yx_text, s.particular, label="particular solution"),
+    ]
+    return Section("initial_condition", "Initial condition and particular solution", tuple(blocks))
+
+
+def _split(d: Derivation, n: _Notation) -> Section:
+    s, m, num = d.solution, d.model, d.numbers
+    name = m.unknown.name
+    blocks = [
+        Paragraph("Natural response: the part of the form K/mu, fixed by the initial condition, that the system "
+                  "produces on its own. Forced response: the part sustained by the forcing r."),
+        n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", s.natural, label="natural"),
+        n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
+    ]
+    if num.final_value is not None:
+        blocks.append(Paragraph(f"Final value: {name} tends to {in_units(num.final_value, m.unknown)} "
+                                f"({num.final_value_note})."))
+    else:
+        blocks.append(Paragraph(f"Final value: {num.final_value_note}."))
+    return Section("split", "Natural and forced response", tuple(blocks))
+
+
+def _numbers(d: Derivation, n: _Notation) -> Section:
+    m, num, s = d.model, d.numbers, d.solution
+    values = {**m.numeric_values(), **s.initial_values(m)}
+    si_y, si_x = _si_unit_text(m.unknown), _si_unit_text(m.variable)
+    blocks = [
+        Paragraph(f"Values substituted in SI base units ({m.variable.name} in {si_x or 'no unit'}, "
+                  f"{m.unknown.name} in {si_y or 'no unit'}); results are converted back to the units asked for."),
+        n.eq(n.yx_latex, n.yx_text, numeric_expression(s.particular, values)),
+    ]
+    blocks += _time_constant_blocks(d, n, values)
+    if d.quadrature is not None:
+        blocks.append(Note("method", f"The integral term is evaluated by {d.quadrature_method}. Largest error "
+                                     f"estimate over {d.quadrature.evaluations} evaluations: "
+                                     f"{number(d.quadrature.largest_error, 2)} {si_y}".rstrip() + "."))
+    if num.values:
+        blocks.append(Table((f"{m.variable.name}", f"{m.unknown.name}"),
+                            tuple((f"{v.at.text}" + _also(v.at, m.variable), in_units(v.y, m.unknown))
+                                  for v in num.values), f"Values of {m.unknown.name}"))
+    if num.reach:
+        blocks.append(Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
+                            tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached", r.note)
+                                  for r in num.reach), "Levels reached after the initial point"))
+    if num.domain_end is not None:
+        blocks.append(Note("warning", f"The solution stops existing near {m.variable.name} = "
+                                      f"{in_units(num.domain_end, m.variable)} (a coefficient becomes singular)."))
+    if num.verdicts:
+        blocks.append(Table(("Criterion", "Check", "Found", "Result"),
+                            tuple((v.criterion.text, v.criterion.check, _found(v, d), "PASS" if v.passed else "FAIL")
+                                  for v in num.verdicts), "Acceptance criteria",
+                            row_status=tuple("pass" if v.passed else "fail" for v in num.verdicts)))
+    return Section("numbers", "Numbers", tuple(blocks))
+
+
+def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
+    num, m = d.numbers, d.model
+    if num.time_constant is None:
+        return [Paragraph(f"{_constant_word(d).capitalize()}: none; {num.time_constant_note}.")]
+    shown = in_units(num.time_constant, m.variable)
+    return [n.eq(latex(sp.Symbol("tau")), "tau", (r"\frac{1}{p}", "1/p"), num.time_constant_expr,
+                 (_quantity_latex(shown), shown), label=_constant_word(d))]
+
+
+def _constant_word(d: Derivation) -> str:
+    return "time constant" if same_dimension(d.model.variable.unit, parse_unit("s")) else "length constant"
+
+
+def _quantity_latex(shown: str) -> str:
+    value, _, unit = shown.partition(" ")
+    return rf"{value}\ \mathrm{{{unit}}}" if unit else value
+
+
+def _found(v, d: Derivation) -> str:
+    m = d.model
+    if v.criterion.subject in ("value", "final_value"):
+        return in_units(v.actual, m.unknown)
+    if v.actual is None:
+        return "not reached" if v.criterion.subject == "reach" else "does not exist"
+    return in_units(v.actual, m.variable)
+
+
+def _also(point, declared) -> str:
+    """'5 min' also shown in the declared unit when written in another one."""
+    shown = in_units(point.si, declared)
+    return "" if point.text.replace(" ", "") == shown.replace(" ", "") else f" ({shown})"
+
+
+def _si_unit_text(declared) -> str:
+    unit = si_unit(declared.unit)
+    return "" if str(unit) == "dimensionless" else f"{unit:~P}".replace(" ", "")
+
+
+def _verification(d: Derivation) -> Section:
+    rows = tuple((c.name, c.method, "passed" if c.passed else "FAILED", c.detail) for c in d.verification.checks)
+    return Section("verification", "Verification", (
+        Paragraph("Three independent checks; none reuses the arithmetic of the derivation."),
+        Table(("Check", "Method", "Result", "Detail"), rows,
+              row_status=tuple("pass" if c.passed else "fail" for c in d.verification.checks)),
+    ))

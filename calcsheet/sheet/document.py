@@ -1,0 +1,91 @@
+"""Sheet nodes. Writers only read these; they never solve, simplify or choose wording."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Union
+
+
+@dataclass(frozen=True)
+class Math:
+    """Inline or display mathematics: LaTeX for typesetting, a plain form for the text record."""
+
+    latex: str
+    text: str
+
+
+Cell = Union[str, Math]
+
+
+@dataclass(frozen=True)
+class Paragraph:
+    text: str
+
+
+@dataclass(frozen=True)
+class Equation:
+    """A displayed equation, optionally with a short label such as 'standard form'."""
+
+    math: Math
+    label: str = ""
+
+
+@dataclass(frozen=True)
+class Table:
+    header: tuple[str, ...]
+    rows: tuple[tuple[Cell, ...], ...]
+    caption: str = ""
+    # per-row status used for pass/fail styling: "", "pass" or "fail"
+    row_status: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Note:
+    """A highlighted remark; ``kind`` is 'caution', 'warning' or 'method'."""
+
+    kind: str
+    text: str
+
+
+@dataclass(frozen=True)
+class ItemList:
+    items: tuple[str, ...]
+
+
+Block = Union[Paragraph, Equation, Table, Note, ItemList]
+
+
+@dataclass(frozen=True)
+class Section:
+    """A numbered step or an unnumbered part of the sheet (number 0)."""
+
+    key: str
+    title: str
+    blocks: tuple[Block, ...]
+    number: int = 0
+
+
+@dataclass(frozen=True)
+class TitleBlock:
+    title: str
+    fields: tuple[tuple[str, str], ...]  # (label, value) pairs, only those given
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """The one-line answer a reviewer reads first."""
+
+    passed: bool
+    text: str
+    lines: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Sheet:
+    title_block: TitleBlock
+    outcome: Outcome
+    sections: tuple[Section, ...]
+    cautions: tuple[str, ...]
+    signoff_roles: tuple[str, ...] = ("Prepared", "Checked", "Approved")
+    record: dict = field(default_factory=dict)  # structured results for the JSON record
+    source_name: str = ""

@@ -1,0 +1,58 @@
+"""The structured record behind the JSON output (format version 1)."""
+
+from __future__ import annotations
+
+from calcsheet.mathtext import plain
+from calcsheet.sheet.quantities import record_value, rounded
+
+RECORD_FORMAT = "calcsheet-record"
+RECORD_VERSION = 1
+
+
+def build_record(d, n) -> dict:
+    m, num, s, c = d.model, d.numbers, d.solution, d.classification
+    return {
+        "format": RECORD_FORMAT,
+        "version": RECORD_VERSION,
+        "sheet": {k: getattr(m.sheet, k) if not isinstance(getattr(m.sheet, k), tuple) else list(getattr(m.sheet, k))
+                  for k in ("title", "number", "revision", "project", "originator", "purpose", "references", "assumptions")},
+        "model": {
+            "equation": m.equation_text,
+            "unknown": {"name": m.unknown.name, "unit": m.unknown.unit_text},
+            "variable": {"name": m.variable.name, "unit": m.variable.unit_text},
+            "parameters": [{"name": p.name, "value": p.text, "si": rounded(p.si), "source": p.source, "note": p.note}
+                           for p in m.parameters],
+            "initial": {"at": record_value(m.initial_at.si, m.variable), "value": record_value(m.initial_value.si, m.unknown)},
+        },
+        "classification": {
+            "order": c.order, "linear": c.linear, "homogeneous": c.homogeneous,
+            "constant_coefficients": c.constant_coefficients, "p": plain(c.p), "r": plain(c.r),
+        },
+        "solution": {
+            "closed_form": s.closed_form,
+            "integrating_factor": {"latex": n.tex(s.mu), "text": plain(s.mu)},
+            "general": {"latex": n.tex(s.general), "text": plain(s.general)},
+            "particular": {"latex": n.tex(s.particular), "text": plain(s.particular)},
+            "natural": {"latex": n.tex(s.natural), "text": plain(s.natural)},
+            "forced": {"latex": n.tex(s.forced), "text": plain(s.forced)},
+            "quadrature": None if d.quadrature is None else {
+                "method": d.quadrature_method, "largest_error_estimate": float(f"{d.quadrature.largest_error:.2g}")},
+        },
+        "time_constant": record_value(num.time_constant, m.variable),
+        "final_value": record_value(num.final_value, m.unknown),
+        "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown)} for v in num.values],
+        "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable)} for r in num.reach],
+        "criteria": [{"text": v.criterion.text, "check": v.criterion.check, "passed": v.passed,
+                      "found": _found(v, m)} for v in num.verdicts],
+        "verification": {
+            "passed": d.verification.passed,
+            "checks": [{"name": ch.name, "passed": ch.passed, "method": ch.method, "detail": ch.detail}
+                       for ch in d.verification.checks],
+        },
+        "passed": d.passed,
+    }
+
+
+def _found(verdict, m):
+    like = m.unknown if verdict.criterion.subject in ("value", "final_value") else m.variable
+    return record_value(verdict.actual, like)

@@ -1,0 +1,45 @@
+"""The plain-text record, made for ``git diff``: one fact per line, no alignment padding.
+
+Column padding would make one changed value ripple through a whole table, so rows are written
+as fields separated by ' | ' and nothing else.
+"""
+
+from __future__ import annotations
+
+from calcsheet.sheet.document import Equation, ItemList, Math, Note, Paragraph, Section, Sheet, Table
+
+
+def write(sheet: Sheet, style=None) -> str:
+    lines = [f"CALCULATION SHEET: {sheet.title_block.title}"]
+    lines += [f"{label}: {value}" for label, value in sheet.title_block.fields]
+    lines += ["", f"OUTCOME: {sheet.outcome.text}"] + [f"  {line}" for line in sheet.outcome.lines]
+    for section in sheet.sections:
+        lines += ["", _heading(section)] + [line for block in section.blocks for line in _block(block)]
+    lines += ["", "CAUTION"] + [f"  {c}" for c in sheet.cautions]
+    lines += ["", "SIGN-OFF"] + [f"  {role}: name ______  date ______" for role in sheet.signoff_roles]
+    return "\n".join(lines) + "\n"
+
+
+def _heading(section: Section) -> str:
+    prefix = f"STEP {section.number}. " if section.number else ""
+    return f"== {prefix}{section.title} =="
+
+
+def _block(block) -> list[str]:
+    if isinstance(block, Paragraph):
+        return [block.text]
+    if isinstance(block, Equation):
+        label = f"   [{block.label}]" if block.label else ""
+        return [f"    {block.math.text}{label}"]
+    if isinstance(block, Note):
+        return [f"{block.kind.upper()}: {block.text}"]
+    if isinstance(block, ItemList):
+        return [f"  - {item}" for item in block.items]
+    if isinstance(block, Table):
+        caption = [f"{block.caption}:"] if block.caption else []
+        return caption + ["  " + " | ".join(block.header)] + ["  " + " | ".join(_cell(c) for c in row) for row in block.rows]
+    raise TypeError(f"no text form for {type(block).__name__}")
+
+
+def _cell(cell) -> str:
+    return cell.text if isinstance(cell, Math) else str(cell)
