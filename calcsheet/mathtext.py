@@ -3,13 +3,28 @@
 from __future__ import annotations
 
 import sympy as sp
+from sympy.printing.str import StrPrinter
+
+class _PlainPrinter(StrPrinter):
+    """sympy's str form, with integrals written out and dummy variables shown by their names."""
+
+    def _print_Dummy(self, expr):
+        return expr.name
+
+    def _print_Integral(self, expr):
+        (variable, *limits), = expr.limits
+        body = self._print(expr.function)
+        if not limits:
+            return f"integral(({body}) d{self._print(variable)})"
+        low, high = (self._print(v) for v in limits)
+        return f"integral from {low} to {high} of (({body}) d{self._print(variable)})"
+
 
 def plain(expr) -> str:
     """A one-line form in the input notation (``^`` for powers), stable for diffs."""
     if isinstance(expr, str):
         return expr
-    text = sp.sstr(expr)
-    return text.replace("**", "^")
+    return _PlainPrinter().doprint(expr).replace("**", "^")
 
 
 def latex(expr, names: dict | None = None) -> str:

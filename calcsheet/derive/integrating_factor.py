@@ -59,7 +59,7 @@ def solve(model: Model, cls: Classification) -> Solution:
                            "written down; this tool does not handle that case yet", "model.equation")
     mu = exp_of_logs_to_powers(sp.exp(P))
     K = sp.Symbol("K")
-    s = sp.Dummy(model.variable.name)  # a Dummy can never clash with a parameter name
+    s = sp.Dummy(f"{model.variable.name}'")  # a Dummy can never clash with a parameter name
     closed_parts, open_terms, reasons, notes = [], [], [], []
     for term in sp.Add.make_args(cls.r) if not cls.homogeneous else ():
         integral, done, reason = _integrate(sp.powsimp(mu * term), x, values)

@@ -139,7 +139,7 @@ def _final_value(model: Model, cls: Classification, solution: Solution, values, 
         how = f"limit of the particular solution as {model.variable.name} grows without bound"
     elif cls.constant_coefficients:
         expr = (cls.r / cls.p).subs(values)
-        how = f"limit of r/p as {model.variable.name} grows without bound (p constant and positive)"
+        how = f"limit of r/p as {model.variable.name} grows without bound, p being constant and positive"
     else:
         return None, "not determined: varying coefficient and no closed form"
     limit, done = within(LIMIT_SECONDS, lambda: sp.limit(expr, x, sp.oo), None)
@@ -156,9 +156,10 @@ def _reach(level: Point, y, grid, samples, final, model: Model) -> Reach:
     x = _first_crossing(level.si, y, grid, samples)
     if x is not None:
         return Reach(level, x)
+    searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
     if final is not None:
-        return Reach(level, None, "not reached: the response tends to its final value and never gets there")
-    return Reach(level, None, "not reached within the searched range")
+        return Reach(level, None, f"not reached {searched}; the response settles at its final value")
+    return Reach(level, None, f"not reached {searched}")
 
 
 def _first_crossing(level: float, y, grid, samples) -> float | None:

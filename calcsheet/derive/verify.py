@@ -91,7 +91,8 @@ def check_initial_condition(model: Model, solution: Solution, y) -> Check:
     numeric_gap = abs(value - target) / max(abs(target), 1e-300)
     if done and simplified == 0:
         return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "symbolic and numeric",
-                     f"y(x0) - y0 simplifies to 0; numerical relative gap {bound(numeric_gap)}", numeric_gap)
+                     f"{model.unknown.name}({solution.x0}) - {solution.y0} simplifies to 0; numerical relative gap "
+                     f"{bound(numeric_gap)}", numeric_gap)
     return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "numeric",
                  f"relative gap {bound(numeric_gap)} (limit {RESIDUAL_TOLERANCE:.0e})", numeric_gap)
 

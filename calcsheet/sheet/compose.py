@@ -100,8 +100,8 @@ def _governing(d: Derivation, n: _Notation) -> Section:
         Paragraph(f"The model as stated in the input, with {m.unknown.name} in {m.unknown.unit_text or 'no unit'} "
                   f"as the unknown and {m.variable.name} in {m.variable.unit_text or 'no unit'} as the variable:"),
         Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "as stated"),
-        Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
-        Table(("Condition", "Value"), ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}(x0)"),
+        Table(("Symbol", "Value", "In SI base units", "Source", "Note"), rows, "Parameters"),
+        Table(("Condition", "Value"), ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
                                          f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}"),),
               "Initial condition"),
         Paragraph("Units were checked on every additive term of the equation and on every function argument; "
@@ -113,8 +113,11 @@ def _governing(d: Derivation, n: _Notation) -> Section:
 
 
 def _si_text(p) -> str:
-    text = f"{p.si_unit:~P}" if str(p.si_unit) != "dimensionless" else ""
-    return text.replace(" ", "")
+    return _unit_ascii(p.si_unit)
+
+
+def _unit_ascii(unit) -> str:
+    return "" if str(unit) == "dimensionless" else f"{unit:~C}".replace("**", "^")
 
 
 def _classification(d: Derivation, n: _Notation) -> Section:
@@ -144,7 +147,8 @@ def _standard_form(d: Derivation, n: _Notation) -> Section:
         n.eq(rf"{n.dy.latex} + p\,{latex(n.y)}", f"{n.dy.text} + p*{n.y}", (r"r", "r"), label="form"),
         n.eq(latex(p), "p", c.p),
         n.eq(latex(r), "r", c.r),
-        n.eq(rf"{n.dy.latex} + {n.tex(c.p * n.y)}", f"{n.dy.text} + {plain(c.p * n.y)}", c.r, label="standard form"),
+        n.eq(rf"{n.dy.latex} + {n.tex(_times(c.p, n.y))}", f"{n.dy.text} + {plain(_times(c.p, n.y))}", c.r,
+             label="standard form"),
     ))
 
 
@@ -154,7 +158,7 @@ def _integrating_factor(d: Derivation, n: _Notation) -> Section:
     blocks = [
         Paragraph(f"The integrating factor is the exponential of the integral of p over {x}:"),
         n.eq(latex(mu), "mu", (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
-             sp.exp(s.P, evaluate=False), s.mu),
+             *_distinct(sp.exp(s.P, evaluate=False), s.mu)),
         Paragraph(f"Since d(mu)/d{x} = p mu, multiplying the standard form by mu turns its left side into an "
                   "exact derivative:"),
         n.eq(rf"\frac{{d}}{{d{latex(x)}}}\left(\mu\,{latex(n.y)}\right)", f"d(mu*{n.y})/d{x}",
@@ -252,7 +256,8 @@ def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
     if num.time_constant is None:
         return [Paragraph(f"{_constant_word(d).capitalize()}: none; {num.time_constant_note}.")]
     shown = in_units(num.time_constant, m.variable)
-    return [n.eq(latex(sp.Symbol("tau")), "tau", (r"\frac{1}{p}", "1/p"), num.time_constant_expr,
+    tau = sp.Symbol("tau")
+    return [n.eq(latex(tau), "tau", (r"\frac{1}{p}", "1/p"), *_distinct(tau, num.time_constant_expr)[1:],
                  (_quantity_latex(shown), shown), label=_constant_word(d))]
 
 
@@ -276,13 +281,27 @@ def _found(v, d: Derivation) -> str:
 
 def _also(point, declared) -> str:
     """'5 min' also shown in the declared unit when written in another one."""
-    shown = in_units(point.si, declared)
-    return "" if point.text.replace(" ", "") == shown.replace(" ", "") else f" ({shown})"
+    return "" if point.quantity.units == declared.unit else f" ({in_units(point.si, declared)})"
+
+
+def _distinct(*exprs):
+    """Drop a repeated right-hand side (exp(P) that needed no rewriting)."""
+    kept = []
+    for e in exprs:
+        if not kept or plain(e) != plain(kept[-1]):
+            kept.append(e)
+    return kept
+
+
+def _times(coefficient, y):
+    """p*y with p kept together, so the coefficient reads as one factor."""
+    if coefficient.is_Atom or coefficient.is_Pow:
+        return coefficient * y
+    return sp.Mul(coefficient, y, evaluate=False)
 
 
 def _si_unit_text(declared) -> str:
-    unit = si_unit(declared.unit)
-    return "" if str(unit) == "dimensionless" else f"{unit:~P}".replace(" ", "")
+    return _unit_ascii(si_unit(declared.unit))
 
 
 def _verification(d: Derivation) -> Section:

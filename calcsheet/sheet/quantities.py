@@ -49,4 +49,6 @@ def rounded(value: float) -> float:
 
 def numeric_expression(expr: sp.Expr, values: dict) -> sp.Expr:
     """An expression with SI numbers in place of symbols, shown to 4 significant figures."""
-    return sp.N(expr.subs(values), SIGNIFICANT)
+    numeric = sp.N(expr.subs(values), 15)
+    return numeric.xreplace({f: sp.Float(float(f"{float(f):.{SIGNIFICANT}g}"), SIGNIFICANT)
+                             for f in numeric.atoms(sp.Float)})

@@ -32,9 +32,10 @@ MAX_LENGTH = 2000
 
 _NUMBER = re.compile(r"(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?")
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
-_DERIVATIVE = re.compile(
-    r"d(?P<order>\^?2|²)?(?P<of>[A-Za-z_][A-Za-z0-9_]*)\s*/\s*d(?P<wrt>[A-Za-z_][A-Za-z0-9_]*?)(?P<order2>\^?2|²)?(?![A-Za-z0-9_])"
-)
+_NAME_TEXT = r"[A-Za-z_][A-Za-z0-9_]*"
+_SECOND_DERIVATIVE = re.compile(
+    rf"d(?:\^?2|²)(?P<of>{_NAME_TEXT})\s*/\s*d(?P<wrt>{_NAME_TEXT}?)(?:\^?2|²)(?![A-Za-z0-9_])")
+_FIRST_DERIVATIVE = re.compile(rf"d(?P<of>{_NAME_TEXT})\s*/\s*d(?P<wrt>{_NAME_TEXT})(?![A-Za-z0-9_])")
 _OPERATORS = ("**", "+", "-", "*", "/", "^", "(", ")", "=")
 
 
@@ -96,8 +97,12 @@ class Token:
     derivative: Derivative | None = None
 
 
-def tokenize(text: str) -> list[Token]:
-    """Split ``text`` into tokens; any character outside the grammar is refused."""
+def tokenize(text: str, names: frozenset[str] = frozenset()) -> list[Token]:
+    """Split ``text`` into tokens; any character outside the grammar is refused.
+
+    ``dX/dY`` is a derivative unless both ``dX`` and ``dY`` are known names (``names``), so a
+    ratio such as ``d_i/d_o`` of two parameters stays a ratio.
+    """
     if len(text) > MAX_LENGTH:
         raise InputError(f"expression is longer than {MAX_LENGTH} characters")
     tokens: list[Token] = []
@@ -107,17 +112,19 @@ def tokenize(text: str) -> list[Token]:
         if char.isspace():
             pos += 1
             continue
-        token, pos = _next_token(text, pos)
+        token, pos = _next_token(text, pos, names)
         tokens.append(token)
     tokens.append(Token("end", "", len(text)))
     return tokens
 
 
-def _next_token(text: str, pos: int) -> tuple[Token, int]:
+def _next_token(text: str, pos: int, names: frozenset[str]) -> tuple[Token, int]:
     if text[pos] == "d":
-        match = _DERIVATIVE.match(text, pos)
-        if match:
-            return _derivative_token(match, pos), match.end()
+        for order, pattern in ((2, _SECOND_DERIVATIVE), (1, _FIRST_DERIVATIVE)):
+            match = pattern.match(text, pos)
+            if match and not {"d" + match.group("of"), "d" + match.group("wrt")} <= names:
+                derivative = Derivative(match.group("of"), match.group("wrt"), order, match.group(0))
+                return Token("derivative", match.group(0), pos, derivative), match.end()
     match = _NUMBER.match(text, pos)
     if match:
         return Token("number", match.group(0), pos), match.end()
@@ -130,20 +137,13 @@ def _next_token(text: str, pos: int) -> tuple[Token, int]:
     raise InputError(f"unexpected character '{text[pos]}' at position {pos + 1} in '{text}'")
 
 
-def _derivative_token(match: re.Match, pos: int) -> Token:
-    first, second = match.group("order"), match.group("order2")
-    order = 2 if (first or second) else 1
-    derivative = Derivative(match.group("of"), match.group("wrt"), order, match.group(0))
-    return Token("derivative", match.group(0), pos, derivative)
-
-
 # --------------------------------------------------------------------------------- parser
 class _Parser:
     """Recursive descent over the token list; one method per grammar rule."""
 
-    def __init__(self, text: str):
+    def __init__(self, text: str, names: frozenset[str] = frozenset()):
         self.text = text
-        self.tokens = tokenize(text)
+        self.tokens = tokenize(text, names)
         self.index = 0
 
     @property
@@ -239,11 +239,11 @@ def parse_expression(text: str) -> Node:
     return node
 
 
-def parse_equation(text: str) -> Equation:
-    """Parse ``left = right``; exactly one '=' is allowed."""
+def parse_equation(text: str, names: frozenset[str] = frozenset()) -> Equation:
+    """Parse ``left = right``; exactly one '=' is allowed. ``names``: the parameter names."""
     if not isinstance(text, str) or not text.strip():
         raise InputError("equation is empty")
-    parser = _Parser(text)
+    parser = _Parser(text, names)
     left = parser.expression()
     if not parser.accept("="):
         raise parser.error("expected '=' between the two sides of the equation")

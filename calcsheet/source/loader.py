@@ -11,7 +11,6 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-import pint
 import sympy as sp
 
 from calcsheet.errors import CalcsheetError, InputError, ModelRefused
@@ -92,7 +91,8 @@ class _Builder:
             raise InputError("the unknown and the variable need different names", "model.variable")
         parameters = self.parameters(unknown, variable)
         equation_text = self.string(model_table, "equation", "model.equation", required=True)
-        equation = _wrap_key(lambda: ex.parse_equation(equation_text), "model.equation")
+        names = frozenset(p.name for p in parameters)
+        equation = _wrap_key(lambda: ex.parse_equation(equation_text, names), "model.equation")
         derivative = sp.Symbol(f"d{unknown.name}/d{variable.name}", real=True)
         lhs, rhs, unused = _wrap_key(
             lambda: _symbolic_equation(equation, unknown, variable, parameters, derivative), "model.equation"
@@ -118,6 +118,9 @@ class _Builder:
                 errors.append(InputError(f"unknown table (expected one of: {', '.join(TABLES)})", key))
                 continue
             allowed = TABLES[key]
+            if isinstance(value, list) and key != "criteria":
+                errors.append(InputError(f"must be a table: write [{key}], not [[{key}]]", key))
+                continue
             entries = value if isinstance(value, list) else [value]
             for index, entry in enumerate(entries):
                 where = f"{key}[{index + 1}]" if isinstance(value, list) else key

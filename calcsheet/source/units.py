@@ -62,6 +62,8 @@ def parse_quantity(text: str | int | float) -> pint.Quantity:
     if isinstance(text, bool):
         raise InputError("expected a number with a unit, got true/false")
     if isinstance(text, (int, float)):
+        if not math.isfinite(text):
+            raise InputError(f"'{text}' is not a finite number")
         return registry().Quantity(float(text), registry().dimensionless)
     if not isinstance(text, str):
         raise InputError(f"expected a number with a unit such as \"47 kohm\", got {type(text).__name__}")
@@ -100,7 +102,7 @@ def same_dimension(a: pint.Unit, b: pint.Unit) -> bool:
 
 
 def dimension_text(unit: pint.Unit) -> str:
-    """A dimension as engineers read it, e.g. ``[mass]*[length]^2/[time]^3``; '1' if none."""
+    """A dimension as engineers read it, e.g. ``[mass]*[length]^2/[time]^3``, or 'dimensionless'."""
     dims = registry().Quantity(1, unit).dimensionality
     if not dims:
         return "dimensionless"
