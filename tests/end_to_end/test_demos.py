@@ -1,0 +1,101 @@
+"""Every demo input through the command line, with golden text and JSON records.
+
+To accept new output after a deliberate change: CALCSHEET_ACCEPT=1 python -m pytest tests/end_to_end
+and review the diff of tests/end_to_end/golden/ before committing it.
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+import os
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from calcsheet.cli import main
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+GOLDEN = Path(__file__).parent / "golden"
+
+
+@pytest.fixture(scope="module")
+def built(tmp_path_factory):
+    """Each demo built twice into two folders, once for the records and once for determinism."""
+    first, second = tmp_path_factory.mktemp("first"), tmp_path_factory.mktemp("second")
+    runner = CliRunner()
+    results = {}
+    for out in (first, second):
+        results[out] = runner.invoke(main, ["build", *map(str, DEMOS), "--out", str(out)])
+    return first, second, results
+
+
+def test_there_are_at_least_four_demos():
+    assert len(DEMOS) >= 4
+
+
+def test_build_succeeds_on_every_demo(built):
+    first, _, results = built
+    result = results[first]
+    assert result.exit_code == 0, result.output
+    for demo in DEMOS:
+        for ext in ("html", "json", "txt"):
+            assert (first / f"{demo.stem}.{ext}").stat().st_size > 0
+    assert not list(first.glob("*.part")), "temporary files left behind"
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+@pytest.mark.parametrize("ext", ["html", "json", "txt"])
+def test_same_input_gives_identical_bytes(built, demo, ext):
+    first, second, _ = built
+    assert (first / f"{demo.stem}.{ext}").read_bytes() == (second / f"{demo.stem}.{ext}").read_bytes()
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+@pytest.mark.parametrize("ext", ["txt", "json"])
+def test_records_match_golden_files(built, demo, ext):
+    first, _, _ = built
+    produced = (first / f"{demo.stem}.{ext}").read_text(encoding="utf-8")
+    golden = GOLDEN / f"{demo.stem}.{ext}"
+    if os.environ.get("CALCSHEET_ACCEPT"):
+        golden.write_text(produced, encoding="utf-8")
+    expected = golden.read_text(encoding="utf-8") if golden.exists() else ""
+    if produced != expected:
+        diff = "".join(difflib.unified_diff(expected.splitlines(True), produced.splitlines(True),
+                                            str(golden), "produced"))
+        pytest.fail(f"{golden.name} differs (CALCSHEET_ACCEPT=1 to accept):\n{diff}")
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+def test_json_record_has_the_promised_fields(built, demo):
+    first, _, _ = built
+    record = json.loads((first / f"{demo.stem}.json").read_text(encoding="utf-8"))
+    assert record["format"] == "calcsheet-record" and record["version"] == 1
+    for key in ("classification", "solution", "time_constant", "final_value", "values", "reach", "criteria",
+                "verification"):
+        assert key in record
+    assert isinstance(record["solution"]["closed_form"], bool)
+    for value in record["values"]:
+        assert set(value["at"]) == {"value", "unit"} and set(value["value"]) == {"value", "unit"}
+    for reach in record["reach"]:
+        assert reach["at"] is None or set(reach["at"]) == {"value", "unit"}
+    assert all(isinstance(c["passed"], bool) for c in record["criteria"])
+    assert record["verification"]["passed"] is True
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+def test_html_sheet_carries_steps_caution_and_signoff(built, demo):
+    first, _, _ = built
+    html = (first / f"{demo.stem}.html").read_text(encoding="utf-8")
+    assert html.count("<math") > 10
+    for text in ("Integrating factor", "Verification", "licensed engineer", "Prepared", "Checked", "Approved"):
+        assert text in html
+    assert "<script" not in html
+
+
+def test_check_prints_one_line_per_input():
+    result = CliRunner().invoke(main, ["check", str(DEMOS[0])])
+    assert result.exit_code == 0
+    assert result.output.count("\n") == 1 and "PASS" in result.output
