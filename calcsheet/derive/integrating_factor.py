@@ -49,20 +49,21 @@ class Solution:
         return values
 
 
-def solve(model: Model, cls: Classification) -> Solution:
+def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_SECONDS) -> Solution:
+    """The solution; each forcing term's integral gets ``forcing_seconds`` before it falls back."""
     x = model.variable.symbol
     values = model.numeric_values()
     x0, y0 = _initial_symbols(model)
-    P, closed, _ = _integrate(cls.p, x, values)
+    P, closed, why = _integrate(cls.p, x, values, INTEGRATE_SECONDS)
     if not closed:
-        raise ModelRefused("the integral of p(x) has no closed form, so the integrating factor cannot be "
-                           "written down; this tool does not handle that case yet", "model.equation")
+        raise ModelRefused(f"the integrating factor needs the integral of p = {cls.p}, and {why}; "
+                           "this tool does not handle that case yet", "model.equation")
     mu = exp_of_logs_to_powers(sp.exp(P))
     K = sp.Symbol("K")
     s = sp.Dummy(f"{model.variable.name}'")  # a Dummy can never clash with a parameter name
     closed_parts, open_terms, reasons, notes = [], [], [], []
     for term in sp.Add.make_args(cls.r) if not cls.homogeneous else ():
-        integral, done, reason = _integrate(sp.powsimp(mu * term), x, values)
+        integral, done, reason = _integrate(sp.powsimp(mu * term), x, values, forcing_seconds)
         if done:
             closed_parts.append(integral)
         else:
@@ -98,7 +99,7 @@ def _free_name(name: str, taken: set[str]) -> str:
     return name
 
 
-def _integrate(expr: sp.Expr, x: sp.Symbol, values) -> tuple[sp.Expr, bool, str]:
+def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.Expr, bool, str]:
     """∫ expr dx under the time budget: (result, closed, why not closed).
 
     The quick rule-based integrator goes first; the full algorithm only when it fails.
@@ -109,10 +110,9 @@ def _integrate(expr: sp.Expr, x: sp.Symbol, values) -> tuple[sp.Expr, bool, str]
             result = sp.integrate(expr, x)
         return result
 
-    result, done = within(INTEGRATE_SECONDS, attempt, None)
+    result, done = within(seconds, attempt, None)
     if not done:
-        return sp.Integral(expr, x), False, (
-            f"symbolic integration did not finish within its budget of {INTEGRATE_SECONDS:g} s")
+        return sp.Integral(expr, x), False, f"symbolic integration did not finish within its budget of {seconds:g} s"
     result, _ = choose_branches(result, values)
     if result.has(sp.Integral) or result.has(sp.Piecewise):
         return sp.Integral(expr, x), False, "the integral has no closed form in elementary or standard special functions"
