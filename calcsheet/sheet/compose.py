@@ -309,5 +309,5 @@ def _verification(d: Derivation) -> Section:
     return Section("verification", "Verification", (
         Paragraph("Three independent checks; none reuses the arithmetic of the derivation."),
         Table(("Check", "Method", "Result", "Detail"), rows,
-              row_status=tuple("pass" if c.passed else "fail" for c in d.verification.checks)),
+              row_status=tuple("pass" if c.passed else "fail" for c in d.verification.checks), status_column=2),
     ))

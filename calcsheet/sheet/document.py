@@ -35,8 +35,9 @@ class Table:
     header: tuple[str, ...]
     rows: tuple[tuple[Cell, ...], ...]
     caption: str = ""
-    # per-row status used for pass/fail styling: "", "pass" or "fail"
+    # per-row status used for pass/fail styling ("", "pass" or "fail"), shown on status_column
     row_status: tuple[str, ...] = ()
+    status_column: int = -1
 
 
 @dataclass(frozen=True)
