@@ -9,7 +9,11 @@ import jinja2
 
 
 def default_style_dir() -> Path:
-    return Path(str(resources.files("calcsheet.styles") / "default"))
+    """The installed copy (package calcsheet.styles), or the checkout's styles/ when run from source."""
+    try:
+        return Path(str(resources.files("calcsheet.styles") / "default"))
+    except ModuleNotFoundError:
+        return Path(__file__).resolve().parents[2] / "styles" / "default"
 
 
 def environment(style: Path | None = None) -> jinja2.Environment:
