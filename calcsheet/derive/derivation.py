@@ -41,6 +41,8 @@ def derive(model: Model) -> Derivation:
     curve = tuple((float(x), y(float(x))) for x in np.linspace(start, end, CURVE_POINTS))
     checked = [v.at.si for v in numbers.values] + [r.x for r in numbers.reach if r.x is not None]
     checked += [x for x in np.linspace(start, end, 13)[1:]]
+    if numbers.domain_end is not None:
+        checked = [x for x in checked if x < numbers.domain_end]
     verification = verify(model, solution, y, [float(x) for x in checked])
     return Derivation(model=model, classification=cls, solution=solution, numbers=numbers,
                       verification=verification, curve=curve,

@@ -71,7 +71,12 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     farthest = max([x0] + [pt.si for pt in _abscissae(model)])
     span_end = x0 + max(5 * scale, (farthest - x0) * 1.05)
     grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), 2001 if solution.closed_form else 401)
+    singular = _singular_point(cls, values, x, grid)
+    if singular is not None:
+        grid = grid[grid < singular]
     samples, domain_end = _sample(y, grid)
+    if singular is not None and (domain_end is None or singular < domain_end):
+        domain_end = singular
     final, final_note = _final_value(model, cls, solution, values, p_value)
     if domain_end is not None:
         span_end = min(span_end, domain_end)
@@ -119,6 +124,25 @@ def _abscissae(model: Model) -> list[Point]:
     return points
 
 
+def _singular_point(cls: Classification, values, x: sp.Symbol, grid: np.ndarray) -> float | None:
+    """The first point past x0 where p = b/a has a pole (its denominator changes sign or vanishes)."""
+    if cls.constant_coefficients:
+        return None
+    _, denominator = sp.fraction(sp.together(cls.p.subs(values)))
+    if x not in denominator.free_symbols:
+        return None
+    f = sp.lambdify(x, denominator, modules="math")
+    previous = f(float(grid[0]))
+    for a, b in zip(grid[:-1], grid[1:]):
+        current = f(float(b))
+        if current == 0:
+            return float(b)
+        if np.sign(current) != np.sign(previous):
+            return float(optimize.brentq(f, float(a), float(b), xtol=1e-12 * float(b - a)))
+        previous = current
+    return None
+
+
 def _sample(y: ResponseEvaluator, grid: np.ndarray) -> tuple[np.ndarray, float | None]:
     """y on the grid, stopped at the first point where the solution is not finite."""
     values = []
@@ -145,7 +169,9 @@ def _final_value(model: Model, cls: Classification, solution: Solution, values, 
     limit, done = within(LIMIT_SECONDS, lambda: sp.limit(expr, x, sp.oo), None)
     if not done or limit is None:
         return None, "not determined: the limit did not finish within its time budget"
-    if limit.is_finite and limit.is_real:
+    if isinstance(limit, sp.AccumBounds):
+        return None, "none: the response keeps oscillating and does not settle"
+    if limit.is_finite and limit.is_real and limit.is_number:
         return float(limit), how
     if limit in (sp.oo, -sp.oo):
         return None, "none: the response grows without bound"

@@ -53,7 +53,7 @@ class Verification:
 def verify(model: Model, solution: Solution, y, points: list[float]) -> Verification:
     return Verification(
         substitution=check_substitution(model, solution, points),
-        initial_condition=check_initial_condition(model, solution, y),
+        initial_condition=check_initial_condition(model, solution, y, points),
         **_integration(model, y, points),
     )
 
@@ -82,13 +82,15 @@ def check_substitution(model: Model, solution: Solution, points: list[float]) ->
                  f"(limit {RESIDUAL_TOLERANCE:.0e})", worst)
 
 
-def check_initial_condition(model: Model, solution: Solution, y) -> Check:
+def check_initial_condition(model: Model, solution: Solution, y, points: list[float]) -> Check:
+    """y(x0) = y0, symbolically and numerically; the gap is relative to the size of the response."""
     x = model.variable.symbol
     gap = solution.particular.subs(x, solution.x0) - solution.y0
     simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(gap.doit()), None)
     value = y(model.initial_at.si)
     target = model.initial_value.si
-    numeric_gap = abs(value - target) / max(abs(target), 1e-300)
+    size = max([abs(target)] + [abs(v) for v in map(y, _sample_points(points)) if math.isfinite(v)])
+    numeric_gap = abs(value - target) / max(size, 1e-300)
     if done and simplified == 0:
         return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "symbolic and numeric",
                      f"{model.unknown.name}({solution.x0}) - {solution.y0} simplifies to 0; numerical relative gap "
