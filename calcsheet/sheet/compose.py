@@ -230,7 +230,7 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     blocks += _time_constant_blocks(d, n, values)
     if d.quadrature is not None:
         blocks.append(Note("method", f"The integral term is evaluated by {d.quadrature_method}. Largest error "
-                                     f"estimate over {d.quadrature.evaluations} evaluations: "
+                                     "estimate over every evaluation made for this sheet: "
                                      f"{number(d.quadrature.largest_error, 2)} {si_y}".rstrip() + "."))
     if num.values:
         blocks.append(Table((f"{m.variable.name}", f"{m.unknown.name}"),
