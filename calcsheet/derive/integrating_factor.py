@@ -115,5 +115,5 @@ def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.
         return sp.Integral(expr, x), False, f"symbolic integration did not finish within its budget of {seconds:g} s"
     result, _ = choose_branches(result, values)
     if result.has(sp.Integral) or result.has(sp.Piecewise):
-        return sp.Integral(expr, x), False, "the integral has no closed form in elementary or standard special functions"
+        return sp.Integral(expr, x), False, "sympy found no closed form for this integral"
     return result, True, ""
