@@ -64,7 +64,10 @@ def _refuse_nonlinear_terms(residual: sp.Expr, y: sp.Symbol, dy: sp.Symbol, mode
 
 
 def _is_zero(expr: sp.Expr) -> bool:
-    if expr == 0:
+    """Exactly zero? Cheap rewritings first; full simplification (within budget) only if needed."""
+    if expr == 0 or sp.expand(expr) == 0 or sp.cancel(sp.together(expr)) == 0:
         return True
+    if not expr.free_symbols:
+        return False
     simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(expr), expr)
     return done and simplified == 0

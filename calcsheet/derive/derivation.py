@@ -38,7 +38,8 @@ def derive(model: Model) -> Derivation:
     y = make_evaluator(model, solution)
     numbers = compute_numbers(model, cls, solution, y)
     start, end = numbers.span
-    curve = tuple((float(x), y(float(x))) for x in np.linspace(start, end, CURVE_POINTS))
+    xs = np.linspace(start, end, CURVE_POINTS)
+    curve = tuple((float(x), float(v)) for x, v in zip(xs, y.on_grid(xs)))
     checked = [v.at.si for v in numbers.values] + [r.x for r in numbers.reach if r.x is not None]
     checked += [x for x in np.linspace(start, end, 13)[1:]]
     if numbers.domain_end is not None:

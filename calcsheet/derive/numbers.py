@@ -70,7 +70,7 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     scale = tau if tau else _natural_scale(p_value, x, x0, model)
     farthest = max([x0] + [pt.si for pt in _abscissae(model)])
     span_end = x0 + max(5 * scale, (farthest - x0) * 1.05)
-    grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), 2001 if solution.closed_form else 401)
+    grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), 2001)
     singular = _singular_point(cls, values, x, grid)
     if singular is not None:
         grid = grid[grid < singular]
@@ -145,13 +145,12 @@ def _singular_point(cls: Classification, values, x: sp.Symbol, grid: np.ndarray)
 
 def _sample(y: ResponseEvaluator, grid: np.ndarray) -> tuple[np.ndarray, float | None]:
     """y on the grid, stopped at the first point where the solution is not finite."""
-    values = []
-    for xi in grid:
-        value = y(float(xi))
-        if not math.isfinite(value):
-            return np.array(values), float(xi) if values else None
-        values.append(value)
-    return np.array(values), None
+    values = y.on_grid(grid)
+    bad = np.nonzero(~np.isfinite(values))[0]
+    if len(bad) == 0:
+        return values, None
+    first = int(bad[0])
+    return values[:first], float(grid[first]) if first else None
 
 
 def _final_value(model: Model, cls: Classification, solution: Solution, values, p_value) -> tuple[float | None, str]:

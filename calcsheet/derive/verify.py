@@ -63,8 +63,8 @@ def check_substitution(model: Model, solution: Solution, points: list[float]) ->
     x = model.variable.symbol
     y = solution.particular
     residual = model.residual.subs({model.derivative: sp.diff(y, x), model.unknown.symbol: y})
-    simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(residual), None)
-    if done and simplified == 0:
+    zero, done = vanishes(residual)
+    if zero:
         return Check("substitution", True, "symbolic", "lhs - rhs simplifies to exactly 0")
     values = {**model.numeric_values(), **solution.initial_values(model)}
     terms = sp.Add.make_args(sp.expand(model.residual))
@@ -86,17 +86,26 @@ def check_initial_condition(model: Model, solution: Solution, y, points: list[fl
     """y(x0) = y0, symbolically and numerically; the gap is relative to the size of the response."""
     x = model.variable.symbol
     gap = solution.particular.subs(x, solution.x0) - solution.y0
-    simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(gap.doit()), None)
+    zero, _ = vanishes(gap.doit())
     value = y(model.initial_at.si)
     target = model.initial_value.si
     size = max([abs(target)] + [abs(v) for v in map(y, _sample_points(points)) if math.isfinite(v)])
     numeric_gap = abs(value - target) / max(size, 1e-300)
-    if done and simplified == 0:
+    if zero:
         return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "symbolic and numeric",
                      f"{model.unknown.name}({solution.x0}) - {solution.y0} simplifies to 0; numerical relative gap "
                      f"{bound(numeric_gap)}", numeric_gap)
     return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "numeric",
                  f"relative gap {bound(numeric_gap)} (limit {RESIDUAL_TOLERANCE:.0e})", numeric_gap)
+
+
+def vanishes(expr: sp.Expr) -> tuple[bool, bool]:
+    """(is exactly zero, finished): cheap rewritings first, full simplification within budget last."""
+    for rewrite in (sp.expand, lambda e: sp.cancel(sp.together(sp.powsimp(sp.expand(e))))):
+        if rewrite(expr) == 0:
+            return True, True
+    simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(expr), None)
+    return bool(done and simplified == 0), done
 
 
 def _integration(model: Model, y, points: list[float]) -> dict:

@@ -26,8 +26,15 @@ _OFFSET_NAMES = re.compile(r"(?<![A-Za-z_])(degC|degF|celsius|fahrenheit|degree_
 
 @functools.lru_cache(maxsize=1)
 def registry() -> pint.UnitRegistry:
-    """The shared unit registry (built once: construction costs tens of milliseconds)."""
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+    """The shared unit registry, built once per process.
+
+    Parsing pint's definitions costs most of a second; pint's own on-disk cache of them cuts that
+    to a few hundredths. Where the cache cannot be written, the registry is built without it.
+    """
+    try:
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False, cache_folder=":auto:")
+    except Exception:  # an unwritable cache folder must not stop the tool
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
     ureg.formatter.default_format = "~"
     return ureg
 
