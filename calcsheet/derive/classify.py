@@ -35,7 +35,7 @@ def classify(model: Model) -> Classification:
     _refuse_nonlinear_terms(residual, y, dy, model)
     a = sp.expand(sp.diff(residual, dy))
     b = sp.expand(sp.diff(residual, y))
-    c = sp.expand(residual - a * dy - b * y)
+    c = model.residual.subs({y: 0, dy: 0})  # F(x, 0, 0): the forcing as written, not expanded
     if _is_zero(a):
         raise ModelRefused(f"the derivative d{model.unknown.name}/d{model.variable.name} cancels out: "
                            "the equation is algebraic, not differential", "model.equation")
@@ -46,10 +46,15 @@ def classify(model: Model) -> Classification:
 
 
 def tidy(expr: sp.Expr) -> sp.Expr:
-    """A short form of a coefficient: simplify within budget, otherwise cancel."""
+    """The shortest of the coefficient as divided out, cancelled, and simplified (within budget).
+
+    Ties keep the earlier form, so a term stays as the engineer wrote it unless a rewrite is
+    really shorter: (t - t_p)^2 + w^2 is not expanded into t^2 - 2 t t_p + ...
+    """
     quick = sp.cancel(sp.together(expr))
     simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(quick), quick)
-    return simplified if done and sp.count_ops(simplified) <= sp.count_ops(quick) else quick
+    candidates = [expr, quick] + ([simplified] if done else [])
+    return min(candidates, key=sp.count_ops)
 
 
 def _refuse_nonlinear_terms(residual: sp.Expr, y: sp.Symbol, dy: sp.Symbol, model: Model) -> None:

@@ -101,11 +101,16 @@ class _Builder:
         initial_at = self.point(initial.get("at", f"0 {variable.unit_text}"), variable, "initial.at")
         initial_value = self.point(self.required(initial, "value", "initial.value"), unknown, "initial.value")
         evaluate = self.table("evaluate")
+        evaluate_at = self.points(evaluate, "at", variable)
+        for index, point in enumerate(evaluate_at):
+            if point.si < initial_at.si:
+                raise InputError(f"'{point.text}' lies before the initial point {initial_at.text}; the sheet "
+                                 "solves forward from the initial condition", f"evaluate.at[{index + 1}]")
         return Model(
             path=self.file, sheet=sheet, equation_text=equation_text, equation=equation,
             unknown=unknown, variable=variable, derivative=derivative, lhs=lhs, rhs=rhs,
             parameters=parameters, initial_at=initial_at, initial_value=initial_value,
-            evaluate_at=self.points(evaluate, "at", variable),
+            evaluate_at=evaluate_at,
             reach=self.points(evaluate, "reach", unknown),
             criteria=self.criteria(unknown, variable), unused_parameters=unused,
         )

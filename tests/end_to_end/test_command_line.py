@@ -48,6 +48,7 @@ def test_failing_criterion_exits_1_and_still_writes_the_sheet(tmp_path):
     (GOOD.replace('"10 kohm"', '"10 kohmz"'), "parameters.R"),
     (GOOD.replace("R*C*dv/dt + v = 0", "R*C*dv/dt + v^2/(1 V) = 0"), "model.equation"),
     (GOOD.replace("R*C*dv/dt + v = 0", "R*C*dv/dt + v = 5 A"), "model.equation"),
+    (GOOD.replace('at = ["10 s"]', 'at = ["-5 s"]'), "evaluate.at[1]"),
     (GOOD.replace('value = "400 V"', "value = \"__import__('os').system('touch PWNED')\""), "initial.value"),
 ])
 def test_input_errors_exit_2_with_one_line_and_write_nothing(tmp_path, bad, fragment, monkeypatch):
