@@ -11,7 +11,7 @@ from calcsheet.sheet.document import (Equation, ItemList, Math, Note, Outcome, P
                                       Table, TitleBlock)
 from calcsheet.sheet.quantities import in_units, number, numeric_expression
 from calcsheet.sheet.record import build_record
-from calcsheet.source.units import parse_unit, same_dimension, si_unit
+from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
 
 
 class _Notation:
@@ -100,7 +100,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
         Paragraph(f"The model as stated in the input, with {m.unknown.name} in {m.unknown.unit_text or 'no unit'} "
                   f"as the unknown and {m.variable.name} in {m.variable.unit_text or 'no unit'} as the variable:"),
         Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "as stated"),
-        Table(("Symbol", "Value", "In SI base units", "Source", "Note"), rows, "Parameters"),
+        Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
         Table(("Condition", "Value"), ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
                                          f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}"),),
               "Initial condition"),
@@ -113,11 +113,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
 
 
 def _si_text(p) -> str:
-    return _unit_ascii(p.si_unit)
-
-
-def _unit_ascii(unit) -> str:
-    return "" if str(unit) == "dimensionless" else f"{unit:~C}".replace("**", "^")
+    return unit_label(coherent_si(p.quantity.units))
 
 
 def _classification(d: Derivation, n: _Notation) -> Section:
@@ -223,7 +219,7 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     values = {**m.numeric_values(), **s.initial_values(m)}
     si_y, si_x = _si_unit_text(m.unknown), _si_unit_text(m.variable)
     blocks = [
-        Paragraph(f"Values substituted in SI base units ({m.variable.name} in {si_x or 'no unit'}, "
+        Paragraph(f"Values substituted in SI units ({m.variable.name} in {si_x or 'no unit'}, "
                   f"{m.unknown.name} in {si_y or 'no unit'}); results are converted back to the units asked for."),
         n.eq(n.yx_latex, n.yx_text, numeric_expression(s.particular, values)),
     ]
@@ -295,13 +291,13 @@ def _distinct(*exprs):
 
 def _times(coefficient, y):
     """p*y with p kept together, so the coefficient reads as one factor."""
-    if coefficient.is_Atom or coefficient.is_Pow:
+    if not coefficient.is_Add:
         return coefficient * y
     return sp.Mul(coefficient, y, evaluate=False)
 
 
 def _si_unit_text(declared) -> str:
-    return _unit_ascii(si_unit(declared.unit))
+    return unit_label(coherent_si(declared.unit))
 
 
 def _verification(d: Derivation) -> Section:

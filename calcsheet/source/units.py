@@ -127,3 +127,45 @@ def _power(name: str, exp: float) -> str:
 def _reason(exc: Exception) -> str:
     text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
     return text[:120]
+
+
+# Units that stay as they are when a value is shown in SI: the base units and the coherent
+# derived units with special names (SI Brochure, 9th edition, tables 2 and 4; from memory).
+COHERENT = {
+    "meter", "kilogram", "second", "ampere", "kelvin", "mole", "candela", "radian", "steradian",
+    "hertz", "newton", "pascal", "joule", "watt", "coulomb", "volt", "farad", "ohm", "siemens",
+    "weber", "tesla", "henry",
+}
+
+
+def coherent_si(unit: pint.Unit) -> pint.Unit:
+    """The unit as an engineer writes it in SI: prefixes dropped (kohm -> ohm), named coherent
+    units kept (J/(kg*K) stays), anything else (min, L, degC, rpm) in base units."""
+    ureg = registry()
+    result = ureg.dimensionless
+    for name, exponent in unit._units.items():
+        _, root, _ = ureg.parse_unit_name(name)[0]
+        root = "kilogram" if root == "gram" else root
+        if root in COHERENT:
+            part = ureg.Unit(root)
+        else:
+            part = ureg.Quantity(1, "delta_" + root if root.startswith("degree_") else root).to_base_units().units
+        result = result * part ** exponent
+    return result
+
+
+def unit_label(unit: pint.Unit) -> str:
+    """A compact label: numerator*numerator/(denominator*denominator), powers with ^."""
+    ureg = registry()
+    up, down = [], []
+    for name, exponent in unit._units.items():
+        symbol = f"{ureg.Unit(name):~}"
+        target = up if exponent > 0 else down
+        power = abs(exponent)
+        target.append(symbol if power == 1 else f"{symbol}^{power:g}")
+    if not up and not down:
+        return ""
+    text = "*".join(up) or "1"
+    if down:
+        text += "/" + (down[0] if len(down) == 1 else "(" + "*".join(down) + ")")
+    return text
