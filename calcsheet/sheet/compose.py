@@ -10,6 +10,7 @@ from calcsheet.sheet import cautions
 from calcsheet.sheet.document import (Equation, ItemList, Math, Note, Outcome, Paragraph, Section, Sheet,
                                       Table, TitleBlock)
 from calcsheet.sheet.quantities import in_units, number, numeric_expression
+from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.record import build_record
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
 
@@ -49,7 +50,8 @@ def compose(d: Derivation) -> Sheet:
     steps = [_governing(d, n), _classification(d, n), _standard_form(d, n), _integrating_factor(d, n),
              _integration(d, n), _initial_condition(d, n), _split(d, n), _numbers(d, n), _verification(d)]
     numbered = tuple(Section(s.key, s.title, s.blocks, i + 1) for i, s in enumerate(steps))
-    return Sheet(title_block=_title_block(d), outcome=_outcome(d), sections=(_basis(d),) + numbered,
+    response = Section("response", "Response at a glance", (response_figure(d),))
+    return Sheet(title_block=_title_block(d), outcome=_outcome(d), sections=(response, _basis(d)) + numbered,
                  cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model), record=build_record(d, n),
                  source_name=d.model.path)
 

@@ -53,7 +53,31 @@ class ItemList:
     items: tuple[str, ...]
 
 
-Block = Union[Paragraph, Equation, Table, Note, ItemList]
+@dataclass(frozen=True)
+class Guide:
+    """A horizontal or vertical reference line on a plot: a level or a limit, with its verdict."""
+
+    value: float
+    label: str
+    status: str = ""  # "", "pass" or "fail"
+
+
+@dataclass(frozen=True)
+class Figure:
+    """The response plot, all numbers already in the units the engineer declared."""
+
+    title: str
+    x_label: str
+    y_label: str
+    curve: tuple[tuple[float, float], ...]  # the derived solution
+    independent: tuple[tuple[float, float], ...]  # the independent numerical integration
+    points: tuple[tuple[float, float, str], ...]  # evaluation points (x, y, label)
+    levels: tuple[Guide, ...] = ()  # horizontal: reach levels and limits on the unknown
+    limits: tuple[Guide, ...] = ()  # vertical: limits on the variable
+    caption: str = ""
+
+
+Block = Union[Paragraph, Equation, Table, Note, ItemList, Figure]
 
 
 @dataclass(frozen=True)

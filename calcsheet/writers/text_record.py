@@ -6,7 +6,7 @@ as fields separated by ' | ' and nothing else.
 
 from __future__ import annotations
 
-from calcsheet.sheet.document import Equation, ItemList, Math, Note, Paragraph, Section, Sheet, Table
+from calcsheet.sheet.document import Equation, Figure, ItemList, Math, Note, Paragraph, Section, Sheet, Table
 
 
 def write(sheet: Sheet, style=None) -> str:
@@ -38,6 +38,11 @@ def _block(block) -> list[str]:
     if isinstance(block, Table):
         caption = [f"{block.caption}:"] if block.caption else []
         return caption + ["  " + " | ".join(block.header)] + ["  " + " | ".join(_cell(c) for c in row) for row in block.rows]
+    if isinstance(block, Figure):
+        first, last = block.curve[0][0], block.curve[-1][0]
+        return [f"FIGURE: {block.title}: {block.y_label} against {block.x_label}, from {first:.4g} to {last:.4g}; "
+                f"{len(block.curve)} curve points, {len(block.independent)} independent points, "
+                f"{len(block.levels)} horizontal and {len(block.limits)} vertical guides"]
     raise TypeError(f"no text form for {type(block).__name__}")
 
 
