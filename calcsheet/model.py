@@ -15,8 +15,24 @@ from calcsheet.source import expressions as ex
 
 
 @dataclass(frozen=True)
+class SignOff:
+    """One line of the sign-off block; empty name and date are left to fill by hand."""
+
+    role: str
+    name: str = ""
+    date: str = ""
+
+
+@dataclass(frozen=True)
+class Revision:
+    revision: str
+    date: str
+    description: str
+
+
+@dataclass(frozen=True)
 class SheetInfo:
-    """The title block and the free-text parts of ``[sheet]``."""
+    """The title block and the document parts: ``[sheet]``, ``[signoff]``, ``[[revisions]]``."""
 
     title: str
     number: str = ""
@@ -26,6 +42,10 @@ class SheetInfo:
     purpose: str = ""
     references: tuple[str, ...] = ()
     assumptions: tuple[str, ...] = ()
+    date: str = ""  # ISO date of this issue of the sheet, if stated
+    style: str = ""  # house style folder, relative to the input file
+    signoff: tuple[SignOff, ...] = ()
+    revisions: tuple[Revision, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -92,6 +112,7 @@ class Model:
     evaluate_at: tuple[Point, ...] = ()
     reach: tuple[Point, ...] = ()
     criteria: tuple[Criterion, ...] = ()
+    plot_to: Point | None = None  # end of the plotted range, when the input sets it
     unused_parameters: tuple[str, ...] = field(default=())
 
     @property

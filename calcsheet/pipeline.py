@@ -9,7 +9,7 @@ from pathlib import Path
 
 from calcsheet.errors import InputError
 
-DEFAULT_FORMATS = ("html", "json", "txt")
+DEFAULT_FORMATS = ("html", "pdf", "json", "txt")
 
 
 @dataclass(frozen=True)
@@ -30,14 +30,14 @@ def build_sheet(path: Path) -> Built:
     return Built(path, derivation, compose(derivation))
 
 
-def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[str, str]:
+def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[str, str | bytes]:
     """Every requested format as text, all in memory before anything touches the disk."""
     from calcsheet.writers import writer_for
 
     return {fmt: writer_for(fmt)(sheet, style) for fmt in formats}
 
 
-def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str]) -> list[Path]:
+def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str | bytes]) -> list[Path]:
     """Write each output to a temporary file in ``out_dir`` and rename it into place."""
     out_dir.mkdir(parents=True, exist_ok=True)
     written = []
@@ -45,8 +45,9 @@ def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str]) -> list[Pa
         target = out_dir / f"{stem}.{fmt}"
         handle, temporary = tempfile.mkstemp(dir=out_dir, prefix=f".{stem}.", suffix=".part")
         try:
-            with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as stream:
-                stream.write(text)
+            with os.fdopen(handle, "wb") as stream:
+                stream.write(text if isinstance(text, bytes) else text.encode("utf-8"))
+            os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes 0600; outputs are ordinary files
             os.replace(temporary, target)
         except BaseException:
             Path(temporary).unlink(missing_ok=True)
@@ -79,3 +80,9 @@ def parse_formats(text: str, known: tuple[str, ...]) -> tuple[str, ...]:
         raise InputError(f"unknown format '{unknown[0] if unknown else text}' (choose from {', '.join(known)})",
                          key="--format")
     return formats
+
+
+def _umask() -> int:
+    current = os.umask(0)
+    os.umask(current)
+    return current

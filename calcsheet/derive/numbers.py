@@ -78,6 +78,8 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     if singular is not None and (domain_end is None or singular < domain_end):
         domain_end = singular
     final, final_note = _final_value(model, cls, solution, values, p_value)
+    if model.plot_to is not None:
+        span_end = model.plot_to.si
     if domain_end is not None:
         span_end = min(span_end, domain_end)
     points = tuple(ValueAt(pt, y(pt.si)) for pt in model.evaluate_at)

@@ -21,12 +21,13 @@ PRESSURE = ("Stored pressure energy: do not open or work on the system until it 
             "depressurised according to the local pressure-equipment rules.")
 
 
-def hazard_notes(model: Model) -> tuple[str, ...]:
+def hazard_notes(model: Model, response: tuple[float, ...] = ()) -> tuple[str, ...]:
+    """Hazard notes for what the model holds; ``response`` is the unknown's computed values (SI)."""
     dims = {_dim(p.quantity.units) for p in model.parameters} | {_dim(model.unknown.unit)}
     notes = []
     if dims & {_dim("V"), _dim("A"), _dim("F"), _dim("H"), _dim("C")}:
         notes.append(ELECTRICAL)
-    if _dim(model.unknown.unit) == _dim("K") and _hottest(model) > HOT_SURFACE_KELVIN:
+    if _dim(model.unknown.unit) == _dim("K") and max((_hottest(model),) + tuple(response)) > HOT_SURFACE_KELVIN:
         notes.append(HEAT)
     if dims & {_dim("Pa")}:
         notes.append(PRESSURE)

@@ -52,8 +52,18 @@ def compose(d: Derivation) -> Sheet:
     numbered = tuple(Section(s.key, s.title, s.blocks, i + 1) for i, s in enumerate(steps))
     response = Section("response", "Response at a glance", (response_figure(d),))
     return Sheet(title_block=_title_block(d), outcome=_outcome(d), sections=(response, _basis(d)) + numbered,
-                 cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model), record=build_record(d, n),
+                 cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)), signoff=d.model.sheet.signoff,
+                 revisions=d.model.sheet.revisions, metadata=_metadata(d), record=build_record(d, n),
                  source_name=d.model.path)
+
+
+def _metadata(d: Derivation) -> tuple[tuple[str, str], ...]:
+    info = d.model.sheet
+    subject = f"Calculation {info.number}" + (f", revision {info.revision}" if info.revision else "") if info.number else ""
+    date = info.date or max((r.date for r in info.revisions if r.date), default="")
+    pairs = (("title", info.title), ("author", info.originator), ("subject", subject),
+             ("keywords", info.number), ("date", date))
+    return tuple((k, v) for k, v in pairs if v)
 
 
 # ----------------------------------------------------------------------------- front matter

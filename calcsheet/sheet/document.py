@@ -5,6 +5,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Union
 
+from calcsheet.model import Revision, SignOff
+
 
 @dataclass(frozen=True)
 class Math:
@@ -111,6 +113,8 @@ class Sheet:
     outcome: Outcome
     sections: tuple[Section, ...]
     cautions: tuple[str, ...]
-    signoff_roles: tuple[str, ...] = ("Prepared", "Checked", "Approved")
+    signoff: tuple[SignOff, ...] = ()
+    revisions: tuple[Revision, ...] = ()
+    metadata: tuple[tuple[str, str], ...] = ()  # document properties: title, author, subject, date
     record: dict = field(default_factory=dict)  # structured results for the JSON record
     source_name: str = ""

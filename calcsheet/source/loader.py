@@ -16,18 +16,23 @@ import sympy as sp
 from calcsheet.errors import CalcsheetError, InputError, ModelRefused
 from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetInfo
 from calcsheet.source import expressions as ex
-from calcsheet.source import units
+from calcsheet.source import sheet_keys, units
 from calcsheet.source.dimensions import check_equation
 from calcsheet.source.symbolic import to_sympy
 
 TABLES = {
-    "sheet": {"title", "number", "revision", "project", "originator", "purpose", "references", "assumptions"},
+    "sheet": {"title", "number", "revision", "project", "originator", "purpose", "references", "assumptions",
+              "date", "style"},
     "model": {"equation", "unknown", "variable"},
     "parameters": None,  # any parameter name
     "initial": {"at", "value"},
     "evaluate": {"at", "reach"},
     "criteria": {"text", "check"},
+    "plot": {"to"},
+    "signoff": set(sheet_keys.ROLES),
+    "revisions": {"revision", "date", "description"},
 }
+LISTS = {"criteria", "revisions"}  # written as [[name]]
 RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | {"reach", "final_value", "time_constant"}
 _DECLARED = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\[\s*(.*?)\s*\]\s*$")
 _CHECK = re.compile(
@@ -113,6 +118,7 @@ class _Builder:
             evaluate_at=evaluate_at,
             reach=self.points(evaluate, "reach", unknown),
             criteria=self.criteria(unknown, variable), unused_parameters=unused,
+            plot_to=self.plot_end(initial_at, variable),
         )
 
     # ----------------------------------------------------------------- tables and keys
@@ -123,7 +129,7 @@ class _Builder:
                 errors.append(InputError(f"unknown table (expected one of: {', '.join(TABLES)})", key))
                 continue
             allowed = TABLES[key]
-            if isinstance(value, list) and key != "criteria":
+            if isinstance(value, list) and key not in LISTS:
                 errors.append(InputError(f"must be a table: write [{key}], not [[{key}]]", key))
                 continue
             entries = value if isinstance(value, list) else [value]
@@ -134,8 +140,9 @@ class _Builder:
                 elif allowed is not None:
                     errors.extend(InputError(f"unknown key (expected one of: {', '.join(sorted(allowed))})",
                                              f"{where}.{k}") for k in entry if k not in allowed)
-        if "criteria" in self.raw and not isinstance(self.raw["criteria"], list):
-            errors.append(InputError("write criteria as [[criteria]] tables", "criteria"))
+        for key in LISTS:
+            if key in self.raw and not isinstance(self.raw[key], list):
+                errors.append(InputError(f"write {key} as [[{key}]] tables", key))
         if errors:
             raise ErrorList(errors)
 
@@ -178,7 +185,11 @@ class _Builder:
         if not title:
             raise InputError("must not be empty", "sheet.title")
         return SheetInfo(title=title, references=self.strings(table, "references", "sheet.references"),
-                         assumptions=self.strings(table, "assumptions", "sheet.assumptions"), **text)
+                         assumptions=self.strings(table, "assumptions", "sheet.assumptions"),
+                         date=sheet_keys.iso_date(table.get("date", ""), "sheet.date"),
+                         style=self.string(table, "style", "sheet.style"),
+                         signoff=sheet_keys.signoff(self.raw.get("signoff", {}), text["originator"]),
+                         revisions=sheet_keys.revisions(self.raw.get("revisions", [])), **text)
 
     def declared(self, table: dict, key: str) -> Declared:
         where = f"model.{key}"
@@ -239,6 +250,15 @@ class _Builder:
         if not isinstance(raw, list):
             raw = [raw]
         return tuple(self.point(item, like, f"evaluate.{key}[{i + 1}]") for i, item in enumerate(raw))
+
+    def plot_end(self, initial_at: Point, variable: Declared) -> Point | None:
+        table = self.table("plot")
+        if "to" not in table:
+            return None
+        end = self.point(table["to"], variable, "plot.to")
+        if end.si <= initial_at.si:
+            raise InputError(f"'{end.text}' must lie after the initial point {initial_at.text}", "plot.to")
+        return end
 
     def criteria(self, unknown: Declared, variable: Declared) -> tuple[Criterion, ...]:
         result = []

@@ -1,4 +1,7 @@
-"""The self-contained HTML sheet: Jinja2 template (autoescaped), inlined CSS, MathML equations."""
+"""The self-contained HTML sheet: Jinja2 template (autoescaped), inlined CSS, MathML equations.
+
+The PDF writer renders the same template with ``medium="print"`` and its own math filters.
+"""
 
 from __future__ import annotations
 
@@ -10,14 +13,24 @@ from calcsheet.writers.styles import environment, read_css
 
 
 def write(sheet: doc.Sheet, style=None) -> str:
+    from calcsheet.writers.plot import figure_svg
+
+    return render_html(sheet, style, "screen", {
+        "math": lambda m: Markup(to_mathml(m.latex)),
+        "display_math": lambda m: Markup(to_mathml(m.latex, display=True)),
+        "figure": lambda f: Markup(figure_svg(f)),
+    }, created=dict(sheet.metadata).get("date", ""))
+
+
+def render_html(sheet: doc.Sheet, style, medium: str, filters: dict, extra_css: str = "", created: str = "") -> str:
     env = environment(style)
-    env.filters["math"] = lambda m: Markup(to_mathml(m.latex))
-    env.filters["display_math"] = lambda m: Markup(to_mathml(m.latex, display=True))
+    env.filters.update(filters)
     env.filters["kind"] = _kind
     template = env.get_template("sheet.html.j2")
-    return template.render(sheet=sheet, css=Markup(read_css(env, "sheet.css")))
+    css = read_css(env, "sheet.css") + ("\n" + read_css(env, "print.css") if medium == "print" else "")
+    return template.render(sheet=sheet, medium=medium, css=Markup(css + extra_css), created=created)
 
 
 def _kind(node) -> str:
     return {doc.Paragraph: "paragraph", doc.Equation: "equation", doc.Table: "table", doc.Note: "note",
-            doc.ItemList: "list", doc.Math: "math"}.get(type(node), "text")
+            doc.ItemList: "list", doc.Math: "math", doc.Figure: "figure"}.get(type(node), "text")

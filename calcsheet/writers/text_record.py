@@ -15,8 +15,11 @@ def write(sheet: Sheet, style=None) -> str:
     lines += ["", f"OUTCOME: {sheet.outcome.text}"] + [f"  {line}" for line in sheet.outcome.lines]
     for section in sheet.sections:
         lines += ["", _heading(section)] + [line for block in section.blocks for line in _block(block)]
+    if sheet.revisions:
+        lines += ["", "REVISIONS"] + [f"  {r.revision} | {r.date or '-'} | {r.description}" for r in sheet.revisions]
+    lines += ["", "SIGN-OFF"] + [f"  {s.role}: name {s.name or '______'}  date {s.date or '______'}"
+                                 for s in sheet.signoff]
     lines += ["", "CAUTION"] + [f"  {c}" for c in sheet.cautions]
-    lines += ["", "SIGN-OFF"] + [f"  {role}: name ______  date ______" for role in sheet.signoff_roles]
     return "\n".join(lines) + "\n"
 
 

@@ -263,13 +263,13 @@ def test_several_parameter_errors_are_reported_together_one_per_line(tmp_path):
 
 
 def test_several_unknown_tables_are_reported_together(tmp_path):
-    path = write(tmp_path, toml(extra="[solver]\nx = 1\n[plot]\ny = 2\n"))
+    path = write(tmp_path, toml(extra="[solver]\nx = 1\n[graph]\ny = 2\n"))
     with pytest.raises(ErrorList) as info:
         load_model(path)
     lines = str(info.value).splitlines()
     assert lines == [
-        f"{path}: solver: unknown table (expected one of: sheet, model, parameters, initial, evaluate, criteria)",
-        f"{path}: plot: unknown table (expected one of: sheet, model, parameters, initial, evaluate, criteria)",
+        f"{path}: solver: unknown table (expected one of: sheet, model, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
+        f"{path}: graph: unknown table (expected one of: sheet, model, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
     ]
 
 
