@@ -22,8 +22,9 @@ def main() -> None:
 @main.command()
 @click.argument("inputs", nargs=-1, required=True)
 @click.option("--out", "out_dir", default="out", show_default=True, help="Folder for the outputs.")
-@click.option("--format", "formats", default=None, help="Comma-separated: html,json,txt (default: all).")
-@click.option("--style", default=None, help="Folder of a house style overriding the default templates and CSS.")
+@click.option("--format", "formats", default=None, help="Comma-separated: html,pdf,json,txt (default: all).")
+@click.option("--style", default=None,
+              help="Folder of a house style overriding the default templates and CSS (wins over [sheet] style).")
 def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None) -> None:
     """Build a sheet for each INPUT (file or folder of .toml files) into --out."""
     from calcsheet.pipeline import DEFAULT_FORMATS, parse_formats, render, write_outputs
@@ -33,7 +34,8 @@ def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str
     style_dir = _guard(lambda: _style(style))
 
     def one(built) -> int:
-        rendered = render(built.sheet, chosen, style_dir)
+        house = style_dir or (Path(built.sheet.style) if built.sheet.style else None)
+        rendered = render(built.sheet, chosen, house)
         written = write_outputs(Path(out_dir), built.path.stem, rendered)
         click.echo(f"{built.path}: {_summary(built.derivation)} -> {', '.join(str(w) for w in written)}")
         return EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED

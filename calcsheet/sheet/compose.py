@@ -54,7 +54,7 @@ def compose(d: Derivation) -> Sheet:
     return Sheet(title_block=_title_block(d), outcome=_outcome(d), sections=(response, _basis(d)) + numbered,
                  cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)), signoff=d.model.sheet.signoff,
                  revisions=d.model.sheet.revisions, metadata=_metadata(d), record=build_record(d, n),
-                 source_name=d.model.path)
+                 source_name=d.model.path, style=d.model.sheet.style)
 
 
 def _metadata(d: Derivation) -> tuple[tuple[str, str], ...]:

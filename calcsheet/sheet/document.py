@@ -118,3 +118,4 @@ class Sheet:
     metadata: tuple[tuple[str, str], ...] = ()  # document properties: title, author, subject, date
     record: dict = field(default_factory=dict)  # structured results for the JSON record
     source_name: str = ""
+    style: str = ""  # house style folder named by the input, already resolved to a path

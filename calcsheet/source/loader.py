@@ -187,9 +187,18 @@ class _Builder:
         return SheetInfo(title=title, references=self.strings(table, "references", "sheet.references"),
                          assumptions=self.strings(table, "assumptions", "sheet.assumptions"),
                          date=sheet_keys.iso_date(table.get("date", ""), "sheet.date"),
-                         style=self.string(table, "style", "sheet.style"),
+                         style=self.style_folder(self.string(table, "style", "sheet.style")),
                          signoff=sheet_keys.signoff(self.raw.get("signoff", {}), text["originator"]),
                          revisions=sheet_keys.revisions(self.raw.get("revisions", [])), **text)
+
+    def style_folder(self, text: str) -> str:
+        """A house style folder, relative to the input file; it must exist."""
+        if not text:
+            return ""
+        folder = Path(self.file).parent / text
+        if not folder.is_dir():
+            raise InputError(f"no style folder '{text}' next to the input (looked for {folder})", "sheet.style")
+        return str(folder)
 
     def declared(self, table: dict, key: str) -> Declared:
         where = f"model.{key}"

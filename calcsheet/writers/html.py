@@ -27,7 +27,7 @@ def render_html(sheet: doc.Sheet, style, medium: str, filters: dict, extra_css: 
     env.filters.update(filters)
     env.filters["kind"] = _kind
     template = env.get_template("sheet.html.j2")
-    css = read_css(env, "sheet.css") + ("\n" + read_css(env, "print.css") if medium == "print" else "")
+    css = read_css(style, "sheet.css") + ("\n" + read_css(style, "print.css") if medium == "print" else "")
     return template.render(sheet=sheet, medium=medium, css=Markup(css + extra_css), created=created)
 
 

@@ -17,14 +17,28 @@ def default_style_dir() -> Path:
 
 
 def environment(style: Path | None = None) -> jinja2.Environment:
-    """Templates from ``style`` first, then the default style for anything it does not override."""
-    folders = ([str(style)] if style else []) + [str(default_style_dir())]
-    return jinja2.Environment(loader=jinja2.FileSystemLoader(folders), autoescape=True,
+    """Templates from ``style`` first, then the default style for anything it does not override.
+
+    The default templates are also reachable as ``default/<name>``, so a house template can
+    ``{% extends "default/sheet.html.j2" %}`` and replace only the blocks it cares about.
+    """
+    default = str(default_style_dir())
+    folders = ([str(style)] if style else []) + [default]
+    loader = jinja2.ChoiceLoader([
+        jinja2.FileSystemLoader(folders),
+        jinja2.PrefixLoader({"default": jinja2.FileSystemLoader(default)}),
+    ])
+    return jinja2.Environment(loader=loader, autoescape=True,
                               undefined=jinja2.StrictUndefined, trim_blocks=True, lstrip_blocks=True,
                               keep_trailing_newline=True)
 
 
-def read_css(env: jinja2.Environment, name: str) -> str:
-    """CSS text from the first folder that has it (the loader's search order)."""
-    source, _, _ = env.loader.get_source(env, name)
-    return source
+def read_css(style: Path | None, name: str) -> str:
+    """The default CSS file, followed by the house style's file of the same name if it has one.
+
+    CSS cascades, so a house style only writes the rules it changes.
+    """
+    parts = [(default_style_dir() / name).read_text(encoding="utf-8")]
+    if style is not None and (Path(style) / name).is_file():
+        parts.append((Path(style) / name).read_text(encoding="utf-8"))
+    return "\n".join(parts)
