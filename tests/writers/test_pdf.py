@@ -1,0 +1,138 @@
+"""The paged PDF: equations fit the column, bytes are reproducible, heads, metadata, fonts, styles."""
+
+from __future__ import annotations
+
+import io
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from pypdf import PdfReader
+
+from calcsheet.pipeline import build_sheet, render
+from calcsheet.sheet.document import Equation
+from calcsheet.writers import pdf, svgmath
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+# A4 is 210 mm wide; print.css sets 16 mm side margins, a 6 mm indent, the 140 mm equation column
+# and a 24 mm label column beside it.
+CONTENT_MM = 210 - 2 * 16
+
+
+@pytest.fixture(scope="module")
+def sheets():
+    return {demo.stem: build_sheet(demo).sheet for demo in DEMOS}
+
+
+@pytest.fixture(scope="module")
+def pdfs(sheets):
+    return {name: render(sheet, ("pdf",))["pdf"] for name, sheet in sheets.items()}
+
+
+def test_equation_column_fits_inside_the_page():
+    assert 6 + pdf.EQUATION_WIDTH_MM + 24 <= CONTENT_MM
+
+
+def test_every_equation_fits_the_column_at_a_readable_size(sheets):
+    checked = 0
+    for name, sheet in sheets.items():
+        for section in sheet.sections:
+            for block in section.blocks:
+                if not isinstance(block, Equation):
+                    continue
+                lines, scale = svgmath.lines_for(block.math.latex, pdf.EQUATION_WIDTH_PX)
+                widest = max(svgmath.render(line).width for line in lines) * scale
+                assert widest <= pdf.EQUATION_WIDTH_PX + 1e-6, (name, block.math.text)
+                assert scale >= svgmath.SMALLEST_SCALE, (name, block.math.text, scale)
+                checked += 1
+    assert checked > 40
+
+
+def test_a_long_equation_is_broken_at_equals_then_plus():
+    terms = " + ".join(f"a_{{{i}}} e^{{- \\frac{{t}}{{\\tau_{{{i}}}}}}}" for i in range(14))
+    latex = f"y\\left(t\\right) = {terms} = z"
+    lines, scale = svgmath.lines_for(latex, 300)
+    assert len(lines) > 2 and scale == 1.0
+    assert all(svgmath.render(line).width <= 300 for line in lines)
+    assert lines[1].startswith(r"\quad +")
+
+
+def test_same_input_same_pdf_bytes(sheets, pdfs):
+    name = DEMOS[0].stem
+    assert render(sheets[name], ("pdf",))["pdf"] == pdfs[name]
+
+
+def test_pdf_creation_date_comes_from_source_date_epoch(sheets, monkeypatch):
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1700000000")  # 2023-11-14 UTC
+    reader = PdfReader(io.BytesIO(render(sheets[DEMOS[0].stem], ("pdf",))["pdf"]))
+    assert reader.metadata.get("/CreationDate", "").startswith("D:20231114")
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+def test_pages_carry_the_title_block_and_page_n_of_m(pdfs, sheets, demo):
+    reader = PdfReader(io.BytesIO(pdfs[demo.stem]))
+    fields = dict(sheets[demo.stem].title_block.fields)
+    total = len(reader.pages)
+    assert total >= 2
+    for number, page in enumerate(reader.pages, start=1):
+        text = page.extract_text()
+        assert f"Page {number} of {total}" in text
+        assert f"Calculation {fields['Calculation']}" in text and f"Revision {fields['Revision']}" in text
+    last = reader.pages[-1].extract_text()
+    assert "Sign-off" in last and "licensed engineer" in last
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+def test_metadata_and_embedded_fonts(pdfs, sheets, demo):
+    reader = PdfReader(io.BytesIO(pdfs[demo.stem]))
+    info = sheets[demo.stem].title_block
+    fields = dict(info.fields)
+    assert reader.metadata.title == info.title
+    assert reader.metadata.author == fields["Originator"]
+    assert fields["Calculation"] in reader.metadata.subject
+    fonts = []
+    for page in reader.pages:
+        for font in (page["/Resources"].get("/Font") or {}).values():
+            descriptor = font.get_object().get("/FontDescriptor")
+            if descriptor is None:
+                for child in font.get_object().get("/DescendantFonts", []):
+                    descriptor = child.get_object().get("/FontDescriptor")
+            fonts.append(descriptor is not None and any(k in descriptor for k in ("/FontFile", "/FontFile2", "/FontFile3")))
+    assert fonts and all(fonts), "every font is embedded"
+
+
+def test_no_pdf_or_plot_libraries_for_records_only(tmp_path):
+    """Start-up stays light: json and txt never import WeasyPrint or matplotlib."""
+    code = (
+        "import sys; from click.testing import CliRunner; from calcsheet.cli import main; "
+        f"r = CliRunner().invoke(main, ['build', {str(DEMOS[0])!r}, '--format', 'json,txt', '--out', {str(tmp_path)!r}]); "
+        "assert r.exit_code == 0, r.output; "
+        "print(sorted(m for m in ('weasyprint', 'matplotlib', 'ziamath') if m in sys.modules))"
+    )
+    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert result.stdout.strip() == "[]"
+
+
+def test_signoff_and_revisions_from_the_input(tmp_path):
+    text = (ROOT / "inputs" / "bus-capacitor-bleed-down.toml").read_text(encoding="utf-8")
+    text += ('\n[signoff]\nprepared = { name = "P. Person", date = "2026-11-30" }\nchecked = "C. Checker"\n'
+             '\n[[revisions]]\nrevision = "A"\ndate = "2026-11-30"\ndescription = "First issue"\n')
+    path = tmp_path / "signed.toml"
+    path.write_text(text, encoding="utf-8")
+    sheet = build_sheet(path).sheet
+    reader = PdfReader(io.BytesIO(render(sheet, ("pdf",))["pdf"]))
+    last = reader.pages[-1].extract_text()
+    for expected in ("P. Person", "2026-11-30", "C. Checker", "First issue", "Revisions"):
+        assert expected in last
+    assert reader.metadata.get("/CreationDate", "").startswith("D:20261130")
+
+
+def test_house_style_overrides_and_inherits(tmp_path):
+    style = ROOT / "styles" / "example-firm"
+    sheet = build_sheet(DEMOS[0]).sheet
+    html = render(sheet, ("html",), style)["html"]
+    assert "Northgate Consulting Engineers" in html  # the firm's title block
+    assert "Step 9" in html and "Sign-off" in html  # inherited from the default template
+    assert "--ink: #12263a" in html and "--pass: #1d6b35" in html  # firm CSS after the default CSS
