@@ -130,9 +130,21 @@ def test_signoff_and_revisions_from_the_input(tmp_path):
 
 
 def test_house_style_overrides_and_inherits(tmp_path):
-    style = ROOT / "styles" / "example-firm"
+    style = ROOT / "styles" / "example_firm"
     sheet = build_sheet(DEMOS[0]).sheet
     html = render(sheet, ("html",), style)["html"]
     assert "Northgate Consulting Engineers" in html  # the firm's title block
     assert "Step 9" in html and "Sign-off" in html  # inherited from the default template
     assert "--ink: #12263a" in html and "--pass: #1d6b35" in html  # firm CSS after the default CSS
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+def test_no_page_ends_with_a_step_heading(pdfs, demo):
+    """A step's heading never stands at the foot of a page, away from what it introduces."""
+    import re
+
+    reader = PdfReader(io.BytesIO(pdfs[demo.stem]))
+    for number, page in enumerate(reader.pages[:-1], start=1):
+        body = [line for line in page.extract_text().splitlines()
+                if line.strip() and "Prepared with calcsheet" not in line]
+        assert not re.match(r"^Step \d+\b", body[-1]), f"page {number} ends with '{body[-1]}'"
