@@ -113,6 +113,7 @@ class Model:
     reach: tuple[Point, ...] = ()
     criteria: tuple[Criterion, ...] = ()
     plot_to: Point | None = None  # end of the plotted range, when the input sets it
+    kind: object = None  # a kinds.base.KindUse when the input named a model kind
     unused_parameters: tuple[str, ...] = field(default=())
 
     @property

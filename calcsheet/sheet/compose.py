@@ -108,9 +108,11 @@ def _governing(d: Derivation, n: _Notation) -> Section:
     m = d.model
     rows = tuple((Math(latex(p.symbol), p.name), p.text, f"{number(p.si)} {_si_text(p)}".rstrip(),
                   p.source or "not stated", p.note) for p in m.parameters)
-    blocks = [
-        Paragraph(f"The model as stated in the input, with {m.unknown.name} in {m.unknown.unit_text or 'no unit'} "
-                  f"as the unknown and {m.variable.name} in {m.variable.unit_text or 'no unit'} as the variable:"),
+    blocks = _kind_blocks(m.kind) if m.kind else []
+    blocks += [
+        Paragraph(f"The model {'this gives' if m.kind else 'as stated in the input'}, with {m.unknown.name} in "
+                  f"{m.unknown.unit_text or 'no unit'} as the unknown and {m.variable.name} in "
+                  f"{m.variable.unit_text or 'no unit'} as the variable:"),
         Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "as stated"),
         Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
         Table(("Condition", "Value"), ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
@@ -122,6 +124,18 @@ def _governing(d: Derivation, n: _Notation) -> Section:
     if m.unused_parameters:
         blocks.append(Note("warning", f"Stated but not used in the equation: {', '.join(m.unused_parameters)}."))
     return Section("governing", "Governing equation and data", tuple(blocks))
+
+
+def _kind_blocks(use) -> list:
+    """The governing law of a model kind, derived down to its equation, with its assumptions."""
+    blocks = [Paragraph(f"Model kind: {use.title} ({use.name}). Governing law: {use.law}.")]
+    blocks += [Equation(Math(tex, text), "law" if i == 0 else "") for i, (tex, text) in enumerate(use.law_steps)]
+    if use.forcing:
+        blocks.append(Paragraph(f"Forcing: {use.forcing}."))
+    blocks += [Paragraph("Assumptions of this kind:"), ItemList(use.assumptions)]
+    blocks += [Note("warning" if note.startswith("WARNING") else "method", note.removeprefix("WARNING: "))
+               for note in use.notes]
+    return blocks
 
 
 def _si_text(p) -> str:

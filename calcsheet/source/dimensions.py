@@ -55,6 +55,8 @@ class _Analyser:
         inner = self.unit(node.argument)
         if node.function in ("sqrt", "abs"):
             return inner ** 0.5 if node.function == "sqrt" else inner
+        if node.function == "step":  # step(t - t_1): any dimension in, a pure number out
+            return registry().dimensionless
         if not _dimensionless(inner):
             raise InputError(
                 f"the argument of {node.function}() must be dimensionless, but "

@@ -24,7 +24,7 @@ from calcsheet.errors import InputError
 
 FUNCTIONS = (
     "exp", "log", "ln", "log10", "sqrt", "sin", "cos", "tan", "asin", "acos", "atan",
-    "arcsin", "arccos", "arctan", "sinh", "cosh", "tanh", "abs", "erf",
+    "arcsin", "arccos", "arctan", "sinh", "cosh", "tanh", "abs", "erf", "step",
 )
 CONSTANTS = ("pi",)
 NAME_PATTERN = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")

@@ -16,14 +16,17 @@ import sympy as sp
 from calcsheet.errors import CalcsheetError, InputError, ModelRefused
 from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetInfo
 from calcsheet.source import expressions as ex
+from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.source import sheet_keys, units
+from calcsheet.source.loader_support import declared_parts
 from calcsheet.source.dimensions import check_equation
 from calcsheet.source.symbolic import to_sympy
 
 TABLES = {
     "sheet": {"title", "number", "revision", "project", "originator", "purpose", "references", "assumptions",
               "date", "style"},
-    "model": {"equation", "unknown", "variable"},
+    "model": {"equation", "unknown", "variable", "kind"},
+    "forcing": None,  # keys depend on the form; checked in kinds/forcing.py
     "parameters": None,  # any parameter name
     "initial": {"at", "value"},
     "evaluate": {"at", "reach"},
@@ -34,7 +37,6 @@ TABLES = {
 }
 LISTS = {"criteria", "revisions"}  # written as [[name]]
 RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | {"reach", "final_value", "time_constant"}
-_DECLARED = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\[\s*(.*?)\s*\]\s*$")
 _CHECK = re.compile(
     r"^\s*(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\(\s*(?P<argument>[^()]*?)\s*\))?\s*"
     r"(?P<op><=|>=|<|>)\s*(?P<limit>.+?)\s*$"
@@ -90,6 +92,12 @@ class _Builder:
         self.check_keys()
         sheet = self.sheet_info()
         model_table = self.table("model", required=True)
+        kind_use = None
+        if "kind" in model_table:
+            model_table, kind_use = self.apply_kind(model_table)
+        elif "forcing" in self.raw:
+            raise InputError("a [forcing] table goes with a model kind; in an equation, write the "
+                             "function of the variable directly", "forcing")
         unknown = self.declared(model_table, "unknown")
         variable = self.declared(model_table, "variable")
         if unknown.name == variable.name:
@@ -119,6 +127,7 @@ class _Builder:
             reach=self.points(evaluate, "reach", unknown),
             criteria=self.criteria(unknown, variable), unused_parameters=unused,
             plot_to=self.plot_end(initial_at, variable),
+            kind=kind_use and kind_checks(kind_use, parameters),
         )
 
     # ----------------------------------------------------------------- tables and keys
@@ -203,10 +212,7 @@ class _Builder:
     def declared(self, table: dict, key: str) -> Declared:
         where = f"model.{key}"
         text = self.string(table, key, where, required=True)
-        match = _DECLARED.match(text)
-        if not match:
-            raise InputError(f"'{text}' must be a name and a unit in brackets, e.g. \"v [V]\"", where)
-        name, unit_text = match.groups()
+        name, unit_text = declared_parts(text, where)
         if name in RESERVED or "__" in name:
             raise InputError(f"'{name}' is a reserved name", where)
         unit = _wrap_key(lambda: units.parse_unit(unit_text), where)
@@ -259,6 +265,12 @@ class _Builder:
         if not isinstance(raw, list):
             raw = [raw]
         return tuple(self.point(item, like, f"evaluate.{key}[{i + 1}]") for i, item in enumerate(raw))
+
+    def apply_kind(self, model_table: dict):
+        """Replace a kind by its equation and checked parameters, and remember what to say about it."""
+        expanded = expand_kind(model_table, self.raw.get("parameters", {}), self.raw.get("forcing"))
+        self.raw = {**self.raw, "parameters": expanded.parameters}
+        return expanded.model_table, expanded.use
 
     def plot_end(self, initial_at: Point, variable: Declared) -> Point | None:
         table = self.table("plot")

@@ -14,6 +14,7 @@ _FUNCTIONS: Mapping[str, Callable] = {
     "sin": sp.sin, "cos": sp.cos, "tan": sp.tan, "asin": sp.asin, "acos": sp.acos,
     "atan": sp.atan, "sinh": sp.sinh, "cosh": sp.cosh, "tanh": sp.tanh, "abs": sp.Abs,
     "erf": sp.erf,
+    "step": sp.Heaviside,  # unit step: 0 before its argument reaches 0, 1 after
 }
 
 

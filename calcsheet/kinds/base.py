@@ -1,0 +1,62 @@
+"""What a kind is made of, and how an input that names one becomes an ordinary equation."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Callable
+
+from calcsheet.errors import InputError
+from calcsheet.source import units
+
+
+@dataclass(frozen=True)
+class Slot:
+    """A named quantity of a kind: its symbol, a unit showing its dimension, what it means."""
+
+    name: str
+    unit: str
+    meaning: str
+    example: str = ""
+    default: str | None = None  # an optional slot takes this value when the input leaves it out
+
+
+@dataclass(frozen=True)
+class Kind:
+    name: str
+    title: str
+    summary: str
+    law: str  # the physical law, named as the trade names it
+    unknown: Slot
+    variable: Slot
+    slots: tuple[Slot, ...]
+    equation: str  # in the input notation, using the slot names
+    law_steps: tuple[tuple[str, str], ...]  # (LaTeX, plain text): from the law to the equation
+    assumptions: tuple[str, ...]
+    source: str = ""  # the slot a [forcing] table may replace by a function of the variable
+    checks: Callable[[dict[str, float]], tuple[str, ...]] = field(default=lambda values: ())
+    starter: str = ""  # the rest of a starter input for `calcsheet new` ([sheet], values, requests)
+
+    def slot(self, name: str) -> Slot:
+        return next(s for s in self.slots if s.name == name)
+
+
+@dataclass(frozen=True)
+class KindUse:
+    """What the sheet says about the kind an input used."""
+
+    name: str
+    title: str
+    law: str
+    law_steps: tuple[tuple[str, str], ...]
+    assumptions: tuple[str, ...]
+    notes: tuple[str, ...] = ()  # validity checks and warnings, already worded
+    forcing: str = ""  # the forcing form in words, if a [forcing] table was given
+    frequency: str = ""  # the parameter holding a sinusoidal forcing's frequency
+
+
+def check_slot_dimension(kind: Kind, slot: Slot, quantity, where: str) -> None:
+    expected = units.parse_unit(slot.unit)
+    if not units.same_dimension(quantity.units, expected):
+        raise InputError(
+            f"kind {kind.name} expects {slot.name} ({slot.meaning}) with the dimension of {slot.unit} "
+            f"({units.dimension_text(expected)}), got {units.dimension_text(quantity.units)}", where)

@@ -1,0 +1,115 @@
+"""Forcing forms: a [forcing] table turns a kind's source into a function of the variable.
+
+Each form names its values in words (amplitude, frequency, ...). They become parameters named
+after the source (``V_s_amp``), so they appear in the parameter table with their units, and the
+form becomes an expression in the input notation that goes through the ordinary parser.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from calcsheet.errors import InputError
+from calcsheet.source import units
+
+
+@dataclass(frozen=True)
+class Role:
+    key: str  # the key in [forcing]
+    suffix: str  # the parameter becomes <source>_<suffix>
+    dimension: str  # "source", "variable", "rate", "frequency" or "angle"
+    default: str | None = None
+
+
+@dataclass(frozen=True)
+class Form:
+    name: str
+    words: str  # how the sheet names it
+    roles: tuple[Role, ...]
+    template: str  # expression with {<suffix>} for parameter names and {x} for the variable
+
+
+FORMS = {form.name: form for form in (
+    Form("constant", "a constant", (Role("value", "val", "source"),), "{val}"),
+    Form("step", "a step", (Role("before", "before", "source", "0"), Role("after", "after", "source"),
+                            Role("at", "at", "variable")),
+         "{before} + ({after} - {before})*step({x} - {at})"),
+    Form("ramp", "a ramp", (Role("start", "start", "source", "0"), Role("rate", "rate", "rate"),
+                            Role("from", "from", "variable", "0")),
+         "{start} + {rate}*({x} - {from})*step({x} - {from})"),
+    Form("sine", "a sinusoid", (Role("amplitude", "amp", "source"), Role("frequency", "freq", "frequency"),
+                                Role("phase", "phase", "angle", "0"), Role("offset", "offset", "source", "0")),
+         "{offset} + {amp}*sin(2*pi*{freq}*{x} + {phase})"),
+    Form("exponential", "a decaying exponential",
+         (Role("initial", "initial", "source"), Role("final", "final", "source", "0"),
+          Role("time_constant", "tau", "variable")),
+         "{final} + ({initial} - {final})*exp(-({x})/{tau})"),
+    Form("pulse", "a rectangular pulse", (Role("base", "base", "source", "0"), Role("height", "height", "source"),
+                                          Role("start", "start", "variable"), Role("width", "width", "variable")),
+         "{base} + {height}*(step({x} - {start}) - step({x} - {start} - {width}))"),
+)}
+
+
+@dataclass(frozen=True)
+class Forcing:
+    expression: str
+    parameters: dict  # generated parameter name -> raw value (as written)
+    words: str  # e.g. "V_s is a sinusoid: ..."
+    form: str
+    frequency: str = ""  # name of the frequency parameter, for the sinusoid's steady-state figures
+
+
+def forcing_from_table(table: dict, source: str, source_unit: str, variable: str, variable_unit: str) -> Forcing:
+    if not isinstance(table.get("form"), str):
+        raise InputError(f"give the form of the forcing: one of {', '.join(FORMS)}, or expression", "forcing.form")
+    name = table["form"].strip()
+    if name == "expression":
+        return _expression(table, source)
+    if name not in FORMS:
+        raise InputError(f"unknown form '{name}' (known: {', '.join(FORMS)}, expression)", "forcing.form")
+    form = FORMS[name]
+    allowed = {"form"} | {r.key for r in form.roles}
+    for key in table:
+        if key not in allowed:
+            raise InputError(f"unknown key for a {name} (expected: {', '.join(sorted(allowed))})", f"forcing.{key}")
+    expected = {"source": source_unit, "variable": variable_unit, "rate": f"({source_unit})/({variable_unit})",
+                "frequency": f"1/({variable_unit})", "angle": "rad"}
+    parameters, names = {}, {"x": variable}
+    for role in form.roles:
+        raw = table.get(role.key, None)
+        if raw is None:
+            if role.default is None:
+                raise InputError(f"a {name} needs '{role.key}'", f"forcing.{role.key}")
+            raw = role.default if role.dimension == "angle" else f"{role.default} {expected[role.dimension]}"
+        _check(raw, expected[role.dimension], role, name)
+        parameter = f"{source}_{role.suffix}"
+        parameters[parameter] = raw
+        names[role.suffix] = parameter
+    words = f"{source} is {form.words}: " + ", ".join(f"{r.key} {parameters[f'{source}_{r.suffix}']}"
+                                                      for r in form.roles)
+    return Forcing(form.template.format(**names), parameters, words, name,
+                   frequency=f"{source}_freq" if name == "sine" else "")
+
+
+def _expression(table: dict, source: str) -> Forcing:
+    for key in table:
+        if key not in ("form", "expression"):
+            raise InputError("unknown key for an expression (expected: expression)", f"forcing.{key}")
+    text = table.get("expression")
+    if not isinstance(text, str) or not text.strip():
+        raise InputError("give the forcing as text in quotes, e.g. \"V_0*(1 - exp(-t/T_r))\"", "forcing.expression")
+    return Forcing(f"({text.strip()})", {}, f"{source} is given by the expression {text.strip()}", "expression")
+
+
+def _check(raw, expected_unit: str, role: Role, form: str) -> None:
+    where = f"forcing.{role.key}"
+    try:
+        quantity = units.parse_quantity(raw)
+    except InputError as error:
+        raise error.located(key=where)
+    if not units.same_dimension(quantity.units, units.parse_unit(expected_unit)):
+        raise InputError(f"the {role.key} of a {form} needs the dimension of {expected_unit}, got "
+                         f"{units.dimension_text(quantity.units)}", where)
+    if role.dimension == "frequency" and isinstance(raw, str) and ("rad" in raw or "rpm" in raw):
+        raise InputError("give the frequency in cycles (Hz, 1/s, 1/min); an angular speed in rad/s "
+                         "would be taken as cycles per second", where)
