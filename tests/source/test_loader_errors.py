@@ -186,8 +186,8 @@ BAD_INPUTS = [
      ["got list"], "parameters.R"),
     ("unknown-without-unit", with_equation("L*di/dt + R*i = V_s", unknown="i"), InputError,
      ["must be a name and a unit in brackets"], "model.unknown"),
-    ("unknown-function", with_equation("L*di/dt + R*i = V_s*step(t)"), InputError,
-     ["'step' is not a known function"], "model.equation"),
+    ("unknown-function", with_equation("L*di/dt + R*i = V_s*ramp(t)"), InputError,
+     ["'ramp' is not a known function"], "model.equation"),
     ("two-equals-signs", with_equation("L*di/dt + R*i = V_s = 0"), InputError,
      ["expected an operator or the end but found '='"], "model.equation"),
     ("no-equals-sign", with_equation("L*di/dt + R*i - V_s"), InputError,
@@ -268,8 +268,8 @@ def test_several_unknown_tables_are_reported_together(tmp_path):
         load_model(path)
     lines = str(info.value).splitlines()
     assert lines == [
-        f"{path}: solver: unknown table (expected one of: sheet, model, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
-        f"{path}: graph: unknown table (expected one of: sheet, model, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
+        f"{path}: solver: unknown table (expected one of: sheet, model, forcing, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
+        f"{path}: graph: unknown table (expected one of: sheet, model, forcing, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
     ]
 
 
