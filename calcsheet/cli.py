@@ -55,6 +55,34 @@ def check(inputs: tuple[str, ...]) -> None:
     sys.exit(_run_each(inputs, one))
 
 
+@main.command()
+@click.argument("name", required=False)
+def kinds(name: str | None) -> None:
+    """List the model kinds, or show one kind's parameters, dimensions and equation."""
+    from calcsheet.kinds.catalogue import catalogue_lines, describe
+
+    lines = _guard(lambda: describe(name) if name else catalogue_lines())
+    click.echo("\n".join(lines))
+
+
+@main.command()
+@click.argument("name")
+@click.argument("file", required=False)
+def new(name: str, file: str | None) -> None:
+    """Write a commented starter input for kind NAME to FILE (default: NAME.toml)."""
+    from calcsheet.errors import InputError
+    from calcsheet.kinds.catalogue import starter_text
+    from calcsheet.pipeline import write_text_file
+
+    text = _guard(lambda: starter_text(name))
+    target = Path(file or f"{name}.toml")
+    if target.exists():
+        _guard(lambda: (_ for _ in ()).throw(InputError("already exists; choose another name or remove it",
+                                                        file=str(target))))
+    write_text_file(target, text)
+    click.echo(f"wrote {target}: build it with `calcsheet build {target}`")
+
+
 def _run_each(inputs: tuple[str, ...], action) -> int:
     from calcsheet.pipeline import build_sheet, collect_inputs
 

@@ -17,6 +17,9 @@ class _PlainPrinter(StrPrinter):
     def _print_Dummy(self, expr):
         return expr.name
 
+    def _print_Heaviside(self, expr):
+        return f"step({self._print(expr.args[0])})"
+
     def _print_Integral(self, expr):
         (variable, *limits), = expr.limits
         body = self._print(expr.function)
@@ -46,6 +49,10 @@ class _SheetLatexPrinter(LatexPrinter):
         if sp.count_ops(argument) <= 2:  # e^{-t/tau} reads well as a superscript
             return super()._print_ExpBase(expr, exp)
         body = rf"\exp\left({self._print(argument)}\right)"
+        return body if exp is None else rf"{body}^{{{exp}}}"
+
+    def _print_Heaviside(self, expr, exp=None):
+        body = rf"\operatorname{{step}}\left({self._print(expr.args[0])}\right)"
         return body if exp is None else rf"{body}^{{{exp}}}"
 
     def _print_Symbol(self, expr, style="plain"):

@@ -56,6 +56,12 @@ def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str | bytes]) ->
     return written
 
 
+def write_text_file(target: Path, text: str) -> None:
+    """One text file, written atomically like the outputs."""
+    write_outputs(target.parent if str(target.parent) else Path("."), target.name.rsplit(".", 1)[0],
+                  {target.name.rsplit(".", 1)[1] if "." in target.name else "toml": text})
+
+
 def collect_inputs(items: tuple[str, ...]) -> list[Path]:
     """Files as given; folders contribute their *.toml files in name order."""
     paths: list[Path] = []

@@ -43,6 +43,16 @@ class Verdict:
 
 
 @dataclass(frozen=True)
+class SteadySine:
+    """Steady-state response of a constant-coefficient lag to a sinusoid (common practice, no source)."""
+
+    omega: float  # rad per unit of the variable (SI)
+    amplitude_ratio: float  # 1/sqrt(1 + (omega tau)^2)
+    phase_lag_deg: float  # atan(omega tau)
+    settled_after: float  # tau ln 100: the transient has fallen below 1 % of its initial size
+
+
+@dataclass(frozen=True)
 class Numbers:
     time_constant: float | None  # SI
     time_constant_expr: sp.Expr | None
@@ -55,6 +65,7 @@ class Numbers:
     values: tuple[ValueAt, ...]
     reach: tuple[Reach, ...]
     verdicts: tuple[Verdict, ...]
+    sine: SteadySine | None = None
 
     @property
     def all_passed(self) -> bool:
@@ -87,7 +98,19 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     verdicts = tuple(_verdict(c, y, grid[: len(samples)], samples, tau, final, model) for c in model.criteria)
     return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
                    final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
-                   domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts)
+                   domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
+                   sine=_steady_sine(model, tau))
+
+
+def _steady_sine(model: Model, tau: float | None) -> SteadySine | None:
+    """For a sinusoidal [forcing] of a model with a time constant: gain, lag and settling."""
+    name = getattr(model.kind, "frequency", "") if model.kind else ""
+    if not name or tau is None:
+        return None
+    frequency = next(p.si for p in model.parameters if p.name == name)
+    omega = 2 * math.pi * frequency
+    return SteadySine(omega, 1 / math.sqrt(1 + (omega * tau) ** 2), math.degrees(math.atan(omega * tau)),
+                      tau * math.log(100))
 
 
 def _time_constant(cls: Classification, p_value: sp.Expr, model: Model):

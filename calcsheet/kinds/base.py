@@ -55,6 +55,10 @@ class KindUse:
 
 
 def check_slot_dimension(kind: Kind, slot: Slot, quantity, where: str) -> None:
+    """A slot with an empty unit takes any dimension (a gain between two chosen units, say);
+    the equation's own unit check still applies to it."""
+    if not slot.unit:
+        return
     expected = units.parse_unit(slot.unit)
     if not units.same_dimension(quantity.units, expected):
         raise InputError(

@@ -19,6 +19,7 @@ class Role:
     suffix: str  # the parameter becomes <source>_<suffix>
     dimension: str  # "source", "variable", "rate", "frequency" or "angle"
     default: str | None = None
+    difference: bool = False  # a swing about a level, not a level: 10 degC here means 10 K
 
 
 @dataclass(frozen=True)
@@ -37,14 +38,14 @@ FORMS = {form.name: form for form in (
     Form("ramp", "a ramp", (Role("start", "start", "source", "0"), Role("rate", "rate", "rate"),
                             Role("from", "from", "variable", "0")),
          "{start} + {rate}*({x} - {from})*step({x} - {from})"),
-    Form("sine", "a sinusoid", (Role("amplitude", "amp", "source"), Role("frequency", "freq", "frequency"),
+    Form("sine", "a sinusoid", (Role("amplitude", "amp", "source", difference=True), Role("frequency", "freq", "frequency"),
                                 Role("phase", "phase", "angle", "0"), Role("offset", "offset", "source", "0")),
          "{offset} + {amp}*sin(2*pi*{freq}*{x} + {phase})"),
     Form("exponential", "a decaying exponential",
          (Role("initial", "initial", "source"), Role("final", "final", "source", "0"),
           Role("time_constant", "tau", "variable")),
          "{final} + ({initial} - {final})*exp(-({x})/{tau})"),
-    Form("pulse", "a rectangular pulse", (Role("base", "base", "source", "0"), Role("height", "height", "source"),
+    Form("pulse", "a rectangular pulse", (Role("base", "base", "source", "0"), Role("height", "height", "source", difference=True),
                                           Role("start", "start", "variable"), Role("width", "width", "variable")),
          "{base} + {height}*(step({x} - {start}) - step({x} - {start} - {width}))"),
 )}
@@ -72,6 +73,9 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
     for key in table:
         if key not in allowed:
             raise InputError(f"unknown key for a {name} (expected: {', '.join(sorted(allowed))})", f"forcing.{key}")
+    if not source_unit:  # a source of any dimension takes the unit of the first value given for it
+        source_unit = next((_unit_text(table[r.key]) for r in form.roles
+                            if r.dimension == "source" and r.key in table), "")
     expected = {"source": source_unit, "variable": variable_unit, "rate": f"({source_unit})/({variable_unit})",
                 "frequency": f"1/({variable_unit})", "angle": "rad"}
     parameters, names = {}, {"x": variable}
@@ -80,7 +84,10 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
         if raw is None:
             if role.default is None:
                 raise InputError(f"a {name} needs '{role.key}'", f"forcing.{role.key}")
-            raw = role.default if role.dimension == "angle" else f"{role.default} {expected[role.dimension]}"
+            unit = "" if role.dimension == "angle" or "()" in expected[role.dimension] else expected[role.dimension]
+            raw = f"{role.default} {unit}".strip()
+        if role.difference and isinstance(raw, str):
+            raw = _as_difference(raw)
         _check(raw, expected[role.dimension], role, name)
         parameter = f"{source}_{role.suffix}"
         parameters[parameter] = raw
@@ -101,12 +108,25 @@ def _expression(table: dict, source: str) -> Forcing:
     return Forcing(f"({text.strip()})", {}, f"{source} is given by the expression {text.strip()}", "expression")
 
 
+def _as_difference(raw: str) -> str:
+    """'10 degC' as an amplitude is a temperature difference: write it as one."""
+    number, _, unit = raw.strip().partition(" ")
+    return f"{number} delta_{unit.strip()}" if unit.strip() in ("degC", "degF") else raw
+
+
+def _unit_text(raw) -> str:
+    quantity = units.parse_quantity(raw)
+    return str(quantity.units) if str(quantity.units) != "dimensionless" else ""
+
+
 def _check(raw, expected_unit: str, role: Role, form: str) -> None:
     where = f"forcing.{role.key}"
     try:
         quantity = units.parse_quantity(raw)
     except InputError as error:
         raise error.located(key=where)
+    if "()" in expected_unit or not expected_unit:
+        return  # a source of any dimension: the equation's unit check decides
     if not units.same_dimension(quantity.units, units.parse_unit(expected_unit)):
         raise InputError(f"the {role.key} of a {form} needs the dimension of {expected_unit}, got "
                          f"{units.dimension_text(quantity.units)}", where)

@@ -250,6 +250,8 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
         n.eq(n.yx_latex, n.yx_text, numeric_expression(s.particular, values)),
     ]
     blocks += _time_constant_blocks(d, n, values)
+    if num.sine is not None:
+        blocks.append(_steady_sine_table(d))
     if d.quadrature is not None:
         blocks.append(Note("method", f"The integral term is evaluated by {d.quadrature_method}. Largest error "
                                      "estimate over every evaluation made for this sheet: "
@@ -281,6 +283,18 @@ def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
     tau = sp.Symbol("tau")
     return [n.eq(latex(tau), "tau", (r"\frac{1}{p}", "1/p"), *_distinct(tau, num.time_constant_expr)[1:],
                  (_quantity_latex(shown), shown), label=_constant_word(d))]
+
+
+def _steady_sine_table(d: Derivation) -> Table:
+    sine, m = d.numbers.sine, d.model
+    rows = (
+        ("Angular frequency", "omega = 2 pi f", f"{number(sine.omega)} rad/{_si_unit_text(m.variable)}"),
+        ("Amplitude ratio", "1/sqrt(1 + (omega tau)^2)", number(sine.amplitude_ratio)),
+        ("Phase lag", "atan(omega tau)", f"{number(sine.phase_lag_deg)} deg"),
+        ("Transient below 1 %", "tau ln 100", in_units(sine.settled_after, m.variable)),
+    )
+    return Table(("Quantity", "Formula", "Value"), rows,
+                 "Steady sinusoidal response (first-order lag; common practice)")
 
 
 def _constant_word(d: Derivation) -> str:

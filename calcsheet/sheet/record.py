@@ -40,6 +40,11 @@ def build_record(d, n) -> dict:
         },
         "time_constant": record_value(num.time_constant, m.variable),
         "final_value": record_value(num.final_value, m.unknown),
+        "sinusoidal_steady_state": None if num.sine is None else {
+            "amplitude_ratio": rounded(num.sine.amplitude_ratio),
+            "phase_lag": {"value": rounded(num.sine.phase_lag_deg), "unit": "deg"},
+            "transient_below_1_percent_after": record_value(num.sine.settled_after, m.variable),
+        },
         "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown)} for v in num.values],
         "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable)} for r in num.reach],
         "criteria": [{"text": v.criterion.text, "check": v.criterion.check, "passed": v.passed,
