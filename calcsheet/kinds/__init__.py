@@ -25,9 +25,9 @@ def all_kinds() -> dict:
     return kinds
 
 
-def kind_named(name: str):
+def kind_named(name: str, where: str = "model.kind"):
     from calcsheet.errors import InputError
 
     if name not in KIND_MODULES:
-        raise InputError(f"unknown kind '{name}' (known: {', '.join(KIND_MODULES)})", "model.kind")
+        raise InputError(f"unknown kind '{name}' (known: {', '.join(KIND_MODULES)})", where)
     return import_module(f"calcsheet.kinds.{name}").KIND

@@ -13,7 +13,7 @@ def catalogue_lines() -> list[str]:
 
 
 def describe(name: str) -> list[str]:
-    kind = kind_named(name)
+    kind = kind_named(name, "calcsheet kinds NAME")
     lines = [f"{kind.title} ({kind.name})", f"  {kind.summary}", "", f"Governing law: {kind.law}",
              f"Equation: {kind.equation}",
              f"Unknown: {kind.unknown.name} [{kind.unknown.unit}] - {kind.unknown.meaning}",
@@ -29,7 +29,7 @@ def describe(name: str) -> list[str]:
 
 def starter_text(name: str) -> str:
     """A commented input for the kind, with example values, that builds as it stands."""
-    kind = kind_named(name)
+    kind = kind_named(name, "calcsheet new NAME")
     parameters = "\n".join(f'{slot.name} = {{ value = "{slot.example}", source = "example value: replace" }}'
                            f"  # {slot.meaning}" for slot in kind.slots)
     return (
