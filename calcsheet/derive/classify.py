@@ -39,6 +39,9 @@ def classify(model: Model) -> Classification:
     if _is_zero(a):
         raise ModelRefused(f"the derivative d{model.unknown.name}/d{model.variable.name} cancels out: "
                            "the equation is algebraic, not differential", "model.equation")
+    if a.subs(model.numeric_values()).is_zero:
+        raise ModelRefused(f"with the stated values the coefficient of d{model.unknown.name}/d{model.variable.name}, "
+                           f"{plain(a)}, is zero: the equation is algebraic, not differential", "model.equation")
     p = tidy(b / a)
     r = sp.Add(*(tidy(term) for term in sp.Add.make_args(sp.expand(-c / a, deep=False))))
     return Classification(order=1, linear=True, homogeneous=_is_zero(r),

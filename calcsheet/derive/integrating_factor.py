@@ -15,6 +15,7 @@ from calcsheet.derive.budget import INTEGRATE_SECONDS, within
 from calcsheet.derive.classify import Classification
 from calcsheet.derive.readable import choose_branches, compact, exp_of_logs_to_powers
 from calcsheet.errors import ModelRefused
+from calcsheet.mathtext import plain
 from calcsheet.model import Model
 
 
@@ -37,6 +38,9 @@ class Solution:
     forced_closed: sp.Expr  # the part of the forced response that has a closed form
     branches: tuple[str, ...]  # sympy case splits decided by the stated values
     fallback_reason: str = ""
+    special_case: tuple[tuple[str, str], ...] = ()  # (symbol, value) the stated values force, e.g. q_in = q_out
+    p: sp.Expr = None  # p and r as solved (the classification's, unless a special case applies)
+    r: sp.Expr = None
 
     @property
     def closed_form(self) -> bool:
@@ -54,15 +58,21 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
     x = model.variable.symbol
     values = model.numeric_values()
     x0, y0 = _initial_symbols(model)
-    P, closed, why = _integrate(cls.p, x, values, INTEGRATE_SECONDS)
+    p, r = cls.p, cls.r
+    P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS)
+    special = _special_case(P, values) if closed else {}
+    if special:  # e.g. q_in = q_out: the general integral divides by their difference
+        p, r = p.subs(special), r.subs(special)
+        P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS)
     if not closed:
-        raise ModelRefused(f"the integrating factor needs the integral of p = {cls.p}, and {why}; "
+        raise ModelRefused(f"the integrating factor needs the integral of p = {p}, and {why}; "
                            "this tool does not handle that case yet", "model.equation")
     mu = exp_of_logs_to_powers(sp.exp(P))
-    K = sp.Symbol("K")
+    taken = {p.name for p in model.parameters}
+    K = sp.Symbol(next(n for n in ("K", "K_c", "C_K", "K_int") if n not in taken))
     s = sp.Dummy(f"{model.variable.name}'")  # a Dummy can never clash with a parameter name
     closed_parts, open_terms, reasons, notes = [], [], [], []
-    for term in sp.Add.make_args(cls.r) if not cls.homogeneous else ():
+    for term in sp.Add.make_args(r) if not cls.homogeneous else ():
         integral, done, reason = _integrate(sp.powsimp(mu * term), x, values, forcing_seconds)
         if done:
             closed_parts.append(integral)
@@ -78,11 +88,29 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         sp.Integral(compact(mu.subs(x, s) * term.subs(x, s) / mu), (s, x0, x)) for term in open_terms))
     antiderivative = F + sp.Add(*(sp.Integral(sp.powsimp(mu * term), x) for term in open_terms))
     return Solution(
-        x0=x0, y0=y0, dummy=s, P=P, mu=mu, mu_r=sp.powsimp(mu * cls.r), antiderivative=antiderivative,
+        x0=x0, y0=y0, dummy=s, P=P, mu=mu, mu_r=sp.powsimp(mu * r), antiderivative=antiderivative,
         open_terms=tuple(open_terms), constant=K, general=(antiderivative + K) / mu,
         constant_value=k_value, particular=natural + forced, natural=natural, forced=forced,
         forced_closed=forced_closed, branches=tuple(notes), fallback_reason="; ".join(sorted(set(reasons))),
+        special_case=tuple((plain(k), plain(v)) for k, v in special.items()), p=p, r=r,
     )
+
+
+def _special_case(P: sp.Expr, values) -> dict:
+    """Where the general integral divides by a combination the stated values make zero, the
+    substitution that gives the special case instead (q_in - q_out = 0 -> {q_in: q_out})."""
+    if not P.subs(values).has(sp.zoo, sp.nan, sp.oo, -sp.oo):
+        return {}
+    denominators = {sp.fraction(sp.together(term))[1] for term in sp.preorder_traversal(P) if isinstance(term, sp.Expr)}
+    for denominator in sorted(denominators, key=sp.default_sort_key):
+        for factor in sp.Mul.make_args(sp.factor(denominator)):
+            base = factor.as_base_exp()[0]
+            if base.free_symbols and base.subs(values).is_zero:
+                symbol = sorted(base.free_symbols, key=lambda s: s.name)[0]
+                roots = sp.solve(base, symbol)
+                if roots:
+                    return {symbol: roots[0]}
+    return {}
 
 
 def _initial_symbols(model: Model) -> tuple[sp.Expr, sp.Symbol]:

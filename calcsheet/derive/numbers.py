@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 import operator
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import sympy as sp
@@ -75,6 +75,7 @@ class Numbers:
 def compute_numbers(model: Model, cls: Classification, solution: Solution, y: ResponseEvaluator) -> Numbers:
     x = model.variable.symbol
     values = model.numeric_values()
+    cls = _as_solved(cls, solution, model)
     p_value = cls.p.subs(values)
     x0 = model.initial_at.si
     tau, tau_expr, tau_note = _time_constant(cls, p_value, model)
@@ -111,6 +112,15 @@ def _steady_sine(model: Model, tau: float | None) -> SteadySine | None:
     omega = 2 * math.pi * frequency
     return SteadySine(omega, 1 / math.sqrt(1 + (omega * tau) ** 2), math.degrees(math.atan(omega * tau)),
                       tau * math.log(100))
+
+
+def _as_solved(cls: Classification, solution: Solution, model: Model) -> Classification:
+    """The classification with p and r as solved: a special case of the stated values (q_in = q_out)
+    can turn a varying coefficient into a constant one."""
+    if not solution.special_case:
+        return cls
+    x = model.variable.symbol
+    return replace(cls, p=solution.p, r=solution.r, constant_coefficients=x not in solution.p.free_symbols)
 
 
 def _time_constant(cls: Classification, p_value: sp.Expr, model: Model):
@@ -190,6 +200,7 @@ def _final_value(model: Model, cls: Classification, solution: Solution, values, 
         how = f"limit of r/p as {model.variable.name} grows without bound, p being constant and positive"
     else:
         return None, "not determined: varying coefficient and no closed form"
+    expr = _steps_settled(expr, x)
     limit, done = within(LIMIT_SECONDS, lambda: sp.limit(expr, x, sp.oo), None)
     if not done or limit is None:
         return None, "not determined: the limit did not finish within its time budget"
@@ -200,6 +211,20 @@ def _final_value(model: Model, cls: Classification, solution: Solution, values, 
     if limit in (sp.oo, -sp.oo):
         return None, "none: the response grows without bound"
     return None, "none: the response keeps oscillating or does not settle"
+
+
+def _steps_settled(expr: sp.Expr, x: sp.Symbol) -> sp.Expr:
+    """Far along x every switched step has switched: step(a x + b) is 1 for a > 0, 0 for a < 0.
+
+    sympy's limit is slow on step functions; their arguments here are linear in x.
+    """
+    def settle(argument):
+        slope = sp.diff(argument, x)
+        if slope.is_number and not slope.has(x) and slope != 0:
+            return sp.Integer(1) if slope > 0 else sp.Integer(0)
+        return sp.Heaviside(argument)
+
+    return expr.replace(sp.Heaviside, lambda *args: settle(args[0]))
 
 
 def _reach(level: Point, y, grid, samples, final, model: Model) -> Reach:

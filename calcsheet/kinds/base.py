@@ -52,6 +52,7 @@ class KindUse:
     notes: tuple[str, ...] = ()  # validity checks and warnings, already worded
     forcing: str = ""  # the forcing form in words, if a [forcing] table was given
     frequency: str = ""  # the parameter holding a sinusoidal forcing's frequency
+    slot_names: tuple[str, ...] = ()  # the kind's own parameters (some serve only its checks)
 
 
 def check_slot_dimension(kind: Kind, slot: Slot, quantity, where: str) -> None:

@@ -49,7 +49,7 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table) -> Expanded:
     _check_parameters(kind, params, forcing_table)
     table = {"equation": equation, "unknown": unknown, "variable": variable}
     use = KindUse(kind.name, kind.title, kind.law, kind.law_steps, kind.assumptions, forcing=words,
-                  frequency=frequency)
+                  frequency=frequency, slot_names=tuple(s.name for s in kind.slots))
     return Expanded(table, params, use)
 
 
@@ -69,10 +69,21 @@ def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:
         raise InputError(f"kind {kind.name} calls its {key} '{slot.name}' ({slot.meaning}); write "
                          f"\"{slot.name} [{unit_text or slot.unit}]\"", f"model.{key}")
     unit = units.parse_unit(unit_text)
+    if not slot.unit:  # a quantity of any dimension: the reading of a sensor, say
+        return text
+    if _angular(slot.unit) != _angular(unit_text):
+        raise InputError(f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}; '{unit_text}' "
+                         f"{'is not' if _angular(slot.unit) else 'is'} an angular unit, and rad/s and Hz "
+                         "differ by 2 pi although they share a dimension", f"model.{key}")
     if not units.same_dimension(unit, units.parse_unit(slot.unit)):
         raise InputError(f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}, got '{unit_text}'",
                          f"model.{key}")
     return text
+
+
+def _angular(unit_text: str) -> bool:
+    """Angles hide in pint's dimensionless radian; look at the unit's words instead."""
+    return bool(re.search(r"rad|rpm|deg(?!C|F)|rev", unit_text))
 
 
 def _unit_of(declared_text: str) -> str:

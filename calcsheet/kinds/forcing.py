@@ -82,7 +82,9 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
     for role in form.roles:
         raw = table.get(role.key, None)
         if raw is None:
-            if role.default is None:
+            if role.default is None or (role.dimension == "source" and not role.difference
+                                        and _is_temperature(expected["source"])):
+                # a level of an absolute temperature has no sensible default (0 K is absolute zero)
                 raise InputError(f"a {name} needs '{role.key}'", f"forcing.{role.key}")
             unit = "" if role.dimension == "angle" or "()" in expected[role.dimension] else expected[role.dimension]
             raw = f"{role.default} {unit}".strip()
@@ -94,7 +96,7 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
         names[role.suffix] = parameter
     words = f"{source} is {form.words}: " + ", ".join(f"{r.key} {parameters[f'{source}_{r.suffix}']}"
                                                       for r in form.roles)
-    return Forcing(form.template.format(**names), parameters, words, name,
+    return Forcing(f"({form.template.format(**names)})", parameters, words, name,
                    frequency=f"{source}_freq" if name == "sine" else "")
 
 
@@ -106,6 +108,10 @@ def _expression(table: dict, source: str) -> Forcing:
     if not isinstance(text, str) or not text.strip():
         raise InputError("give the forcing as text in quotes, e.g. \"V_0*(1 - exp(-t/T_r))\"", "forcing.expression")
     return Forcing(f"({text.strip()})", {}, f"{source} is given by the expression {text.strip()}", "expression")
+
+
+def _is_temperature(unit_text: str) -> bool:
+    return bool(unit_text) and units.same_dimension(units.parse_unit(unit_text), units.parse_unit("K"))
 
 
 def _as_difference(raw: str) -> str:

@@ -83,7 +83,7 @@ def _outcome(d: Derivation) -> Outcome:
     elif failed:
         head = f"{len(failed)} of {len(verdicts)} criteria FAIL."
     else:
-        head = f"All {len(verdicts)} criteria pass."
+        head = "The criterion passes." if len(verdicts) == 1 else f"All {len(verdicts)} criteria pass."
     head += " Verification passed." if verified else " Verification FAILED: do not rely on these results."
     lines = tuple(f"{'PASS' if v.passed else 'FAIL'}: {v.criterion.text}" for v in verdicts)
     return Outcome(passed=not failed and verified, text=head, lines=lines)
@@ -113,7 +113,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
         Paragraph(f"The model {'this gives' if m.kind else 'as stated in the input'}, with {m.unknown.name} in "
                   f"{m.unknown.unit_text or 'no unit'} as the unknown and {m.variable.name} in "
                   f"{m.variable.unit_text or 'no unit'} as the variable:"),
-        Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "as stated"),
+        Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "from the law" if m.kind else "as stated"),
         Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
         Table(("Condition", "Value"), ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
                                          f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}"),),
@@ -121,8 +121,9 @@ def _governing(d: Derivation, n: _Notation) -> Section:
         Paragraph("Units were checked on every additive term of the equation and on every function argument; "
                   "all terms share one dimension."),
     ]
-    if m.unused_parameters:
-        blocks.append(Note("warning", f"Stated but not used in the equation: {', '.join(m.unused_parameters)}."))
+    unused = [name for name in m.unused_parameters if not (m.kind and name in m.kind.slot_names)]
+    if unused:
+        blocks.append(Note("warning", f"Stated but not used in the equation: {', '.join(unused)}."))
     return Section("governing", "Governing equation and data", tuple(blocks))
 
 
@@ -177,7 +178,13 @@ def _standard_form(d: Derivation, n: _Notation) -> Section:
 def _integrating_factor(d: Derivation, n: _Notation) -> Section:
     s, x = d.solution, n.x
     mu = sp.Symbol("mu")
-    blocks = [
+    blocks = []
+    if s.special_case:
+        taken = ", ".join(f"{k} = {v}" for k, v in s.special_case)
+        blocks.append(Note("method", f"The general integral of p divides by a quantity that the stated values make "
+                                     f"zero; the solution therefore takes {taken}, which gives p = {plain(s.p)} and "
+                                     f"r = {plain(s.r)}."))
+    blocks += [
         Paragraph(f"The integrating factor is the exponential of the integral of p over {x}:"),
         n.eq(latex(mu), "mu", (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
              *_distinct(sp.exp(s.P, evaluate=False), s.mu)),
@@ -192,8 +199,9 @@ def _integrating_factor(d: Derivation, n: _Notation) -> Section:
 def _integration(d: Derivation, n: _Notation) -> Section:
     s, x = d.solution, n.x
     blocks = [
-        Paragraph(f"Integrate both sides over {x}; K is the constant of integration:"),
-        n.eq(rf"\mu\,{latex(n.y)}", f"mu*{n.y}", (rf"\int \mu\,r\,d{latex(x)} + K", f"integral of mu*r d{x} + K"),
+        Paragraph(f"Integrate both sides over {x}; {s.constant} is the constant of integration:"),
+        n.eq(rf"\mu\,{latex(n.y)}", f"mu*{n.y}", (rf"\int \mu\,r\,d{latex(x)} + {latex(s.constant)}",
+                                                 f"integral of mu*r d{x} + {s.constant}"),
              s.antiderivative + s.constant),
         Paragraph("Divide by mu for the general solution:"),
         n.eq(n.yx_latex, n.yx_text, s.general, label="general solution"),
@@ -214,9 +222,9 @@ def _initial_condition(d: Derivation, n: _Notation) -> Section:
     blocks = [
         Paragraph(f"The input gives {m.unknown.name} = {m.initial_value.text} at {m.variable.name} = "
                   f"{m.initial_at.text}; write it {s.y0.name}" + ("" if s.x0 == 0 else f" at {s.x0}") +
-                  f" and solve the general solution there for K:"),
+                  f" and solve the general solution there for {s.constant}:"),
         n.eq(rf"{latex(n.y)}\left({latex(s.x0)}\right)", f"{m.unknown.name}({s.x0})", y0),
-        n.eq("K", "K", s.constant_value),
+        n.eq(latex(s.constant), s.constant.name, s.constant_value),
         Paragraph("The particular solution:"),
         n.eq(n.yx_latex, n.yx_text, s.particular, label="particular solution"),
     ]
@@ -227,7 +235,7 @@ def _split(d: Derivation, n: _Notation) -> Section:
     s, m, num = d.solution, d.model, d.numbers
     name = m.unknown.name
     blocks = [
-        Paragraph("Natural response: the part of the form K/mu, fixed by the initial condition, that the system "
+        Paragraph(f"Natural response: the part of the form {s.constant}/mu, fixed by the initial condition, that the system "
                   "produces on its own. Forced response: the part sustained by the forcing r."),
         n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", s.natural, label="natural"),
         n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
@@ -294,7 +302,7 @@ def _steady_sine_table(d: Derivation) -> Table:
         ("Transient below 1 %", "tau ln 100", in_units(sine.settled_after, m.variable)),
     )
     return Table(("Quantity", "Formula", "Value"), rows,
-                 "Steady sinusoidal response (first-order lag; common practice)")
+                 "Steady sinusoidal response of the lag, per unit static gain (first-order lag; common practice)")
 
 
 def _constant_word(d: Derivation) -> str:

@@ -24,6 +24,10 @@ def build_record(d, n) -> dict:
                            for p in m.parameters],
             "initial": {"at": record_value(m.initial_at.si, m.variable), "value": record_value(m.initial_value.si, m.unknown)},
         },
+        "kind": None if m.kind is None else {
+            "name": m.kind.name, "title": m.kind.title, "law": m.kind.law, "forcing": m.kind.forcing,
+            "notes": list(m.kind.notes),
+        },
         "classification": {
             "order": c.order, "linear": c.linear, "homogeneous": c.homogeneous,
             "constant_coefficients": c.constant_coefficients, "p": plain(c.p), "r": plain(c.r),

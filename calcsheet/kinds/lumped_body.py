@@ -1,0 +1,84 @@
+"""Lumped body: a solid heated or cooled by convection to an ambient, optionally with a heat input."""
+
+from __future__ import annotations
+
+from calcsheet.kinds.base import Kind, Slot
+
+# Lumped-capacitance analysis is accepted while the Biot number Bi = h*Lc/k, with Lc = V/A, stays at or
+# below 0.1 (standard heat-transfer texts, e.g. Incropera et al., Fundamentals of Heat and Mass Transfer,
+# section on the lumped capacitance method; Cengel, Heat and Mass Transfer, chapter on transient
+# conduction). Common practice; criterion from memory.
+BIOT_LIMIT = 0.1
+
+
+def _checks(values: dict[str, float]) -> tuple[str, ...]:
+    volume, area, h, k = values["V"], values["A"], values["h"], values["k"]
+    if volume <= 0 or area <= 0 or k <= 0:
+        return ("WARNING: V, A and k must be positive for the Biot number Bi = h*Lc/k, Lc = V/A; "
+                "the validity of the lumped model was not checked.",)
+    length = volume / area
+    biot = h * length / k
+    notes = [f"Biot number Bi = h*Lc/k = {biot:.3g} with characteristic length Lc = V/A = {length:.4g} m; "
+             f"the lumped model holds for Bi <= {BIOT_LIMIT:g} (common practice in heat transfer)."]
+    if biot > BIOT_LIMIT:
+        notes.append(f"WARNING: Bi = {biot:.3g} exceeds {BIOT_LIMIT:g}: the temperature inside the body is not "
+                     "uniform, so the lumped model is not valid; a transient conduction analysis is needed.")
+    return tuple(notes)
+
+
+KIND = Kind(
+    name="lumped_body",
+    title="Lumped body heated or cooled by convection",
+    summary="temperature T of a body of uniform temperature exchanging heat by convection with an ambient T_inf",
+    law="energy balance on the body: rate of change of stored heat = heat input - convective loss, "
+        "with Newton's law of cooling for the loss",
+    unknown=Slot("T", "degC", "body temperature", "20 degC"),
+    variable=Slot("t", "s", "time", "1 s"),
+    slots=(
+        Slot("rho", "kg/m^3", "density of the body", "7850 kg/m^3"),
+        Slot("c_p", "J/(kg*K)", "specific heat capacity of the body", "460 J/(kg*K)"),
+        Slot("V", "m^3", "volume of the body", "1.0e-4 m^3"),
+        Slot("A", "m^2", "surface area exchanging heat with the ambient", "0.016 m^2"),
+        Slot("h", "W/(m^2*K)", "convective heat transfer coefficient", "25 W/(m^2*K)"),
+        Slot("k", "W/(m*K)", "thermal conductivity of the body; used only for the Biot check", "45 W/(m*K)"),
+        Slot("T_inf", "K", "ambient temperature", "20 degC"),
+        Slot("Q", "W", "heat input to the body; 0 W when none", "10 W", default="0 W"),
+    ),
+    equation="rho*c_p*V*dT/dt = Q - h*A*(T - T_inf)",
+    law_steps=(
+        (r"\frac{dE}{dt} = \dot{Q}_{in} - \dot{Q}_{conv}",
+         "dE/dt = Q_in - Q_conv   (energy balance on the body)"),
+        (r"E = \rho\, c_{p} V\, T, \quad \dot{Q}_{in} = Q, \quad \dot{Q}_{conv} = h A \left(T - T_{\infty}\right)",
+         "E = rho*c_p*V*T, Q_in = Q, Q_conv = h*A*(T - T_inf)   (stored heat; Newton's law of cooling)"),
+        (r"\rho\, c_{p} V \frac{dT}{dt} = Q - h A \left(T - T_{\infty}\right)",
+         "rho*c_p*V*dT/dt = Q - h*A*(T - T_inf)"),
+    ),
+    assumptions=(
+        "The body's temperature is uniform at every instant (lumped capacitance; see the Biot check).",
+        "Constant properties rho, c_p, k and a constant heat transfer coefficient h over the whole surface A.",
+        "Radiation is neglected or folded into h; no phase change in the body.",
+        "The ambient is large enough that the body does not change T_inf.",
+    ),
+    source="T_inf",
+    checks=_checks,
+    starter='''[sheet]
+title = "Warm-up of a steel mounting block carrying a 10 W heater (example, edit)"
+number = "TH-101"
+revision = "A"
+project = "Example project (edit)"
+originator = "Your name"
+purpose = "Temperature of a 100 x 50 x 20 mm steel block with a 10 W heater pad, in still air at 20 degC."
+
+[evaluate]
+at = ["10 min", "30 min", "2 h"]
+reach = ["40 degC"]
+
+[[criteria]]
+text = "Block settles below 60 degC"
+check = "final_value <= 60 degC"
+
+[[criteria]]
+text = "Block below 40 degC for the first 15 min"
+check = "reach(40 degC) >= 15 min"
+''',
+)

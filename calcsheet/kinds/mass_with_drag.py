@@ -1,0 +1,70 @@
+"""Mass with linear drag: the speed of a body pushed along a line against a resistance proportional to speed."""
+
+from calcsheet.kinds.base import Kind, Slot
+
+
+def _checks(values: dict[str, float]) -> tuple[str, ...]:
+    """Sign checks: a body has m > 0; a drag or damper force opposes the motion, c >= 0."""
+    notes = []
+    drag = values.get("c")
+    if drag is not None and drag == 0:
+        notes.append("WARNING: c = 0: without drag the body has no terminal speed and keeps "
+                     "accelerating under a steady force.")
+    elif drag is not None and drag < 0:
+        notes.append("WARNING: c is negative; drag opposes the motion, so c is positive "
+                     "(with c < 0 the speed grows instead of settling).")
+    mass = values.get("m")
+    if mass is not None and mass < 0:
+        notes.append("WARNING: m is negative; a mass is positive, so check the sign.")
+    return tuple(notes)
+
+
+KIND = Kind(
+    name="mass_with_drag",
+    title="Mass with linear drag",
+    summary="speed u of a mass m pushed along a straight line by a force F against a drag c*u",
+    law="Newton's second law along the line of motion, with a drag force proportional to speed",
+    unknown=Slot("u", "m/s", "speed along the line of motion", "0 m/s"),
+    variable=Slot("t", "s", "time", "1 s"),
+    slots=(
+        Slot("m", "kg", "moving mass", "40 kg"),
+        Slot("c", "N*s/m", "linear drag coefficient (drag or damper force per unit speed)", "200 N*s/m"),
+        Slot("F", "N", "driving force along the line of motion, net of any constant resisting force "
+                       "(0 N for coasting)", "100 N", default="0 N"),
+    ),
+    equation="m*du/dt + c*u = F",
+    law_steps=(
+        (r"m \frac{du}{dt} = F - F_{D}", "m*du/dt = F - F_D   (Newton's second law)"),
+        (r"F_{D} = c\,u", "F_D = c*u   (linear drag)"),
+        (r"m \frac{du}{dt} + c\,u = F", "m*du/dt + c*u = F"),
+    ),
+    assumptions=(
+        "Rigid body of constant mass moving along a straight line.",
+        "Resisting force proportional to speed, as in a viscous damper or slow motion through a "
+        "fluid; drag growing with the square of speed and dry friction are neglected.",
+        "F acts along the line of motion; a constant force such as the component of weight on a "
+        "slope is included in F.",
+    ),
+    source="F",
+    checks=_checks,
+    starter='''[sheet]
+title = "Test-rig carriage pushed against an oil damper"
+number = "ME-401"
+revision = "A"
+project = "Example project (edit)"
+originator = "Your name"
+purpose = "Speed of the carriage under the actuator's steady push, and the time to reach 90 % of it."
+
+[evaluate]
+at = ["0.1 s", "0.2 s", "0.5 s", "1 s"]
+reach = ["0.45 m/s"]
+
+[[criteria]]
+text = "Carriage reaches 0.45 m/s within 1 s"
+check = "reach(0.45 m/s) <= 1 s"
+
+[[criteria]]
+text = "Steady speed within the 0.6 m/s rating of the damper"
+check = "final_value <= 0.6 m/s"
+''',
+)
