@@ -60,6 +60,18 @@ def volume_notes(values: dict[str, float], concentration: bool = False) -> tuple
     return tuple(notes)
 
 
+def tank_slots(q_in: str, q_out: str, c_in: str, v_0: str, v_max: str) -> tuple[Slot, ...]:
+    """The parameters both tank kinds share, with example values for each kind's starter."""
+    return (
+        Slot("q_in", "m^3/s", "volumetric inflow rate", q_in),
+        Slot("q_out", "m^3/s", "volumetric outflow rate", q_out),
+        Slot("c_in", "kg/m^3", "concentration of the substance in the inflow", c_in),
+        Slot("V_0", "m^3", "liquid volume in the tank at the start", v_0),
+        Slot("V_max", "m^3", "capacity of the tank up to its overflow; 0 m^3 means not stated (no overflow check)",
+             v_max, default="0 m^3"),
+    )
+
+
 KIND = Kind(
     name="mixing_tank",
     title="Well-mixed tank (solute mass)",
@@ -69,14 +81,7 @@ KIND = Kind(
         "volume balance of the liquid and the outflow at the tank's own concentration",
     unknown=Slot("m", "kg", "mass of the dissolved substance in the tank", "0 kg"),
     variable=Slot("t", "s", "time", "1 min"),
-    slots=(
-        Slot("q_in", "m^3/s", "volumetric inflow rate", "0.9 m^3/min"),
-        Slot("q_out", "m^3/s", "volumetric outflow rate", "0.6 m^3/min"),
-        Slot("c_in", "kg/m^3", "concentration of the substance in the inflow", "0.5 kg/m^3"),
-        Slot("V_0", "m^3", "liquid volume in the tank at the start", "12 m^3"),
-        Slot("V_max", "m^3", "capacity of the tank up to its overflow; 0 m^3 means not stated (no overflow check)",
-             "30 m^3", default="0 m^3"),
-    ),
+    slots=tank_slots("0.9 m^3/min", "0.6 m^3/min", "0.5 kg/m^3", "12 m^3", "30 m^3"),
     equation="dm/dt = q_in*c_in - q_out*m/(V_0 + (q_in - q_out)*t)",
     law_steps=(
         (r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",

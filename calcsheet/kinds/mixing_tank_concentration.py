@@ -1,7 +1,7 @@
 """Well-mixed tank: the concentration of a dissolved substance while the tank fills, drains or runs full."""
 
 from calcsheet.kinds.base import Kind, Slot
-from calcsheet.kinds.mixing_tank import volume_notes
+from calcsheet.kinds.mixing_tank import tank_slots, volume_notes
 
 
 def _checks(values: dict[str, float]) -> tuple[str, ...]:
@@ -17,14 +17,7 @@ KIND = Kind(
         "balance of the liquid, the outflow leaving at the tank's own concentration",
     unknown=Slot("c", "kg/m^3", "concentration of the substance in the tank (and in its outflow)", "0 kg/m^3"),
     variable=Slot("t", "s", "time", "1 min"),
-    slots=(
-        Slot("q_in", "m^3/s", "volumetric inflow rate", "0.25 m^3/min"),
-        Slot("q_out", "m^3/s", "volumetric outflow rate", "0.15 m^3/min"),
-        Slot("c_in", "kg/m^3", "concentration of the substance in the inflow", "0.8 kg/m^3"),
-        Slot("V_0", "m^3", "liquid volume in the tank at the start", "4 m^3"),
-        Slot("V_max", "m^3", "capacity of the tank up to its overflow; 0 m^3 means not stated (no overflow check)",
-             "10 m^3", default="0 m^3"),
-    ),
+    slots=tank_slots("0.25 m^3/min", "0.15 m^3/min", "0.8 kg/m^3", "4 m^3", "10 m^3"),
     equation="(V_0 + (q_in - q_out)*t)*dc/dt = q_in*(c_in - c)",
     law_steps=(
         (r"\frac{d\left(V c\right)}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",

@@ -188,10 +188,10 @@ def _integrating_factor(d: Derivation, n: _Notation) -> Section:
         Paragraph(f"The integrating factor is the exponential of the integral of p over {x}:"),
         n.eq(latex(mu), "mu", (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
              *_distinct(sp.exp(s.P, evaluate=False), s.mu)),
-        Paragraph(f"Since d(mu)/d{x} = p mu, multiplying the standard form by mu turns its left side into an "
+        Paragraph(f"Since dμ/d{x} = p μ, multiplying the standard form by μ turns its left side into an "
                   "exact derivative:"),
         n.eq(rf"\frac{{d}}{{d{latex(x)}}}\left(\mu\,{latex(n.y)}\right)", f"d(mu*{n.y})/d{x}",
-             (rf"\mu\,r", "mu*r"), s.mu_r),
+             (r"\mu\,r", "mu*r"), s.mu_r),
     ]
     return Section("integrating_factor", "Integrating factor", tuple(blocks))
 
@@ -203,7 +203,7 @@ def _integration(d: Derivation, n: _Notation) -> Section:
         n.eq(rf"\mu\,{latex(n.y)}", f"mu*{n.y}", (rf"\int \mu\,r\,d{latex(x)} + {latex(s.constant)}",
                                                  f"integral of mu*r d{x} + {s.constant}"),
              s.antiderivative + s.constant),
-        Paragraph("Divide by mu for the general solution:"),
+        Paragraph("Divide by μ for the general solution:"),
         n.eq(n.yx_latex, n.yx_text, s.general, label="general solution"),
     ]
     if not s.closed_form:
@@ -235,7 +235,7 @@ def _split(d: Derivation, n: _Notation) -> Section:
     s, m, num = d.solution, d.model, d.numbers
     name = m.unknown.name
     blocks = [
-        Paragraph(f"Natural response: the part of the form {s.constant}/mu, fixed by the initial condition, that the system "
+        Paragraph(f"Natural response: the part of the form {s.constant}/μ, fixed by the initial condition, that the system "
                   "produces on its own. Forced response: the part sustained by the forcing r."),
         n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", s.natural, label="natural"),
         n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
@@ -296,10 +296,10 @@ def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
 def _steady_sine_table(d: Derivation) -> Table:
     sine, m = d.numbers.sine, d.model
     rows = (
-        ("Angular frequency", "omega = 2 pi f", f"{number(sine.omega)} rad/{_si_unit_text(m.variable)}"),
-        ("Amplitude ratio", "1/sqrt(1 + (omega tau)^2)", number(sine.amplitude_ratio)),
-        ("Phase lag", "atan(omega tau)", f"{number(sine.phase_lag_deg)} deg"),
-        ("Transient below 1 %", "tau ln 100", in_units(sine.settled_after, m.variable)),
+        ("Angular frequency", "ω = 2π f", f"{number(sine.omega)} rad/{_si_unit_text(m.variable)}"),
+        ("Amplitude ratio", "1/√(1 + (ωτ)²)", number(sine.amplitude_ratio)),
+        ("Phase lag", "atan(ωτ)", f"{number(sine.phase_lag_deg)} deg"),
+        ("Transient below 1 %", "τ ln 100", in_units(sine.settled_after, m.variable)),
     )
     return Table(("Quantity", "Formula", "Value"), rows,
                  "Steady sinusoidal response of the lag, per unit static gain (first-order lag; common practice)")
