@@ -18,7 +18,6 @@ class Expanded:
     model_table: dict
     parameters: dict
     use: KindUse
-    frequency: str = ""
 
 
 def expand_kind(model_table: dict, parameters: dict, forcing_table) -> Expanded:
