@@ -66,6 +66,7 @@ class Numbers:
     reach: tuple[Reach, ...]
     verdicts: tuple[Verdict, ...]
     sine: SteadySine | None = None
+    valid_until: tuple[float, str] | None = None  # (SI, what happens) where a kind's model stops holding
 
     @property
     def all_passed(self) -> bool:
@@ -83,6 +84,9 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     farthest = max([x0] + [pt.si for pt in _abscissae(model)])
     span_end = x0 + max(5 * scale, (farthest - x0) * 1.05)
     grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), 2001)
+    limit = _model_limit(model, x0)
+    if limit is not None:  # levels are searched only where the model holds
+        grid = grid[grid <= limit[0]]
     singular = _singular_point(cls, values, x, grid)
     if singular is not None:
         grid = grid[grid < singular]
@@ -94,13 +98,22 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
         span_end = model.plot_to.si
     if domain_end is not None:
         span_end = min(span_end, domain_end)
+    limit = _model_limit(model, x0)
+    if limit is not None:
+        span_end = min(span_end, limit[0])
     points = tuple(ValueAt(pt, y(pt.si)) for pt in model.evaluate_at)
     reaches = tuple(_reach(level, y, grid[: len(samples)], samples, final, model) for level in model.reach)
     verdicts = tuple(_verdict(c, y, grid[: len(samples)], samples, tau, final, model) for c in model.criteria)
     return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
                    final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
                    domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
-                   sine=_steady_sine(model, tau))
+                   sine=_steady_sine(model, tau), valid_until=limit)
+
+
+def _model_limit(model: Model, x0: float) -> tuple[float, str] | None:
+    """The kind's own end of validity (a tank overflowing), when it lies after the initial point."""
+    limit = getattr(model.kind, "limit", None) if model.kind else None
+    return limit if limit is not None and limit[0] > x0 else None
 
 
 def _steady_sine(model: Model, tau: float | None) -> SteadySine | None:

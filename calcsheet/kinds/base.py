@@ -34,6 +34,8 @@ class Kind:
     assumptions: tuple[str, ...]
     source: str = ""  # the slot a [forcing] table may replace by a function of the variable
     checks: Callable[[dict[str, float]], tuple[str, ...]] = field(default=lambda values: ())
+    # where the model stops holding, as (variable value in SI, what happens), e.g. a tank overflowing
+    limit: Callable[[dict[str, float]], tuple[float, str] | None] = field(default=lambda values: None)
     starter: str = ""  # the rest of a starter input for `calcsheet new` ([sheet], values, requests)
 
     def slot(self, name: str) -> Slot:
@@ -53,6 +55,7 @@ class KindUse:
     forcing: str = ""  # the forcing form in words, if a [forcing] table was given
     frequency: str = ""  # the parameter holding a sinusoidal forcing's frequency
     slot_names: tuple[str, ...] = ()  # the kind's own parameters (some serve only its checks)
+    limit: tuple[float, str] | None = None  # where the model stops holding (SI), and why
 
 
 def check_slot_dimension(kind: Kind, slot: Slot, quantity, where: str) -> None:

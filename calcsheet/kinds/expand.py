@@ -55,8 +55,8 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table) -> Expanded:
 def kind_checks(use: KindUse, parameters) -> KindUse:
     """The kind's validity checks, run on the SI values of the parameters."""
     kind = kind_named(use.name)
-    notes = kind.checks({p.name: p.si for p in parameters})
-    return replace(use, notes=tuple(notes))
+    values = {p.name: p.si for p in parameters}
+    return replace(use, notes=tuple(kind.checks(values)), limit=kind.limit(values))
 
 
 def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:

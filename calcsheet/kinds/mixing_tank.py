@@ -20,6 +20,20 @@ def duration_text(seconds: float) -> str:
     return text
 
 
+def volume_limit(values: dict[str, float]) -> tuple[float, str] | None:
+    """Where the model stops holding: the tank overflows or runs empty (time from t = 0, in s)."""
+    q_in, q_out, v_0 = values["q_in"], values["q_out"], values["V_0"]
+    v_max = values.get("V_max", NOT_STATED)
+    net = q_in - q_out
+    if v_0 <= 0 or abs(net) <= 1e-12 * max(abs(q_in), abs(q_out), 1e-300):
+        return None
+    if net > 0 and v_0 < v_max:
+        return (v_max - v_0) / net, "the tank overflows"
+    if net < 0:
+        return v_0 / -net, "the tank runs empty"
+    return None
+
+
 def volume_notes(values: dict[str, float], concentration: bool = False) -> tuple[str, ...]:
     """The volume law of the tank, and when it overflows or empties (SI values in, notes out)."""
     q_in, q_out, v_0 = values["q_in"], values["q_out"], values["V_0"]
@@ -82,6 +96,7 @@ KIND = Kind(
     unknown=Slot("m", "kg", "mass of the dissolved substance in the tank", "0 kg"),
     variable=Slot("t", "s", "time", "1 min"),
     slots=tank_slots("0.9 m^3/min", "0.6 m^3/min", "0.5 kg/m^3", "12 m^3", "30 m^3"),
+    limit=volume_limit,
     equation="dm/dt = q_in*c_in - q_out*m/(V_0 + (q_in - q_out)*t)",
     law_steps=(
         (r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",

@@ -1,7 +1,7 @@
 """Well-mixed tank: the concentration of a dissolved substance while the tank fills, drains or runs full."""
 
 from calcsheet.kinds.base import Kind, Slot
-from calcsheet.kinds.mixing_tank import tank_slots, volume_notes
+from calcsheet.kinds.mixing_tank import tank_slots, volume_limit, volume_notes
 
 
 def _checks(values: dict[str, float]) -> tuple[str, ...]:
@@ -18,6 +18,7 @@ KIND = Kind(
     unknown=Slot("c", "kg/m^3", "concentration of the substance in the tank (and in its outflow)", "0 kg/m^3"),
     variable=Slot("t", "s", "time", "1 min"),
     slots=tank_slots("0.25 m^3/min", "0.15 m^3/min", "0.8 kg/m^3", "4 m^3", "10 m^3"),
+    limit=volume_limit,
     equation="(V_0 + (q_in - q_out)*t)*dc/dt = q_in*(c_in - c)",
     law_steps=(
         (r"\frac{d\left(V c\right)}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",

@@ -272,6 +272,12 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
         blocks.append(Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
                             tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached", r.note)
                                   for r in num.reach), "Levels reached after the initial point"))
+    if num.valid_until is not None:
+        at, what = num.valid_until
+        late = [v.at.text for v in num.values if v.at.si > at]
+        blocks.append(Note("warning", f"{what.capitalize()} at {m.variable.name} = {in_units(at, m.variable)}; the "
+                                      "model does not hold after that, so the plot and the level search stop there"
+                                      + (f". Values past it ({', '.join(late)}) do not apply." if late else ".")))
     if num.domain_end is not None:
         blocks.append(Note("warning", f"The solution stops existing near {m.variable.name} = "
                                       f"{in_units(num.domain_end, m.variable)} (a coefficient becomes singular)."))

@@ -9,6 +9,7 @@ import json
 import math
 
 import pytest
+from pathlib import Path
 
 from calcsheet.errors import CalcsheetError
 from calcsheet.kinds.mixing_tank import KIND
@@ -90,8 +91,9 @@ def test_draining_tank_warns_it_empties_and_the_solution_stops(draining):
     assert "t = 4500 s (75 min) after the start" in empty[0]
     assert "the solution stops there" in empty[0]
     assert "the tank empties at t = 4500 s (75 min)" in out["txt"]
-    # The solution's domain ends where V(t) = 0: 15 m^3 / (0.2 m^3/min) = 75 min (arithmetic of the inputs).
-    assert built.derivation.numbers.domain_end == pytest.approx(4500.0, rel=1e-6)
+    # The model stops holding where V(t) = 0: 15 m^3 / (0.2 m^3/min) = 75 min (arithmetic of the inputs).
+    assert built.derivation.numbers.valid_until == (pytest.approx(4500.0, rel=1e-6), "the tank runs empty")
+    assert built.derivation.numbers.span[1] <= 4500.0 * (1 + 1e-9)
 
 
 def test_filling_tank_states_when_it_overflows():
@@ -208,3 +210,21 @@ at = ["5 min", "30 min"]
     assert derivation.passed
     for at_min, found in zip((5, 30), derivation.numbers.values):
         assert found.y == pytest.approx(concentration(at_min) * volume(at_min), rel=1e-8)
+
+
+def test_overflow_inside_the_plotted_range_stops_plot_and_search(tmp_path):
+    """V(t) = V_0 + (q_in - q_out) t reaches V_max at (V_max - V_0)/(q_in - q_out): 20 m^3 to 60 m^3 at
+    0.4 m^3/min takes 100 min (arithmetic of the volume balance; common practice, no source)."""
+    from calcsheet.pipeline import build_sheet, render
+
+    text = (Path(__file__).resolve().parents[2] / "inputs" / "equalisation-tank-tracer.toml").read_text()
+    text = text.replace('to = "100 min"', 'to = "150 min"').replace(
+        'at = ["30 min", "60 min", "90 min"]', 'at = ["30 min", "60 min", "90 min", "120 min"]')
+    path = tmp_path / "overflowing.toml"
+    path.write_text(text, encoding="utf-8")
+    built = build_sheet(path)
+    numbers = built.derivation.numbers
+    assert numbers.valid_until[0] == pytest.approx(6000.0)
+    assert numbers.span[1] == pytest.approx(6000.0)
+    record = render(built.sheet, ("txt",))["txt"]
+    assert "The tank overflows at t = 100.0 min" in record and "Values past it (120 min) do not apply" in record
