@@ -12,6 +12,7 @@ import pytest
 
 from calcsheet.errors import CalcsheetError
 from calcsheet.kinds.linear_reservoir import KIND
+from calcsheet.kinds.catalogue import starter_text  # what `calcsheet new` writes
 from calcsheet.pipeline import build_sheet, render
 
 HOUR = 3600.0
@@ -21,13 +22,6 @@ def write(tmp_path, name: str, text: str):
     path = tmp_path / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
     return path
-
-
-def starter_text(kind) -> str:
-    """What `calcsheet new` makes of a kind: its starter, [model], example parameters and initial value."""
-    parameters = "\n".join(f'{slot.name} = "{slot.example}"' for slot in kind.slots)
-    return (f'{kind.starter}\n[model]\nkind = "{kind.name}"\n\n[parameters]\n{parameters}\n\n'
-            f'[initial]\nvalue = "{kind.unknown.example}"\n')
 
 
 # A lowland storage pond fed by a steady pumped inflow (invented): k = 10 h, inflow 2.5 m^3/s,
@@ -124,7 +118,7 @@ def test_storage_constant_in_the_wrong_dimension_names_file_slot_kind_and_unit(t
 
 
 def test_starter_builds_with_all_criteria_passing(tmp_path):
-    built = build_sheet(write(tmp_path, "starter", starter_text(KIND)))
+    built = build_sheet(write(tmp_path, "starter", starter_text(KIND.name)))
     derivation = built.derivation
     assert len(derivation.numbers.verdicts) == 2 and all(v.passed for v in derivation.numbers.verdicts)
     assert derivation.passed

@@ -13,6 +13,7 @@ from pathlib import Path
 
 from calcsheet.errors import CalcsheetError
 from calcsheet.kinds.mixing_tank import KIND
+from calcsheet.kinds.catalogue import starter_text  # what `calcsheet new` writes
 from calcsheet.pipeline import build_sheet, render
 
 MINUTE = 60.0
@@ -22,13 +23,6 @@ def write(tmp_path, name: str, text: str):
     path = tmp_path / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
     return path
-
-
-def starter_text(kind) -> str:
-    """What `calcsheet new` makes of a kind: its starter, [model], example parameters and initial value."""
-    parameters = "\n".join(f'{slot.name} = "{slot.example}"' for slot in kind.slots)
-    return (f'{kind.starter}\n[model]\nkind = "{kind.name}"\n\n[parameters]\n{parameters}\n\n'
-            f'[initial]\nvalue = "{kind.unknown.example}"\n')
 
 
 # A process tank drawn down faster than it is fed (invented): it runs empty at 15/(0.6 - 0.4) = 75 min.
@@ -61,7 +55,7 @@ def draining(tmp_path_factory):
 
 @pytest.fixture(scope="module")
 def starter(tmp_path_factory):
-    built = build_sheet(write(tmp_path_factory.mktemp("starter"), "starter", starter_text(KIND)))
+    built = build_sheet(write(tmp_path_factory.mktemp("starter"), "starter", starter_text(KIND.name)))
     return built, render(built.sheet, ("txt",))
 
 
@@ -215,8 +209,6 @@ at = ["5 min", "30 min"]
 def test_overflow_inside_the_plotted_range_stops_plot_and_search(tmp_path):
     """V(t) = V_0 + (q_in - q_out) t reaches V_max at (V_max - V_0)/(q_in - q_out): 20 m^3 to 60 m^3 at
     0.4 m^3/min takes 100 min (arithmetic of the volume balance; common practice, no source)."""
-    from calcsheet.pipeline import build_sheet, render
-
     text = (Path(__file__).resolve().parents[2] / "inputs" / "equalisation-tank-tracer.toml").read_text()
     text = text.replace('to = "100 min"', 'to = "150 min"').replace(
         'at = ["30 min", "60 min", "90 min"]', 'at = ["30 min", "60 min", "90 min", "120 min"]')
