@@ -96,6 +96,16 @@ class Criterion:
 
 
 @dataclass(frozen=True)
+class Switch:
+    """From ``at`` on, the model is ``model`` (new parameters or forcing); its initial value is
+    whatever the previous interval reaches at ``at`` (continuity of the unknown)."""
+
+    at: "Point"
+    text: str
+    model: "Model"
+
+
+@dataclass(frozen=True)
 class Model:
     path: str
     sheet: SheetInfo
@@ -114,6 +124,7 @@ class Model:
     criteria: tuple[Criterion, ...] = ()
     plot_to: Point | None = None  # end of the plotted range, when the input sets it
     kind: object = None  # a kinds.base.KindUse when the input named a model kind
+    switches: tuple[Switch, ...] = ()  # later intervals, in order
     unused_parameters: tuple[str, ...] = field(default=())
 
     @property

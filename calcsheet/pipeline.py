@@ -26,6 +26,12 @@ def build_sheet(path: Path) -> Built:
     from calcsheet.source.loader import load_model
 
     model = load_model(path)
+    if model.switches:
+        from calcsheet.derive.piecewise import derive_piecewise
+        from calcsheet.sheet.piecewise import compose_piecewise
+
+        derivation = derive_piecewise(model)
+        return Built(path, derivation, compose_piecewise(derivation))
     derivation = derive(model)
     return Built(path, derivation, compose(derivation))
 

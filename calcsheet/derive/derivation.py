@@ -26,6 +26,7 @@ class Derivation:
     curve: tuple[tuple[float, float], ...]  # (x, y) in SI over numbers.span, for plots
     quadrature: QuadratureLog | None
     quadrature_method: str = QUAD_METHOD
+    response: object = None  # the ResponseEvaluator: y(x) in SI, for intervals that follow this one
 
     @property
     def passed(self) -> bool:
@@ -47,4 +48,4 @@ def derive(model: Model) -> Derivation:
     verification = verify(model, solution, y, [float(x) for x in checked])
     return Derivation(model=model, classification=cls, solution=solution, numbers=numbers,
                       verification=verification, curve=curve,
-                      quadrature=None if solution.closed_form else y.log)
+                      quadrature=None if solution.closed_form else y.log, response=y)

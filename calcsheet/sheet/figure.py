@@ -11,9 +11,10 @@ def response_figure(d) -> Figure:
     x_of = lambda value: from_si(value, m.variable.unit)  # noqa: E731
     y_of = lambda value: from_si(value, m.unknown.unit)  # noqa: E731
     curve = tuple((x_of(x), y_of(y)) for x, y in d.curve)
-    start, end = num.span
+    start, end = num.span[0], d.curve[-1][0]
     independent = tuple((x_of(x), y_of(yi)) for x, _, yi in d.verification.compared if start <= x <= end)
-    points = tuple((x_of(v.at.si), y_of(v.y), f"{m.unknown.name}({v.at.text})") for v in num.values)
+    points = tuple((x_of(v.at.si), y_of(v.y), f"{m.unknown.name}({v.at.text})") for v in num.values
+                   if start <= v.at.si <= end)  # a point past the plotted range stays in the tables only
     levels = [Guide(y_of(r.level.si), f"level {r.level.text}", "") for r in num.reach]
     limits = []
     for v in num.verdicts:

@@ -14,7 +14,7 @@ from typing import Any
 import sympy as sp
 
 from calcsheet.errors import CalcsheetError, InputError, ModelRefused
-from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetInfo
+from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetInfo, Switch
 from calcsheet.source import expressions as ex
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.source import sheet_keys, units
@@ -34,8 +34,9 @@ TABLES = {
     "plot": {"to"},
     "signoff": set(sheet_keys.ROLES),
     "revisions": {"revision", "date", "description"},
+    "switch": {"at", "text", "parameters", "forcing"},
 }
-LISTS = {"criteria", "revisions"}  # written as [[name]]
+LISTS = {"criteria", "revisions", "switch"}  # written as [[name]]
 RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | {"reach", "final_value", "time_constant"}
 _CHECK = re.compile(
     r"^\s*(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\(\s*(?P<argument>[^()]*?)\s*\))?\s*"
@@ -87,6 +88,7 @@ class _Builder:
     def __init__(self, file: str, raw: dict):
         self.file = file
         self.raw = raw
+        self.original = raw  # as read: each switched interval starts again from it
 
     def build(self) -> Model:
         self.check_keys()
@@ -128,7 +130,33 @@ class _Builder:
             criteria=self.criteria(unknown, variable), unused_parameters=unused,
             plot_to=self.plot_end(initial_at, variable),
             kind=kind_use and kind_checks(kind_use, parameters),
+            switches=self.switches(initial_at, variable),
         )
+
+    def switches(self, initial_at: Point, variable: Declared) -> tuple[Switch, ...]:
+        """Each [[switch]] becomes the model of the interval that follows it."""
+        result, previous = [], initial_at
+        for index, entry in enumerate(self.original.get("switch", [])):
+            where = f"switch[{index + 1}]"
+            at = self.point(self.required(entry, "at", f"{where}.at"), variable, f"{where}.at")
+            if at.si <= previous.si:
+                raise InputError(f"'{at.text}' must come after {previous.text}", f"{where}.at")
+            changes = entry.get("parameters", {})
+            if not isinstance(changes, dict):
+                raise InputError("must be a table of parameter values", f"{where}.parameters")
+            raw = {k: v for k, v in self.original.items() if k not in ("evaluate", "criteria", "plot", "switch")}
+            raw["parameters"] = {**self.original.get("parameters", {}), **changes}
+            raw["initial"] = {"at": entry["at"], "value": self.original.get("initial", {}).get("value")}
+            if "forcing" in entry:
+                raw["forcing"] = entry["forcing"]
+            try:
+                model = _Builder(self.file, raw).build()
+            except CalcsheetError as error:
+                raise error.located(key=where) if not error.key else _prefixed(error, where)
+            text = self.string(entry, "text", f"{where}.text") or f"switch {index + 1}"
+            result.append(Switch(at, text, model))
+            previous = at
+        return tuple(result)
 
     # ----------------------------------------------------------------- tables and keys
     def check_keys(self) -> None:
@@ -356,6 +384,11 @@ def _refuse_wrong_derivatives(equation: ex.Equation, unknown: Declared, variable
         if d.order != 1:
             raise ModelRefused(f"'{d.text}' is a second derivative: the equation is of order 2, and only "
                                "first-order equations are solved by an integrating factor")
+
+
+def _prefixed(error, where: str):
+    error.key = f"{where}.{error.key}"
+    return error
 
 
 def _wrap_key(thunk, key: str):

@@ -1,0 +1,90 @@
+"""Compose a switched model: each interval's steps in turn, then the results across the switches."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from calcsheet.sheet import cautions
+from calcsheet.sheet.compose import _found, _outcome, compose
+from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
+from calcsheet.sheet.figure import response_figure
+from calcsheet.sheet.quantities import in_units, record_value
+
+
+def compose_piecewise(pd) -> Sheet:
+    parts = [compose(interval.derivation) for interval in pd.intervals]
+    first = parts[0]
+    sections = [Section("response", "Response at a glance", (response_figure(pd),)),
+                next(s for s in first.sections if s.key == "basis"), _switch_list(pd)]
+    for k, (interval, part) in enumerate(zip(pd.intervals, parts), start=1):
+        sections += [Section(f"i{k}_{s.key}", f"Interval {k}, step {s.number}: {s.title}", s.blocks)
+                     for s in part.sections if s.number]
+    sections.append(_across(pd))
+    record = {**first.record, "intervals": [_interval_record(i, p) for i, p in zip(pd.intervals, parts)],
+              **_combined_record(pd)}
+    notes = cautions.hazard_notes(pd.model, tuple(y for _, y in pd.curve))
+    return replace(first, outcome=_outcome(pd), sections=tuple(sections), record=record,
+                   cautions=(cautions.GENERAL,) + notes)
+
+
+def _switch_list(pd) -> Section:
+    m = pd.model
+    rows = []
+    for k, interval in enumerate(pd.intervals, start=1):
+        end = in_units(interval.end, m.variable) if interval.end is not None else "end"
+        start_value = interval.derivation.model.initial_value
+        rows.append((str(k), f"{in_units(interval.start, m.variable)} to {end}", interval.text,
+                     in_units(start_value.si, m.unknown)))
+    return Section("switches", "Intervals and switches", (
+        Paragraph(f"The model changes at each switch. Every interval is derived on its own below; its initial value "
+                  f"is the value the previous interval reaches at the switch, since {m.unknown.name} cannot jump."),
+        Table(("Interval", f"{m.variable.name}", "At its start", f"{m.unknown.name} at its start"), tuple(rows)),
+    ))
+
+
+def _across(pd) -> Section:
+    m, num = pd.model, pd.numbers
+    blocks = []
+    if num.values:
+        blocks.append(Table((m.variable.name, m.unknown.name),
+                            tuple((v.at.text, in_units(v.y, m.unknown)) for v in num.values),
+                            f"Values of {m.unknown.name}"))
+    if num.reach:
+        blocks.append(Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
+                            tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached",
+                                   r.note) for r in num.reach), "Levels reached after the initial point"))
+    if num.verdicts:
+        blocks.append(Table(("Criterion", "Check", "Found", "Result"),
+                            tuple((v.criterion.text, v.criterion.check, _found(v, pd), "PASS" if v.passed else "FAIL")
+                                  for v in num.verdicts), "Acceptance criteria",
+                            row_status=tuple("pass" if v.passed else "fail" for v in num.verdicts)))
+    checks = pd.verification.checks
+    blocks.append(Table(("Check", "Method", "Result", "Detail"),
+                        tuple((c.name, c.method, "passed" if c.passed else "FAILED", c.detail) for c in checks),
+                        "Verification across the switches",
+                        row_status=tuple("pass" if c.passed else "fail" for c in checks), status_column=2))
+    return Section("across", "Results across the switches", tuple(blocks))
+
+
+def _interval_record(interval, part) -> dict:
+    keep = ("classification", "solution", "time_constant", "final_value", "verification")
+    return {"start": record_value(interval.start, interval.derivation.model.variable),
+            "end": record_value(interval.end, interval.derivation.model.variable),
+            "switch": interval.text, **{k: part.record[k] for k in keep}}
+
+
+def _combined_record(pd) -> dict:
+    m, num = pd.model, pd.numbers
+    return {
+        "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown)} for v in num.values],
+        "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable)} for r in num.reach],
+        "criteria": [{"text": v.criterion.text, "check": v.criterion.check, "passed": v.passed,
+                      "found": record_value(v.actual, m.unknown if v.criterion.subject in ("value", "final_value")
+                                            else m.variable)} for v in num.verdicts],
+        "verification": {"passed": pd.verification.passed,
+                         "checks": [{"name": c.name, "passed": c.passed, "method": c.method, "detail": c.detail}
+                                    for c in pd.verification.checks]},
+        "passed": pd.passed,
+        "time_constant": record_value(num.time_constant, m.variable),
+        "final_value": record_value(num.final_value, m.unknown),
+    }
