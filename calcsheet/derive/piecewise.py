@@ -48,15 +48,18 @@ def derive_piecewise(model: Model) -> PiecewiseDerivation:
     y = _Joined(intervals)
     last = intervals[-1].derivation.numbers
     values = tuple(ValueAt(p, y(p.si)) for p in model.evaluate_at)
-    reaches = tuple(Reach(level, _first_crossing(level.si, y, grid, samples),
-                          "" if _first_crossing(level.si, y, grid, samples) is not None else
-                          "not reached over the searched range") for level in model.reach)
+    reaches = tuple(_reach(level, y, grid, samples) for level in model.reach)
     verdicts = tuple(_verdict(c, y, grid, samples, last.time_constant, last.final_value, model) for c in model.criteria)
     curve = tuple(point for i in intervals for point in i.derivation.curve)
     span = (model.initial_at.si, curve[-1][0])
     numbers = replace(last, values=values, reach=reaches, verdicts=verdicts, span=span, sine=None)
     checked = sorted({v.at.si for v in values} | {x for x, _ in curve[:: max(len(curve) // 16, 1)]})
     return PiecewiseDerivation(model, intervals, numbers, _switched_integration(model, intervals, y, checked), curve)
+
+
+def _reach(level: Point, y, grid, samples) -> Reach:
+    crossing = _first_crossing(level.si, y, grid, samples)
+    return Reach(level, crossing, "" if crossing is not None else "not reached over the searched range")
 
 
 def _derive_intervals(model: Model) -> tuple[Interval, ...]:
