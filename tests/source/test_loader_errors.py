@@ -19,7 +19,7 @@ import sympy as sp
 
 from calcsheet.derive.classify import classify
 from calcsheet.errors import CalcsheetError, InputError, ModelRefused
-from calcsheet.source.loader import ErrorList, load_model
+from calcsheet.source.loader import TABLES, ErrorList, load_model
 
 SHEET = '[sheet]\ntitle = "Relay coil current rise"\n'
 MODEL = '[model]\nequation = "L*di/dt + R*i = V_s"\nunknown = "i [A]"\nvariable = "t [s]"\n'
@@ -268,8 +268,8 @@ def test_several_unknown_tables_are_reported_together(tmp_path):
         load_model(path)
     lines = str(info.value).splitlines()
     assert lines == [
-        f"{path}: solver: unknown table (expected one of: sheet, model, forcing, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
-        f"{path}: graph: unknown table (expected one of: sheet, model, forcing, parameters, initial, evaluate, criteria, plot, signoff, revisions)",
+        f"{path}: solver: unknown table (expected one of: {', '.join(TABLES)})",
+        f"{path}: graph: unknown table (expected one of: {', '.join(TABLES)})",
     ]
 
 
