@@ -265,13 +265,9 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
                                      "estimate over every evaluation made for this sheet: "
                                      f"{number(d.quadrature.largest_error, 2)} {si_y}".rstrip() + "."))
     if num.values:
-        blocks.append(Table((f"{m.variable.name}", f"{m.unknown.name}"),
-                            tuple((f"{v.at.text}" + _also(v.at, m.variable), in_units(v.y, m.unknown))
-                                  for v in num.values), f"Values of {m.unknown.name}"))
+        blocks.append(values_table(m, num.values))
     if num.reach:
-        blocks.append(Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
-                            tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached", r.note)
-                                  for r in num.reach), "Levels reached after the initial point"))
+        blocks.append(reach_table(m, num.reach))
     if num.valid_until is not None:
         at, what = num.valid_until
         late = [v.at.text for v in num.values if v.at.si > at]
@@ -282,11 +278,33 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
         blocks.append(Note("warning", f"The solution stops existing near {m.variable.name} = "
                                       f"{in_units(num.domain_end, m.variable)} (a coefficient becomes singular)."))
     if num.verdicts:
-        blocks.append(Table(("Criterion", "Check", "Found", "Result"),
-                            tuple((v.criterion.text, v.criterion.check, _found(v, d), "PASS" if v.passed else "FAIL")
-                                  for v in num.verdicts), "Acceptance criteria",
-                            row_status=tuple("pass" if v.passed else "fail" for v in num.verdicts)))
+        blocks.append(criteria_table(m, num.verdicts))
     return Section("numbers", "Numbers", tuple(blocks))
+
+
+def values_table(m, values) -> Table:
+    return Table((m.variable.name, m.unknown.name),
+                 tuple((v.at.text + _also(v.at, m.variable), in_units(v.y, m.unknown)) for v in values),
+                 f"Values of {m.unknown.name}")
+
+
+def reach_table(m, reaches) -> Table:
+    return Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
+                 tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached", r.note)
+                       for r in reaches), "Levels reached after the initial point")
+
+
+def criteria_table(m, verdicts) -> Table:
+    return Table(("Criterion", "Check", "Found", "Result"),
+                 tuple((v.criterion.text, v.criterion.check, _found(v, m), "PASS" if v.passed else "FAIL")
+                       for v in verdicts), "Acceptance criteria",
+                 row_status=tuple("pass" if v.passed else "fail" for v in verdicts))
+
+
+def checks_table(checks, caption: str = "") -> Table:
+    return Table(("Check", "Method", "Result", "Detail"),
+                 tuple((c.name, c.method, "passed" if c.passed else "FAILED", c.detail) for c in checks), caption,
+                 row_status=tuple("pass" if c.passed else "fail" for c in checks), status_column=2)
 
 
 def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
@@ -320,8 +338,7 @@ def _quantity_latex(shown: str) -> str:
     return rf"{value}\ \mathrm{{{unit}}}" if unit else value
 
 
-def _found(v, d: Derivation) -> str:
-    m = d.model
+def _found(v, m) -> str:
     if v.criterion.subject in ("value", "final_value"):
         return in_units(v.actual, m.unknown)
     if v.actual is None:
@@ -355,9 +372,7 @@ def _si_unit_text(declared) -> str:
 
 
 def _verification(d: Derivation) -> Section:
-    rows = tuple((c.name, c.method, "passed" if c.passed else "FAILED", c.detail) for c in d.verification.checks)
     return Section("verification", "Verification", (
         Paragraph("Three independent checks; none reuses the arithmetic of the derivation."),
-        Table(("Check", "Method", "Result", "Detail"), rows,
-              row_status=tuple("pass" if c.passed else "fail" for c in d.verification.checks), status_column=2),
+        checks_table(d.verification.checks),
     ))

@@ -5,10 +5,11 @@ from __future__ import annotations
 from dataclasses import replace
 
 from calcsheet.sheet import cautions
-from calcsheet.sheet.compose import _found, _outcome, compose
+from calcsheet.sheet.compose import checks_table, compose, criteria_table, reach_table, values_table, _outcome
 from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.quantities import in_units, record_value
+from calcsheet.sheet.record import results_record, verification_record
 
 
 def compose_piecewise(pd) -> Sheet:
@@ -46,23 +47,12 @@ def _across(pd) -> Section:
     m, num = pd.model, pd.numbers
     blocks = []
     if num.values:
-        blocks.append(Table((m.variable.name, m.unknown.name),
-                            tuple((v.at.text, in_units(v.y, m.unknown)) for v in num.values),
-                            f"Values of {m.unknown.name}"))
+        blocks.append(values_table(m, num.values))
     if num.reach:
-        blocks.append(Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
-                            tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached",
-                                   r.note) for r in num.reach), "Levels reached after the initial point"))
+        blocks.append(reach_table(m, num.reach))
     if num.verdicts:
-        blocks.append(Table(("Criterion", "Check", "Found", "Result"),
-                            tuple((v.criterion.text, v.criterion.check, _found(v, pd), "PASS" if v.passed else "FAIL")
-                                  for v in num.verdicts), "Acceptance criteria",
-                            row_status=tuple("pass" if v.passed else "fail" for v in num.verdicts)))
-    checks = pd.verification.checks
-    blocks.append(Table(("Check", "Method", "Result", "Detail"),
-                        tuple((c.name, c.method, "passed" if c.passed else "FAILED", c.detail) for c in checks),
-                        "Verification across the switches",
-                        row_status=tuple("pass" if c.passed else "fail" for c in checks), status_column=2))
+        blocks.append(criteria_table(m, num.verdicts))
+    blocks.append(checks_table(pd.verification.checks, "Verification across the switches"))
     return Section("across", "Results across the switches", tuple(blocks))
 
 
@@ -75,16 +65,6 @@ def _interval_record(interval, part) -> dict:
 
 def _combined_record(pd) -> dict:
     m, num = pd.model, pd.numbers
-    return {
-        "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown)} for v in num.values],
-        "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable)} for r in num.reach],
-        "criteria": [{"text": v.criterion.text, "check": v.criterion.check, "passed": v.passed,
-                      "found": record_value(v.actual, m.unknown if v.criterion.subject in ("value", "final_value")
-                                            else m.variable)} for v in num.verdicts],
-        "verification": {"passed": pd.verification.passed,
-                         "checks": [{"name": c.name, "passed": c.passed, "method": c.method, "detail": c.detail}
-                                    for c in pd.verification.checks]},
-        "passed": pd.passed,
-        "time_constant": record_value(num.time_constant, m.variable),
-        "final_value": record_value(num.final_value, m.unknown),
-    }
+    return {**results_record(m, num), "verification": verification_record(pd.verification), "passed": pd.passed,
+            "time_constant": record_value(num.time_constant, m.variable),
+            "final_value": record_value(num.final_value, m.unknown)}

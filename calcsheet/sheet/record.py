@@ -49,17 +49,26 @@ def build_record(d, n) -> dict:
             "phase_lag": {"value": rounded(num.sine.phase_lag_deg), "unit": "deg"},
             "transient_below_1_percent_after": record_value(num.sine.settled_after, m.variable),
         },
+        **results_record(m, num),
+        "verification": verification_record(d.verification),
+        "passed": d.passed,
+    }
+
+
+def results_record(m, num) -> dict:
+    """Values, levels reached and criteria, each number with its declared unit."""
+    return {
         "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown)} for v in num.values],
         "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable)} for r in num.reach],
         "criteria": [{"text": v.criterion.text, "check": v.criterion.check, "passed": v.passed,
                       "found": _found(v, m)} for v in num.verdicts],
-        "verification": {
-            "passed": d.verification.passed,
-            "checks": [{"name": ch.name, "passed": ch.passed, "method": ch.method, "detail": ch.detail}
-                       for ch in d.verification.checks],
-        },
-        "passed": d.passed,
     }
+
+
+def verification_record(verification) -> dict:
+    return {"passed": verification.passed,
+            "checks": [{"name": ch.name, "passed": ch.passed, "method": ch.method, "detail": ch.detail}
+                       for ch in verification.checks]}
 
 
 def _found(verdict, m):
