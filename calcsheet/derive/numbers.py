@@ -102,8 +102,8 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     if limit is not None:
         span_end = min(span_end, limit[0])
     points = tuple(ValueAt(pt, y(pt.si)) for pt in model.evaluate_at)
-    reaches = tuple(_reach(level, y, grid[: len(samples)], samples, final, model) for level in model.reach)
-    verdicts = tuple(_verdict(c, y, grid[: len(samples)], samples, tau, final, model) for c in model.criteria)
+    reaches = tuple(reach_for(level, y, grid[: len(samples)], samples, final, model) for level in model.reach)
+    verdicts = tuple(verdict_for(c, y, grid[: len(samples)], samples, tau, final, model) for c in model.criteria)
     return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
                    final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
                    domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
@@ -240,8 +240,8 @@ def _steps_settled(expr: sp.Expr, x: sp.Symbol) -> sp.Expr:
     return expr.replace(sp.Heaviside, lambda *args: settle(args[0]))
 
 
-def _reach(level: Point, y, grid, samples, final, model: Model) -> Reach:
-    x = _first_crossing(level.si, y, grid, samples)
+def reach_for(level: Point, y, grid, samples, final, model: Model) -> Reach:
+    x = first_crossing(level.si, y, grid, samples)
     if x is not None:
         return Reach(level, x)
     searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
@@ -250,7 +250,7 @@ def _reach(level: Point, y, grid, samples, final, model: Model) -> Reach:
     return Reach(level, None, f"not reached {searched}")
 
 
-def _first_crossing(level: float, y, grid, samples) -> float | None:
+def first_crossing(level: float, y, grid, samples) -> float | None:
     if len(samples) == 0:
         return None
     gap = samples - level
@@ -267,12 +267,12 @@ def _first_crossing(level: float, y, grid, samples) -> float | None:
     return float(optimize.brentq(lambda s: y(s) - level, grid[i], grid[i + 1], xtol=1e-13 * max(span, 1e-300), rtol=1e-14))
 
 
-def _verdict(criterion: Criterion, y, grid, samples, tau, final, model: Model) -> Verdict:
+def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model) -> Verdict:
     note = ""
     if criterion.subject == "value":
         actual = y(criterion.argument.si)
     elif criterion.subject == "reach":
-        actual = _first_crossing(criterion.argument.si, y, grid, samples)
+        actual = first_crossing(criterion.argument.si, y, grid, samples)
         if actual is None:
             note = "level not reached; taken as never"
     elif criterion.subject == "time_constant":

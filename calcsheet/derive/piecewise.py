@@ -14,8 +14,8 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from calcsheet.derive.derivation import Derivation, derive
-from calcsheet.derive.numbers import SEARCH_SCALES, Numbers, Reach, ValueAt, _first_crossing, _verdict
-from calcsheet.derive.verify import AGREEMENT, ODE_METHOD, RTOL, Check, Verification, _slope_function, bound
+from calcsheet.derive.numbers import SEARCH_SCALES, Numbers, ValueAt, reach_for, verdict_for
+from calcsheet.derive.verify import AGREEMENT, ODE_METHOD, RTOL, Check, Verification, slope_function, bound
 from calcsheet.model import Model, Point
 from calcsheet.source.units import from_si, registry
 
@@ -48,18 +48,13 @@ def derive_piecewise(model: Model) -> PiecewiseDerivation:
     y = _Joined(intervals)
     last = intervals[-1].derivation.numbers
     values = tuple(ValueAt(p, y(p.si)) for p in model.evaluate_at)
-    reaches = tuple(_reach(level, y, grid, samples) for level in model.reach)
-    verdicts = tuple(_verdict(c, y, grid, samples, last.time_constant, last.final_value, model) for c in model.criteria)
+    reaches = tuple(reach_for(level, y, grid, samples, last.final_value, model) for level in model.reach)
+    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, model) for c in model.criteria)
     curve = tuple(point for i in intervals for point in i.derivation.curve)
     span = (model.initial_at.si, curve[-1][0])
     numbers = replace(last, values=values, reach=reaches, verdicts=verdicts, span=span, sine=None)
     checked = sorted({v.at.si for v in values} | {x for x, _ in curve[:: max(len(curve) // 16, 1)]})
     return PiecewiseDerivation(model, intervals, numbers, _switched_integration(model, intervals, y, checked), curve)
-
-
-def _reach(level: Point, y, grid, samples) -> Reach:
-    crossing = _first_crossing(level.si, y, grid, samples)
-    return Reach(level, crossing, "" if crossing is not None else "not reached over the searched range")
 
 
 def _derive_intervals(model: Model) -> tuple[Interval, ...]:
@@ -126,7 +121,7 @@ def _switched_integration(model: Model, intervals, y, points: list[float]) -> Ve
         stop = interval.end if interval.end is not None else max(inside + [interval.start])
         targets = sorted(set(inside) | {stop})
         if stop > interval.start:
-            result = solve_ivp(_slope_function(local), (interval.start, stop), [state], method=ODE_METHOD,
+            result = solve_ivp(slope_function(local), (interval.start, stop), [state], method=ODE_METHOD,
                                t_eval=targets, rtol=RTOL, atol=RTOL * scale * 1e-2)
             if not result.success:
                 failed = Check("switched integration", False, ODE_METHOD, f"the integrator failed: {result.message}")

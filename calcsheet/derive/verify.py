@@ -110,7 +110,7 @@ def vanishes(expr: sp.Expr) -> tuple[bool, bool]:
 
 def _integration(model: Model, y, points: list[float]) -> dict:
     """Integrate the stated equation numerically and compare with the derived values."""
-    f = _slope_function(model)
+    f = slope_function(model)
     x0, y0 = model.initial_at.si, model.initial_value.si
     targets = sorted({p for p in points if p >= x0})
     if not targets or targets[-1] == x0:
@@ -132,7 +132,7 @@ def _integration(model: Model, y, points: list[float]) -> dict:
             "compared": compared}
 
 
-def _slope_function(model: Model):
+def slope_function(model: Model):
     """dy/dx from the stated equation F(x, y, y') = 0, which is linear in y'."""
     values = model.numeric_values()
     F = sp.lambdify((model.variable.symbol, model.unknown.symbol, model.derivative),
