@@ -72,14 +72,14 @@ def new(name: str, file: str | None) -> None:
     """Write a commented starter input for kind NAME to FILE (default: NAME.toml)."""
     from calcsheet.errors import InputError
     from calcsheet.kinds.catalogue import starter_text
-    from calcsheet.pipeline import write_text_file
+    from calcsheet.pipeline import write_file
 
     text = _guard(lambda: starter_text(name))
     target = Path(file or f"{name}.toml")
     if target.exists():
         _guard(lambda: (_ for _ in ()).throw(InputError("already exists; choose another name or remove it",
                                                         file=str(target))))
-    write_text_file(target, text)
+    write_file(target, text)
     click.echo(f"wrote {target}: build it with `calcsheet build {target}`")
 
 

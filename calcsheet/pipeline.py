@@ -44,28 +44,23 @@ def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[s
 
 
 def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str | bytes]) -> list[Path]:
-    """Write each output to a temporary file in ``out_dir`` and rename it into place."""
-    out_dir.mkdir(parents=True, exist_ok=True)
-    written = []
-    for fmt, text in rendered.items():
-        target = out_dir / f"{stem}.{fmt}"
-        handle, temporary = tempfile.mkstemp(dir=out_dir, prefix=f".{stem}.", suffix=".part")
-        try:
-            with os.fdopen(handle, "wb") as stream:
-                stream.write(text if isinstance(text, bytes) else text.encode("utf-8"))
-            os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes 0600; outputs are ordinary files
-            os.replace(temporary, target)
-        except BaseException:
-            Path(temporary).unlink(missing_ok=True)
-            raise
-        written.append(target)
-    return written
+    """Write each output as ``out_dir/<stem>.<format>``, each one atomically."""
+    return [write_file(out_dir / f"{stem}.{fmt}", data) for fmt, data in rendered.items()]
 
 
-def write_text_file(target: Path, text: str) -> None:
-    """One text file, written atomically like the outputs."""
-    write_outputs(target.parent if str(target.parent) else Path("."), target.name.rsplit(".", 1)[0],
-                  {target.name.rsplit(".", 1)[1] if "." in target.name else "toml": text})
+def write_file(target: Path, data: str | bytes) -> Path:
+    """Write to a temporary file beside ``target`` and rename it into place: never half a file."""
+    target.parent.mkdir(parents=True, exist_ok=True)
+    handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.", suffix=".part")
+    try:
+        with os.fdopen(handle, "wb") as stream:
+            stream.write(data if isinstance(data, bytes) else data.encode("utf-8"))
+        os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes 0600; outputs are ordinary files
+        os.replace(temporary, target)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+    return target
 
 
 def collect_inputs(items: tuple[str, ...]) -> list[Path]:
