@@ -58,12 +58,7 @@ class ResponseEvaluator:
     def _carried(self, P, r, grid: np.ndarray) -> np.ndarray:
         carried, total = [0.0], 0.0
         for a, b in zip(grid[:-1], grid[1:]):
-            Pb = P(b)
-            piece, error = integrate.quad(lambda s: math.exp(P(s) - Pb) * r(s), a, b,
-                                          epsabs=0.0, epsrel=1e-12, limit=400)
-            total = total * math.exp(P(a) - Pb) + piece
-            self.log.evaluations += 1
-            self.log.largest_error = max(self.log.largest_error, abs(error))
+            total = total * math.exp(P(a) - P(b)) + self._quadrature(P, r, a, b)
             carried.append(total)
         return np.array(carried)
 
@@ -74,14 +69,15 @@ class ResponseEvaluator:
             except (ZeroDivisionError, ValueError, OverflowError, TypeError):
                 return math.nan
         for P, r in self.open_parts:
-            value += self._quadrature(P, r, x)
+            value += self._quadrature(P, r, self.x0, x)
         return value
 
-    def _quadrature(self, P, r, x: float) -> float:
-        if x == self.x0:
+    def _quadrature(self, P, r, a: float, b: float) -> float:
+        """The integral from a to b of exp(P(s) - P(b)) r(s) ds, its error estimate logged."""
+        if a == b:
             return 0.0
-        Px = P(x)
-        result, error = integrate.quad(lambda s: math.exp(P(s) - Px) * r(s), self.x0, x,
+        Pb = P(b)
+        result, error = integrate.quad(lambda s: math.exp(P(s) - Pb) * r(s), a, b,
                                        epsabs=0.0, epsrel=1e-12, limit=400)
         self.log.evaluations += 1
         self.log.largest_error = max(self.log.largest_error, abs(error))
