@@ -6,11 +6,13 @@ shape (a term non-linear in y or y', or a derivative that cancels out).
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import sympy as sp
 
 from calcsheet.derive.budget import SIMPLIFY_SECONDS, within
+from calcsheet.derive.safe_numeric import has_infinity
 from calcsheet.errors import ModelRefused
 from calcsheet.mathtext import plain
 from calcsheet.model import Model
@@ -31,6 +33,7 @@ class Classification:
 
 def classify(model: Model) -> Classification:
     y, dy, x = model.unknown.symbol, model.derivative, model.variable.symbol
+    _refuse_singular_values(model)
     residual = sp.expand(model.residual)
     _refuse_nonlinear_terms(residual, y, dy, model)
     a = sp.expand(sp.diff(residual, dy))
@@ -43,6 +46,7 @@ def classify(model: Model) -> Classification:
         raise ModelRefused(f"with the stated values the coefficient of d{model.unknown.name}/d{model.variable.name}, "
                            f"{plain(a)}, is zero: the equation is algebraic, not differential", "model.equation")
     p = tidy(b / a)
+    _refuse_bad_coefficient(p, model)
     r = sp.Add(*(tidy(term) for term in sp.Add.make_args(sp.expand(-c / a, deep=False))))
     return Classification(order=1, linear=True, homogeneous=_is_zero(r),
                           constant_coefficients=x not in p.free_symbols, a=a, b=b, c=c, p=p, r=r)
@@ -69,6 +73,33 @@ def _refuse_nonlinear_terms(residual: sp.Expr, y: sp.Symbol, dy: sp.Symbol, mode
                     f"term '{plain(term)}' is not linear in {model.unknown.name} and "
                     f"d{model.unknown.name}/d{model.variable.name}; the integrating-factor method "
                     "needs a linear equation", "model.equation")
+
+
+def _refuse_singular_values(model: Model) -> None:
+    """A stated value that makes a term infinite or complex (R = 0 under a divisor, the root of a
+    negative number) is refused before any arithmetic, naming the parameter and the term."""
+    values = model.numeric_values()
+    for p in model.parameters:
+        if not math.isfinite(p.si):
+            raise ModelRefused(f"parameter {p.name} = {p.text} is not finite", f"parameters.{p.name}")
+    for side in (model.lhs, model.rhs):
+        for term in sp.Add.make_args(side):
+            numeric = term.subs(values)
+            if has_infinity(numeric):
+                zeros = [p.name for p in model.parameters if p.si == 0 and p.symbol in term.free_symbols]
+                named = f"{', '.join(f'{n} = 0' for n in zeros)} makes" if zeros else "the stated values make"
+                raise ModelRefused(f"{named} the equation singular: the term {plain(term)} is infinite or undefined",
+                                   f"parameters.{zeros[0]}" if zeros else "model.equation")
+            if numeric.has(sp.I):
+                raise ModelRefused(f"the stated values make the term {plain(term)} complex; every term must be real",
+                                   "model.equation")
+
+
+def _refuse_bad_coefficient(p: sp.Expr, model: Model) -> None:
+    numeric = p.subs(model.numeric_values())
+    if has_infinity(numeric) or numeric.has(sp.I):
+        raise ModelRefused(f"with the stated values the coefficient p = {plain(p)} of {model.unknown.name} is "
+                           "infinite, undefined or complex", "model.equation")
 
 
 def _is_zero(expr: sp.Expr) -> bool:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -10,7 +12,9 @@ from calcsheet.derive.classify import Classification, classify
 from calcsheet.derive.evaluate import QUAD_METHOD, QuadratureLog, make_evaluator
 from calcsheet.derive.integrating_factor import Solution, solve
 from calcsheet.derive.numbers import Numbers, compute_numbers
+from calcsheet.derive.safe_numeric import NotFinite
 from calcsheet.derive.verify import Verification, verify
+from calcsheet.errors import ModelRefused
 from calcsheet.model import Model
 
 CURVE_POINTS = 241
@@ -34,18 +38,43 @@ class Derivation:
 
 
 def derive(model: Model) -> Derivation:
+    if not math.isfinite(model.initial_value.si) or not math.isfinite(model.initial_at.si):
+        raise ModelRefused("the initial condition is not a finite number", "initial")
     cls = classify(model)
     solution = solve(model, cls)
-    y = make_evaluator(model, solution)
+    try:
+        with warnings.catch_warnings():
+            # numpy's floating-point warnings are handled where they matter (evaluate.py, verify.py);
+            # any left are not the user's to read
+            warnings.simplefilter("ignore", RuntimeWarning)
+            return _numeric(model, cls, solution)
+    except NotFinite as failure:
+        raise ModelRefused(_not_finite_message(model, failure), "model.equation") from None
+
+
+def _numeric(model: Model, cls: Classification, solution: Solution) -> Derivation:
+    reach = [abs(p.si) for p in model.evaluate_at] + [abs(model.initial_at.si)]
+    y = make_evaluator(model, solution, scale=max(reach + [1.0]))
     numbers = compute_numbers(model, cls, solution, y)
     start, end = numbers.span
     xs = np.linspace(start, end, CURVE_POINTS)
     curve = tuple((float(x), float(v)) for x, v in zip(xs, y.on_grid(xs)))
-    checked = [v.at.si for v in numbers.values] + [r.x for r in numbers.reach if r.x is not None]
+    checked = [v.at.si for v in numbers.values if v.applies] + [r.x for r in numbers.reach if r.x is not None]
     checked += [x for x in np.linspace(start, end, 13)[1:]]
     if numbers.domain_end is not None:
         checked = [x for x in checked if x < numbers.domain_end]
+    if numbers.valid_until is not None:
+        checked = [x for x in checked if x <= numbers.valid_until[0]]
     verification = verify(model, solution, y, [float(x) for x in checked])
     return Derivation(model=model, classification=cls, solution=solution, numbers=numbers,
                       verification=verification, curve=curve,
                       quadrature=None if solution.closed_form else y.log, response=y)
+
+
+def _not_finite_message(model: Model, failure: NotFinite) -> str:
+    from calcsheet.sheet.quantities import in_units
+
+    where = in_units(failure.x, model.variable)
+    why = failure.what or "a term of it is infinite there and has no finite limit"
+    return (f"the equation is not finite at {model.variable.name} = {where} ({why}); the response cannot be "
+            "computed through that point")

@@ -9,6 +9,7 @@ exp(P(s) - P(x)) r(s), whose exponential never exceeds 1 for a decaying system.
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass, field
 
 import mpmath
@@ -17,10 +18,14 @@ import sympy as sp
 from scipy import integrate
 
 from calcsheet.derive.integrating_factor import Solution
+from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, has_infinity, real_float
+from calcsheet.errors import ModelRefused
 from calcsheet.model import Model
 
+QUAD_RTOL = 1e-12
+QUAD_SUBINTERVALS = 400  # QUADPACK's bound on its work: at most this many subdivisions per integral
 QUAD_METHOD = ("adaptive Gauss–Kronrod quadrature (QUADPACK QAGS via scipy.integrate.quad), "
-               "relative tolerance 1e-12")
+               f"relative tolerance {QUAD_RTOL:.0e}, at most {QUAD_SUBINTERVALS} subintervals")
 
 
 @dataclass
@@ -29,6 +34,7 @@ class QuadratureLog:
 
     evaluations: int = 0
     largest_error: float = 0.0
+    troubled: int = 0  # evaluations where QUADPACK warned (subdivision limit, round-off): the value may be off
 
 
 @dataclass
@@ -40,6 +46,7 @@ class ResponseEvaluator:
     open_parts: list = field(default_factory=list)  # (P(x) numeric, r_i(x) numeric)
     x0: float = 0.0
     log: QuadratureLog = field(default_factory=QuadratureLog)
+    closed_limit: object = None  # a SafeFunction of the closed form, for limits at 0/0 points
 
     def on_grid(self, grid: np.ndarray) -> np.ndarray:
         """y on an ascending grid that starts at x0, quickly: for scanning and plotting.
@@ -48,9 +55,15 @@ class ResponseEvaluator:
         I(x_k+1) = I(x_k) exp(P(x_k) - P(x_k+1)) + integral from x_k to x_k+1, so each
         quadrature covers one short interval. Reported values use the exact call instead.
         """
-        with np.errstate(all="ignore"):
-            values = np.asarray(self.closed_vector(grid), dtype=complex) * np.ones_like(grid)
+        with np.errstate(all="ignore"), warnings.catch_warnings():
+            warnings.simplefilter("ignore", RuntimeWarning)
+            try:
+                values = np.asarray(self.closed_vector(grid), dtype=complex) * np.ones_like(grid)
+            except (ArithmeticError, ValueError, TypeError):
+                values = np.full(len(grid), np.nan, dtype=complex)
         values = np.where(np.abs(values.imag) <= 1e-12 * np.maximum(1.0, np.abs(values.real)), values.real, np.nan)
+        for k in np.nonzero(~np.isfinite(values))[0]:  # 0/0 or overflow in double: the precise value, or its limit
+            values[k] = self._closed_at(float(grid[k]))
         for P, r in self.open_parts:
             values = values + self._carried(P, r, grid)
         return values
@@ -63,43 +76,87 @@ class ResponseEvaluator:
         return np.array(carried)
 
     def __call__(self, x: float) -> float:
-        with mpmath.workdps(30):
-            try:
-                value = _real(self.closed(mpmath.mpf(x)))
-            except (ZeroDivisionError, ValueError, OverflowError, TypeError):
-                return math.nan
+        value = self._closed_at(x)
         for P, r in self.open_parts:
             value += self._quadrature(P, r, self.x0, x)
         return value
 
+    def _closed_at(self, x: float) -> float:
+        """The closed-form part in 30 digits; at a 0/0 point its limit; NaN where it has none."""
+        with mpmath.workdps(30):
+            try:
+                value = _real(self.closed(mpmath.mpf(x)))
+            except (ArithmeticError, ValueError, TypeError):
+                value = math.nan
+        if math.isfinite(value) or self.closed_limit is None:
+            return value
+        try:
+            return self.closed_limit.limit(x)
+        except NotFinite:
+            return math.nan
+
     def _quadrature(self, P, r, a: float, b: float) -> float:
-        """The integral from a to b of exp(P(s) - P(b)) r(s) ds, its error estimate logged."""
+        """The integral from a to b of exp(P(s) - P(b)) r(s) ds, its error estimate logged.
+
+        The work is bounded by QUADPACK's subdivision limit; a warning from it (limit reached, round-off
+        detected) is counted, so the sheet can say that the value may be off, and nothing is printed.
+        """
         if a == b:
             return 0.0
         Pb = P(b)
-        result, error = integrate.quad(lambda s: math.exp(P(s) - Pb) * r(s), a, b,
-                                       epsabs=0.0, epsrel=1e-12, limit=400)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            result, error = integrate.quad(lambda s: _growth(P(s) - Pb) * r(s), a, b,
+                                           epsabs=0.0, epsrel=QUAD_RTOL, limit=QUAD_SUBINTERVALS)
         self.log.evaluations += 1
         self.log.largest_error = max(self.log.largest_error, abs(error))
+        if any(issubclass(w.category, (integrate.IntegrationWarning, RuntimeWarning)) for w in caught):
+            self.log.troubled += 1
         return result
 
 
-def make_evaluator(model: Model, solution: Solution) -> ResponseEvaluator:
+def make_evaluator(model: Model, solution: Solution, scale: float = 1.0) -> ResponseEvaluator:
+    """Numeric y(x); ``scale`` is the natural size of the variable, for limits at 0/0 points."""
     x = model.variable.symbol
     values = {**model.numeric_values(), **solution.initial_values(model)}
     closed_expr = (solution.natural + solution.forced_closed).subs(values)
+    if has_infinity(closed_expr):
+        closed_expr = _constant_as_limit(model, solution, values, scale)
     closed = sp.lambdify(x, closed_expr, modules="mpmath")
     closed_vector = sp.lambdify(x, closed_expr, modules=["scipy", "numpy"])
-    P = sp.lambdify(x, solution.P.subs(values), modules="math")
-    open_parts = [(P, sp.lambdify(x, term.subs(values), modules="math")) for term in solution.open_terms]
+    P = SafeFunction(solution.P.subs(values), x, scale=scale)
+    open_parts = [(P, SafeFunction(term.subs(values), x, scale=scale)) for term in solution.open_terms]
     return ResponseEvaluator(closed=closed, closed_vector=closed_vector, open_parts=open_parts,
-                             x0=model.initial_at.si)
+                             x0=model.initial_at.si, closed_limit=SafeFunction(closed_expr, x, scale=scale))
+
+
+def _constant_as_limit(model: Model, solution: Solution, values: dict, scale: float) -> sp.Expr:
+    """The closed part with its constant fixed by a limit: (y0 mu(x0) - F(x0+)) / mu + F / mu.
+
+    A forcing such as (1 - exp(-t/T))/t has an antiderivative F with terms (Ei, log) that are each
+    infinite at t = 0 while F has a finite limit there; the constant then comes from that limit.
+    """
+    x = model.variable.symbol
+    x0, y0 = model.initial_at.si, model.initial_value.si
+    mu = solution.mu.subs(values)
+    forced = solution.forced_closed.subs(values)
+    try:
+        f0 = SafeFunction(forced * mu, x, scale=scale, side=1).limit(x0)
+        mu0 = SafeFunction(mu, x, scale=scale, side=1)(x0)
+    except NotFinite:
+        raise ModelRefused("the stated values make the derived solution singular at the initial point, with no "
+                           "finite limit there", "model.equation") from None
+    return sp.Float(y0 * mu0 - f0, 20) / mu + forced
+
+
+def _growth(exponent: float) -> float:
+    """exp of P(s) - P(b), which stays at or below 0 for a decaying system; an overflow is infinite."""
+    try:
+        return math.exp(exponent)
+    except OverflowError:
+        return math.inf
 
 
 def _real(value) -> float:
-    if isinstance(value, mpmath.mpc):
-        if abs(value.imag) > 1e-20 * max(1.0, abs(value.real)):
-            return math.nan
-        value = value.real
-    result = float(value)
+    result = real_float(value)
     return result if math.isfinite(result) else math.nan

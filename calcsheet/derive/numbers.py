@@ -18,6 +18,11 @@ from calcsheet.derive.readable import compact
 from calcsheet.model import Criterion, Model, Point
 
 SEARCH_SCALES = 60  # how many natural scales past the initial point a level is searched for
+SEARCH_POINTS = 2001
+# A sample within this fraction of the response's size of a level is taken as on the level: the grid values
+# are double precision, so nearer than this their side of the level is round-off, not the response.
+AT_LEVEL = 1e-10
+ROOT_ITERATIONS = 200  # Brent's method converges in far fewer on a bracket found by the scan
 OPERATORS = {"<=": operator.le, "<": operator.lt, ">=": operator.ge, ">": operator.gt}
 
 
@@ -25,6 +30,12 @@ OPERATORS = {"<=": operator.le, "<": operator.lt, ">=": operator.ge, ">": operat
 class ValueAt:
     at: Point
     y: float  # SI
+    applies: bool = True  # False for a point past the kind's validity limit
+
+
+# Why a level is not reached (Reach.code); the sheet words each one.
+REACHED, MODEL_STOPS, SOLUTION_ENDS, APPROACHES_FINAL, SETTLES_SHORT, MOVES_AWAY, NOT_IN_RANGE = (
+    "reached", "model_stops", "solution_ends", "approaches_final", "settles_short", "moves_away", "not_in_range")
 
 
 @dataclass(frozen=True)
@@ -32,14 +43,25 @@ class Reach:
     level: Point
     x: float | None  # SI; None when not reached
     note: str = ""
+    code: str = REACHED  # why it is not reached, when it is not (see the codes above)
+    stop: float | None = None  # SI: where the search stopped, for model_stops and solution_ends
 
 
 @dataclass(frozen=True)
 class Verdict:
     criterion: Criterion
     actual: float | None  # SI value of the checked quantity; None when it does not exist
-    passed: bool
+    passed: bool  # False also when the criterion could not be assessed
     note: str = ""
+    assessed: bool = True  # False: the model is not valid for the case, or the criterion needs points past its limit
+    code: str = ""  # why not assessed: "model_not_valid" or "past_validity_limit"
+
+    @property
+    def status(self) -> str:
+        return "not assessed" if not self.assessed else "pass" if self.passed else "fail"
+
+
+MODEL_NOT_VALID, PAST_VALIDITY_LIMIT = "model_not_valid", "past_validity_limit"
 
 
 @dataclass(frozen=True)
@@ -67,10 +89,11 @@ class Numbers:
     verdicts: tuple[Verdict, ...]
     sine: SteadySine | None = None
     valid_until: tuple[float, str] | None = None  # (SI, what happens) where a kind's model stops holding
+    not_valid: tuple[str, ...] = ()  # the kind's findings that the model does not hold for this case
 
     @property
     def all_passed(self) -> bool:
-        return all(v.passed for v in self.verdicts)
+        return not self.not_valid and all(v.passed for v in self.verdicts)
 
 
 def compute_numbers(model: Model, cls: Classification, solution: Solution, y: ResponseEvaluator) -> Numbers:
@@ -83,13 +106,16 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     scale = tau if tau else _natural_scale(p_value, x, x0, model)
     farthest = max([x0] + [pt.si for pt in _abscissae(model)])
     span_end = x0 + max(5 * scale, (farthest - x0) * 1.05)
-    grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), 2001)
-    limit = _model_limit(model, x0)
-    if limit is not None:  # levels are searched only where the model holds
-        grid = grid[grid <= limit[0]]
+    grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), SEARCH_POINTS)
+    # The singular point is looked for over the whole grid, before the kind's limit cuts it: a tank that
+    # runs empty has both at the same instant, and the solution's end must be known there too.
+    searched_to = float(grid[-1])
     singular = _singular_point(cls, values, x, grid)
     if singular is not None:
         grid = grid[grid < singular]
+    limit = _model_limit(model, x0)
+    if limit is not None:  # levels are searched only where the model holds
+        grid = grid[grid <= limit[0]]
     samples, domain_end = _sample(y, grid)
     if singular is not None and (domain_end is None or singular < domain_end):
         domain_end = singular
@@ -98,16 +124,32 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
         span_end = model.plot_to.si
     if domain_end is not None:
         span_end = min(span_end, domain_end)
-    limit = _model_limit(model, x0)
     if limit is not None:
         span_end = min(span_end, limit[0])
-    points = tuple(ValueAt(pt, y(pt.si)) for pt in model.evaluate_at)
-    reaches = tuple(reach_for(level, y, grid[: len(samples)], samples, final, model) for level in model.reach)
-    verdicts = tuple(verdict_for(c, y, grid[: len(samples)], samples, tau, final, model) for c in model.criteria)
+    if not span_end > x0:
+        span_end = x0 + scale
+    not_valid = tuple(model.kind.not_valid) if model.kind is not None else ()
+    points = tuple(ValueAt(pt, y(pt.si), applies=limit is None or pt.si <= limit[0]) for pt in model.evaluate_at)
+    searched = grid[: len(samples)]
+    reaches = tuple(reach_for(level, y, searched, samples, final, model, stop=_stop(limit, domain_end, searched_to))
+                    for level in model.reach)
+    verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, model, valid_until=limit, not_valid=not_valid)
+                     for c in model.criteria)
     return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
                    final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
                    domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
-                   sine=_steady_sine(model, tau), valid_until=limit)
+                   sine=_steady_sine(model, tau), valid_until=limit, not_valid=not_valid)
+
+
+def _stop(limit, domain_end, searched_to: float) -> tuple[str, float] | None:
+    """Where the level search ended early, and why: the model stops holding, or the solution ends."""
+    ends = ([(limit[0], MODEL_STOPS)] if limit is not None else []) + \
+        ([(domain_end, SOLUTION_ENDS)] if domain_end is not None else [])
+    ends = [(at, code) for at, code in ends if at <= searched_to]
+    if not ends:
+        return None
+    at, code = min(ends)
+    return code, at
 
 
 def _model_limit(model: Model, x0: float) -> tuple[float, str] | None:
@@ -179,16 +221,29 @@ def _singular_point(cls: Classification, values, x: sp.Symbol, grid: np.ndarray)
     _, denominator = sp.fraction(sp.together(cls.p.subs(values)))
     if x not in denominator.free_symbols:
         return None
-    f = sp.lambdify(x, denominator, modules="math")
+    f = safe_function(sp.lambdify(x, denominator, modules="math"))
     previous = f(float(grid[0]))
     for a, b in zip(grid[:-1], grid[1:]):
         current = f(float(b))
         if current == 0:
             return float(b)
-        if np.sign(current) != np.sign(previous):
-            return float(optimize.brentq(f, float(a), float(b), xtol=1e-12 * float(b - a)))
-        previous = current
+        if math.isfinite(current) and math.isfinite(previous) and current * previous < 0:
+            return float(optimize.brentq(f, float(a), float(b), xtol=1e-12 * float(b - a),
+                                         maxiter=ROOT_ITERATIONS, disp=False))
+        if math.isfinite(current):
+            previous = current
     return None
+
+
+def safe_function(f):
+    """f(x) as a float, NaN where it cannot be evaluated (a log of a negative number, an overflow)."""
+    def call(value: float) -> float:
+        try:
+            result = complex(f(value))
+        except (ArithmeticError, ValueError, TypeError):
+            return math.nan
+        return result.real if result.imag == 0 else math.nan
+    return call
 
 
 def _sample(y: ResponseEvaluator, grid: np.ndarray) -> tuple[np.ndarray, float | None]:
@@ -240,34 +295,85 @@ def _steps_settled(expr: sp.Expr, x: sp.Symbol) -> sp.Expr:
     return expr.replace(sp.Heaviside, lambda *args: settle(args[0]))
 
 
-def reach_for(level: Point, y, grid, samples, final, model: Model) -> Reach:
+def reach_for(level: Point, y, grid, samples, final, model: Model, stop: tuple[str, float] | None = None) -> Reach:
+    """Where the response first crosses ``level`` after the initial point, or why it does not.
+
+    The rule: a level is reached at the first point where the response passes from one side of it to
+    the other, each side by more than AT_LEVEL of the response's size. The initial point is never the
+    answer: a response that starts on the level reaches it only if it leaves it and comes back across
+    it; a level the response only approaches (its final value) is not reached.
+    """
     x = first_crossing(level.si, y, grid, samples)
     if x is not None:
         return Reach(level, x)
     searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
-    if final is not None:
-        return Reach(level, None, f"not reached {searched}; the response settles at its final value")
-    return Reach(level, None, f"not reached {searched}")
+    if stop is not None:
+        return Reach(level, None, f"not reached before the search stopped ({stop[0].replace('_', ' ')})",
+                     stop[0], stop[1])
+    size = max([abs(level.si)] + [abs(float(v)) for v in samples[:1]] + ([abs(final)] if final is not None else []))
+    start = float(samples[0]) if len(samples) else None
+    if final is not None and abs(level.si - final) <= AT_LEVEL * max(size, 1e-300):
+        return Reach(level, None, "not reached: the response approaches its final value and never reaches it",
+                     APPROACHES_FINAL)
+    if final is not None and start is not None and (level.si - final) * (start - final) < 0:
+        return Reach(level, None, f"not reached {searched}; the response settles at its final value short of it",
+                     SETTLES_SHORT)
+    if final is not None and start is not None and abs(level.si - final) > abs(start - final):
+        return Reach(level, None, f"not reached {searched}; the response moves away from it, toward its final value",
+                     MOVES_AWAY)
+    return Reach(level, None, f"not reached {searched}", NOT_IN_RANGE)
 
 
 def first_crossing(level: float, y, grid, samples) -> float | None:
-    if len(samples) == 0:
+    """The first crossing of ``level`` on the scanned grid, located with y itself (see reach_for)."""
+    samples = np.asarray(samples, dtype=float)
+    if len(samples) < 2:
         return None
     gap = samples - level
-    if gap[0] == 0:
-        return float(grid[0])
-    signs = np.sign(gap)
-    changes = np.nonzero(signs[1:] != signs[0])[0]
-    if len(changes) == 0:
+    size = max(float(np.max(np.abs(samples))), abs(level), 1e-300)
+    side = np.where(gap > AT_LEVEL * size, 1, np.where(gap < -AT_LEVEL * size, -1, 0))
+    clear = np.nonzero(side)[0]
+    if len(clear) == 0:
         return None
-    i = int(changes[0])
-    if gap[i + 1] == 0:
-        return float(grid[i + 1])
-    span = grid[i + 1] - grid[i]
-    return float(optimize.brentq(lambda s: y(s) - level, grid[i], grid[i + 1], xtol=1e-13 * max(span, 1e-300), rtol=1e-14))
+    first_side = int(side[clear[0]])
+    across = np.nonzero(side == -first_side)[0]
+    if len(across) == 0:
+        return None
+    j = int(across[0])
+    i = int(clear[clear < j][-1])
+    return _root(lambda s: y(s) - level, float(grid[i]), float(grid[j]), float(gap[i]), float(gap[j]))
 
 
-def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model) -> Verdict:
+def _root(g, a: float, b: float, ga_scan: float, gb_scan: float) -> float:
+    """The root of g in [a, b], where the scan saw a clear sign change; Brent's method, bounded in steps.
+
+    Should the precise evaluation disagree with the scan at an end (it cannot by more than round-off,
+    which the band excludes), the crossing is taken where the scanned values interpolate to zero.
+    """
+    ga, gb = g(a), g(b)
+    if math.isfinite(ga) and math.isfinite(gb) and ga * gb < 0:
+        root, info = optimize.brentq(g, a, b, xtol=1e-13 * max(b - a, 1e-300), rtol=1e-14,
+                                     maxiter=ROOT_ITERATIONS, full_output=True, disp=False)
+        return float(root)
+    return a + (b - a) * ga_scan / (ga_scan - gb_scan)
+
+
+def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model,
+                valid_until: tuple[float, str] | None = None, not_valid: tuple[str, ...] = ()) -> Verdict:
+    """PASS or FAIL, or not assessed: when the model is not valid for the case, or the criterion needs
+    the response past the kind's validity limit (a tank that has overflowed)."""
+    verdict = _verdict(criterion, y, grid, samples, tau, final)
+    if not_valid:
+        return replace(verdict, passed=False, assessed=False, code=MODEL_NOT_VALID,
+                       note="not assessed: the model is not valid for this case")
+    if valid_until is not None and _needs_past(criterion, verdict, valid_until[0]):
+        return replace(verdict, passed=False, assessed=False, code=PAST_VALIDITY_LIMIT,
+                       note=f"not assessed: it depends on the response after the model stops holding "
+                            f"({valid_until[1]})")
+    return verdict
+
+
+def _verdict(criterion: Criterion, y, grid, samples, tau, final) -> Verdict:
     note = ""
     if criterion.subject == "value":
         actual = y(criterion.argument.si)
@@ -281,5 +387,23 @@ def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model
         actual = final
     if actual is None and criterion.subject != "reach":
         return Verdict(criterion, None, False, "the quantity does not exist for this response")
+    if actual is not None and not math.isfinite(actual):
+        return Verdict(criterion, None, False, "the quantity is not finite for this response")
     compared = math.inf if actual is None else actual
     return Verdict(criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)), note)
+
+
+def _needs_past(criterion: Criterion, verdict: Verdict, limit: float) -> bool:
+    """Does the verdict rest on the response after ``limit``?
+
+    A value past it, or the final value (the response as the variable grows without bound), does. A
+    level not reached before the limit may be reached after it: that decides the criterion only when
+    its limit lies beyond the validity limit (reach <= 20 min with the tank full at 80 min fails either way).
+    """
+    if criterion.subject == "value":
+        return criterion.argument.si > limit
+    if criterion.subject == "final_value":
+        return True
+    if criterion.subject == "reach" and verdict.actual is None:
+        return criterion.limit.si > limit
+    return False

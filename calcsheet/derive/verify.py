@@ -9,20 +9,32 @@ compared with the derived values.
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
+import mpmath
 import numpy as np
 import sympy as sp
 from scipy.integrate import solve_ivp
 
 from calcsheet.derive.budget import SIMPLIFY_SECONDS, within
 from calcsheet.derive.integrating_factor import Solution
+from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, real_float
 from calcsheet.model import Model
 
 RTOL = 1e-11
-AGREEMENT = 1e-6  # largest relative difference accepted between derived and integrated values
+ATOL_SHARE = 1e-2  # atol = RTOL × ATOL_SHARE × the response's size
+AGREEMENT = 1e-6  # largest difference accepted between derived and integrated values (see difference_measure)
 RESIDUAL_TOLERANCE = 1e-9
+QUAD_PIECES, QUAD_DEGREE = 8, 7  # the bound on the work of an integral in the substitution check
 ODE_METHOD = "DOP853"
+STIFF_METHOD = "Radau"
+STIFF_RATIO = 1e4  # span over the shortest natural scale beyond which an explicit method is not used
+MAX_SLOPE_CALLS = 2_000_000  # the bound on the integrator's work
+METHOD_WORDS = {ODE_METHOD: "DOP853 (explicit Runge–Kutta of order 8)",
+                STIFF_METHOD: "Radau (implicit Runge–Kutta of order 5, for stiff equations)"}
+MEASURE_WORDS = ("each difference measured as the integrator measures its error: against |y| + "
+                 f"{ATOL_SHARE:g} × the largest |y| so far")
 
 
 @dataclass(frozen=True)
@@ -69,12 +81,18 @@ def check_substitution(model: Model, solution: Solution, points: list[float]) ->
     values = {**model.numeric_values(), **solution.initial_values(model)}
     terms = sp.Add.make_args(sp.expand(model.residual))
     worst = 0.0
+    substituted = [t.subs({model.derivative: sp.diff(y, x), model.unknown.symbol: y}) for t in terms]
+    span = max([abs(p) for p in points] + [1e-300])
     for xi in _sample_points(points):
-        subs = {**values, x: xi}
-        total = _number(residual.subs(subs))
-        size = sum(abs(_number(t.subs({model.derivative: sp.diff(y, x), model.unknown.symbol: y}).subs(subs)))
-                   for t in terms)
-        worst = max(worst, abs(total) / size if size else abs(total))
+        relative = math.nan
+        for at in (xi, xi + 1e-9 * span):  # at a 0/0 point of a term, just beside it
+            subs = {**values, x: at}
+            total = _number(residual.subs(subs))
+            size = sum(abs(_number(t.subs(subs))) for t in substituted)
+            relative = abs(total) / size if size else abs(total)
+            if math.isfinite(relative):
+                break
+        worst = max(worst, relative) if math.isfinite(relative) else math.inf
     passed = worst <= RESIDUAL_TOLERANCE
     reason = "symbolic simplification did not finish in time" if not done else "symbolic simplification did not reach 0"
     return Check("substitution", passed, "numeric at sample points",
@@ -109,41 +127,178 @@ def vanishes(expr: sp.Expr) -> tuple[bool, bool]:
 
 
 def _integration(model: Model, y, points: list[float]) -> dict:
-    """Integrate the stated equation numerically and compare with the derived values."""
-    f = slope_function(model)
+    """Integrate the stated equation numerically and compare with the derived values.
+
+    The integration restarts at every jump of the forcing (a step or a pulse edge), so no step of
+    the integrator straddles one, and it uses a stiff method where an explicit one would need a
+    step count of the order of the span over the shortest natural scale.
+    """
     x0, y0 = model.initial_at.si, model.initial_value.si
     targets = sorted({p for p in points if p >= x0})
     if not targets or targets[-1] == x0:
         targets = sorted(set(targets) | {x0})
-    scale = max(abs(y0), max((abs(y(p)) for p in targets), default=0.0), 1e-300)
-    result = solve_ivp(f, (x0, targets[-1]), [y0], method=ODE_METHOD, t_eval=targets,
-                       rtol=RTOL, atol=RTOL * scale * 1e-2)
-    method = (f"scipy solve_ivp, {ODE_METHOD} (explicit Runge–Kutta of order 8), rtol {RTOL:.0e}, "
-              f"on the equation as stated")
-    if not result.success:
-        return {"integration": Check("numerical integration", False, method, f"the integrator failed: {result.message}"),
-                "compared": ()}
-    compared = tuple((float(xi), y(float(xi)), float(yi)) for xi, yi in zip(result.t, result.y[0]))
-    worst = max(abs(d - n) / max(abs(n), 1e-9 * scale) for _, d, n in compared)
-    passed = worst <= AGREEMENT
-    return {"integration": Check("numerical integration", passed, method,
-                                 f"largest relative difference {bound(worst)} over {len(compared)} points "
-                                 f"(limit {AGREEMENT:.0e})", worst),
+    scale = max([abs(y0)] + [abs(v) for v in (y(p) for p in targets) if math.isfinite(v)] + [1e-300])
+    span = targets[-1] - x0
+    slope = slope_function(model, scale=max(span, 1e-300))
+    ratio = _stiffness(model, slope, targets, span)
+    method = STIFF_METHOD if ratio > STIFF_RATIO else ODE_METHOD
+    described = (f"scipy solve_ivp, {METHOD_WORDS[method]}, rtol {RTOL:.0e}, atol {RTOL * ATOL_SHARE:.0e} × the "
+                 "response's size so far, on the equation as stated" + (", restarted at each jump of the forcing"
+                                                                  if _jumps(model, x0, targets[-1]) else "")
+                 + (f" (stiff method: the span is {ratio:.1e} natural scales)" if method == STIFF_METHOD else ""))
+    try:
+        integrated = integrate_pieces(model, slope, x0, y0, targets, y, method)
+    except IntegrationFailed as failure:
+        return {"integration": Check("numerical integration", False, described, str(failure)), "compared": ()}
+    compared = tuple((xi, y(xi), yi) for xi, yi, _ in integrated)
+    worst = difference_measure(compared, [size for _, _, size in integrated])
+    return {"integration": Check("numerical integration", worst <= AGREEMENT, described,
+                                 f"largest difference {bound(worst)} over {len(compared)} points (limit "
+                                 f"{AGREEMENT:.0e}), {MEASURE_WORDS}", worst),
             "compared": compared}
 
 
-def slope_function(model: Model):
+def difference_measure(compared, sizes) -> float:
+    """The largest |derived - integrated| / (|integrated| + ATOL_SHARE × size) over the compared points,
+    ``size`` being the largest |y| the response has had up to each point.
+
+    This is the mixed error the integrator itself controls (rtol |y| + atol, divided by rtol): a
+    relative error where the response is of its own size, an absolute one, against the response's
+    size, where it has decayed towards zero (29 time constants out, or the instant a tank runs dry).
+    A derived value that is not finite where the integration is counts as infinitely far off.
+    """
+    worst = 0.0
+    for (_, derived, integrated), size in zip(compared, sizes):
+        if not (math.isfinite(derived) and math.isfinite(integrated)):
+            return math.inf
+        worst = max(worst, abs(derived - integrated) / max(abs(integrated) + ATOL_SHARE * size, 1e-300))
+    return worst
+
+
+class IntegrationFailed(Exception):
+    """The independent integration could not be completed; the message says why, in our words."""
+
+
+def integrate_pieces(model: Model, slope, x0: float, y0: float, targets: list[float], size_hint=None,
+                     method: str = ODE_METHOD) -> list[tuple[float, float, float]]:
+    """(x, y, size) at each target: the equation integrated from the initial point, restarted at every
+    jump of the forcing and at every target, the state carried across.
+
+    size is the largest |y| met so far (the response's overall size, from ``size_hint`` - the derived
+    values - while it is still at 0); atol on each piece is RTOL × ATOL_SHARE × that size, so a
+    growing response keeps a relative tolerance and a decaying one an absolute tolerance against its
+    start.
+    """
+    if not math.isfinite(y0):
+        raise IntegrationFailed("the initial value is not finite")
+    end = targets[-1]
+    edges = sorted({x0, end} | set(_jumps(model, x0, end)) | {t for t in targets if t > x0})
+    wanted = set(targets)
+    hints = [abs(size_hint(t)) for t in targets] if size_hint is not None else []
+    overall = max([abs(y0)] + [h for h in hints if math.isfinite(h)])
+    size = abs(y0) or overall or 1.0  # a response that starts at 0 takes its overall size until it moves
+    found = [(x0, y0, size)] if x0 in wanted else []
+    state = y0
+    counted = _Counted(slope)
+    for a, b in zip(edges[:-1], edges[1:]):
+        size = max(size, abs(state))
+        with warnings.catch_warnings(record=True) as caught, np.errstate(all="ignore"):
+            warnings.simplefilter("always")
+            try:
+                result = solve_ivp(counted, (a, b), [state], method=method, t_eval=[b],
+                                   rtol=RTOL, atol=RTOL * ATOL_SHARE * size)
+            except _TooMuchWork:
+                raise IntegrationFailed(f"not completed: the integration needed more than {MAX_SLOPE_CALLS:.0e} "
+                                        "evaluations of the slope") from None
+        if not result.success:
+            raise IntegrationFailed(f"the integrator stopped: {result.message}")
+        if not np.all(np.isfinite(result.y[0])):
+            raise IntegrationFailed("the integrated values are not finite"
+                                    + (" (the integrator met an overflow)" if caught else ""))
+        state = float(result.y[0][-1])
+        size = max(size, abs(state))
+        if b in wanted:
+            found.append((float(b), state, size))
+    return found
+
+
+class _TooMuchWork(Exception):
+    pass
+
+
+class _Counted:
+    """The slope with a bound on how often the integrator may call it: work, not time, ends a run."""
+
+    def __init__(self, slope):
+        self.slope, self.calls = slope, 0
+
+    def __call__(self, x, state):
+        self.calls += 1
+        if self.calls > MAX_SLOPE_CALLS:
+            raise _TooMuchWork()
+        return self.slope(x, state)
+
+
+def _stiffness(model: Model, slope, targets: list[float], span: float) -> float:
+    """The span over the shortest natural scale 1/|p| met at the compared points (a 1 ns time constant
+    seen over 1 h gives 3.6e12)."""
+    if span <= 0:
+        return 0.0
+    rates = []
+    for x in targets:
+        try:
+            rates.append(abs(slope.rate(x)))
+        except NotFinite:
+            continue
+    rates = [r for r in rates if math.isfinite(r)]
+    return span * max(rates, default=0.0)
+
+
+def _jumps(model: Model, start: float, end: float) -> list[float]:
+    """Where the stated equation jumps inside (start, end): the points where a step's argument is 0."""
+    x = model.variable.symbol
+    numeric = model.residual.subs(model.numeric_values())
+    found = set()
+    for step in numeric.atoms(sp.Heaviside, sp.sign):
+        argument = step.args[0]
+        if not argument.has(x):
+            continue
+        slope = sp.diff(argument, x)
+        if slope.has(x) or slope == 0:
+            continue  # a step of a non-linear argument: the integrator's step control has to manage it
+        at = real_float(-argument.subs(x, 0) / slope)
+        if math.isfinite(at) and start < at < end:
+            found.add(at)
+    return sorted(found)
+
+
+class Slope:
+    """dy/dx = -(b(x) y + c(x)) / a(x) from the stated F(x, y, y') = a y' + b y + c = 0.
+
+    a, b and c are taken from the equation separately, so a growing solution does not lose the
+    coefficient a to cancellation (F(x, y, 1) - F(x, y, 0) is a only in exact arithmetic), and each
+    is evaluated safely: at a 0/0 point of the forcing its limit is used.
+    """
+
+    def __init__(self, model: Model, scale: float = 1.0):
+        x, yv, dy = model.variable.symbol, model.unknown.symbol, model.derivative
+        residual = model.residual.subs(model.numeric_values())
+        parts = (sp.diff(residual, dy), sp.diff(residual, yv), residual.subs({yv: 0, dy: 0}))
+        self.a, self.b, self.c = (SafeFunction(part, x, scale=scale, side=1) for part in parts)
+
+    def rate(self, x: float) -> float:
+        return self.b(x) / self.a(x)
+
+    def __call__(self, x, state):
+        a = self.a(x)
+        if a == 0:
+            raise NotFinite(float(x), "the coefficient of the derivative vanishes")
+        return [-(self.b(x) * state[0] + self.c(x)) / a]
+
+
+def slope_function(model: Model, scale: float = 1.0) -> Slope:
     """dy/dx from the stated equation F(x, y, y') = 0, which is linear in y'."""
-    values = model.numeric_values()
-    F = sp.lambdify((model.variable.symbol, model.unknown.symbol, model.derivative),
-                    model.residual.subs(values), modules="math")
-
-    def slope(x, state):
-        yv = state[0]
-        at_zero, at_one = F(x, yv, 0.0), F(x, yv, 1.0)
-        return [-at_zero / (at_one - at_zero)]
-
-    return slope
+    return Slope(model, scale)
 
 
 def _sample_points(points: list[float]) -> list[float]:
@@ -154,8 +309,38 @@ def _sample_points(points: list[float]) -> list[float]:
 
 
 def _number(expr: sp.Expr) -> float:
+    """A constant expression in 20 digits; integrals in it by bounded quadrature (see _integral_value)."""
+    integrals = expr.atoms(sp.Integral)
+    if integrals:
+        expr = expr.xreplace({i: _integral_value(i) for i in integrals})
+        if expr.has(sp.nan):
+            return math.nan
     value = complex(sp.N(expr, 20))
     return value.real if abs(value.imag) <= 1e-12 * max(1.0, abs(value.real)) else math.nan
+
+
+def _integral_value(integral: sp.Integral) -> sp.Expr:
+    """A definite integral by tanh-sinh quadrature (mpmath) on QUAD_PIECES pieces, each of a bounded
+    degree: the work has a fixed ceiling, so a slow integrand cannot hang the check. NaN when the
+    quadrature's own error estimate says it did not converge within that bound.
+
+    (sympy.N would raise its precision until satisfied, without any bound on the time taken.)
+    """
+    (variable, low, high), = integral.limits
+    f = sp.lambdify(variable, integral.function, modules="mpmath")
+    with mpmath.workdps(20):
+        a, b = mpmath.mpf(real_float(sp.N(low, 20))), mpmath.mpf(real_float(sp.N(high, 20)))
+        if not (mpmath.isfinite(a) and mpmath.isfinite(b)):
+            return sp.nan
+        nodes = [a + (b - a) * k / QUAD_PIECES for k in range(QUAD_PIECES + 1)]
+        try:
+            value, error = mpmath.quad(f, nodes, maxdegree=QUAD_DEGREE, error=True)
+        except (ArithmeticError, ValueError, TypeError):
+            return sp.nan
+        value = real_float(value)
+        if not math.isfinite(value) or float(error) > 1e-14 * max(abs(value), 1e-300) + 1e-300:
+            return sp.nan
+    return sp.Float(value, 20)
 
 
 def bound(value: float) -> str:

@@ -9,6 +9,56 @@ from calcsheet.errors import InputError
 from calcsheet.source import units
 
 
+INFO, WARNING, INVALID = "info", "warning", "invalid"
+SEVERITIES = (INFO, WARNING, INVALID)
+_WORDED = "WARNING: "  # how a warning or an invalid verdict reads when a note is shown as one string
+
+
+class Note(str):
+    """One finding of a kind's checks: what it says, how serious it is, and a stable code.
+
+    ``severity`` is ``info`` (a derived fact worth showing), ``warning`` (the engineer should
+    look, but the model still describes the case) or ``invalid`` (the model does not hold for
+    this case: no criterion can pass). The string value is the worded note, with "WARNING: "
+    before a warning or an invalid finding, so a note still reads as the text it always was.
+    """
+
+    severity: str
+    code: str
+    text: str
+
+    def __new__(cls, text: str, severity: str = INFO, code: str = ""):
+        if severity not in SEVERITIES:
+            raise ValueError(f"unknown severity {severity!r}")
+        worded = text if severity == INFO else _WORDED + text
+        note = super().__new__(cls, worded)
+        note.severity, note.code, note.text = severity, code, text
+        return note
+
+    @classmethod
+    def of(cls, item) -> "Note":
+        """A Note as it is, or a worded string read the old way ("WARNING: " marks a warning)."""
+        if isinstance(item, Note):
+            return item
+        text = str(item)
+        if text.startswith(_WORDED):
+            return cls(text[len(_WORDED):], WARNING)
+        return cls(text, INFO)
+
+
+def invalid(text: str, code: str) -> Note:
+    """The model does not hold for this case (a Biot number too large, a negative mass)."""
+    return Note(text, INVALID, code)
+
+
+def warning(text: str, code: str = "") -> Note:
+    return Note(text, WARNING, code)
+
+
+def info(text: str, code: str = "") -> Note:
+    return Note(text, INFO, code)
+
+
 @dataclass(frozen=True)
 class Slot:
     """A named quantity of a kind: its symbol, a unit showing its dimension, what it means."""
@@ -33,7 +83,8 @@ class Kind:
     law_steps: tuple[tuple[str, str], ...]  # (LaTeX, plain text): from the law to the equation
     assumptions: tuple[str, ...]
     source: str = ""  # the slot a [forcing] table may replace by a function of the variable
-    checks: Callable[[dict[str, float]], tuple[str, ...]] = field(default=lambda values: ())
+    # the kind's checks on the SI values: Notes (worded strings are read by Note.of as before)
+    checks: Callable[[dict[str, float]], tuple[Note | str, ...]] = field(default=lambda values: ())
     # where the model stops holding, as (variable value in SI, what happens), e.g. a tank overflowing
     limit: Callable[[dict[str, float]], tuple[float, str] | None] = field(default=lambda values: None)
     starter: str = ""  # the rest of a starter input for `calcsheet new` ([sheet], values, requests)
@@ -51,11 +102,16 @@ class KindUse:
     law: str
     law_steps: tuple[tuple[str, str], ...]
     assumptions: tuple[str, ...]
-    notes: tuple[str, ...] = ()  # validity checks and warnings, already worded
+    notes: tuple[Note, ...] = ()  # the kind's checks, each a Note (see Note.of for worded strings)
     forcing: str = ""  # the forcing form in words, if a [forcing] table was given
     frequency: str = ""  # the parameter holding a sinusoidal forcing's frequency
     slot_names: tuple[str, ...] = ()  # the kind's own parameters (some serve only its checks)
     limit: tuple[float, str] | None = None  # where the model stops holding (SI), and why
+
+    @property
+    def not_valid(self) -> tuple[Note, ...]:
+        """The findings that say the model does not hold for this case."""
+        return tuple(n for n in map(Note.of, self.notes) if n.severity == INVALID)
 
 
 def check_slot_dimension(kind: Kind, slot: Slot, quantity, where: str) -> None:

@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 from calcsheet.errors import InputError
 from calcsheet.kinds import kind_named
-from calcsheet.kinds.base import Kind, KindUse, check_slot_dimension
+from calcsheet.kinds.base import Kind, KindUse, Note, check_slot_dimension
 from calcsheet.kinds.forcing import forcing_from_table
 from calcsheet.source import units
 from calcsheet.source.loader_support import declared_parts
@@ -56,7 +56,7 @@ def kind_checks(use: KindUse, parameters) -> KindUse:
     """The kind's validity checks, run on the SI values of the parameters."""
     kind = kind_named(use.name)
     values = {p.name: p.si for p in parameters}
-    return replace(use, notes=tuple(kind.checks(values)), limit=kind.limit(values))
+    return replace(use, notes=tuple(map(Note.of, kind.checks(values))), limit=kind.limit(values))
 
 
 def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:

@@ -9,21 +9,22 @@ from __future__ import annotations
 
 import math
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Slot, Note, info, invalid, warning
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     tau, gain = values["tau"], values["K"]
     if tau <= 0:
-        return ("WARNING: the time constant tau must be positive; with tau <= 0 the equation does not "
-                "describe a sensor that settles.",)
+        return (invalid("the time constant tau must be positive; with tau <= 0 the equation does not "
+                        "describe a sensor that settles.", "first_order_sensor.tau_not_positive"),)
     # Response times of a first-order sensor to a step: t50 = ln(2)*tau, t90 = ln(10)*tau
     # (common practice, no source).
-    notes = [f"Step response times: t50 = ln 2 * tau = {math.log(2) * tau:.4g} s, "
-             f"t90 = ln 10 * tau = {math.log(10) * tau:.4g} s."]
+    notes = [info(f"Step response times: t50 = ln 2 * tau = {math.log(2) * tau:.4g} s, "
+             f"t90 = ln 10 * tau = {math.log(10) * tau:.4g} s.")]
     if not math.isclose(gain, 1.0, rel_tol=1e-12):
-        notes.append(f"WARNING: K = {gain:.4g} multiplies the absolute temperature in kelvin; a probe that reads "
-                     "the medium's temperature has K = 1, and a calibration error is better stated as an offset.")
+        notes.append(warning(f"K = {gain:.4g} multiplies the absolute temperature in kelvin; a probe that reads "
+                             "the medium's temperature has K = 1, and a calibration error is better stated as an "
+                             "offset.", "first_order_sensor.gain_not_one"))
     return tuple(notes)
 
 

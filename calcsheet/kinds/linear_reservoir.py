@@ -2,7 +2,7 @@
 
 import math
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Slot, Note, info, invalid, warning
 
 
 def _number(value: float) -> str:
@@ -17,21 +17,22 @@ def _duration(seconds: float) -> str:
     return text
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     k = values["k"]
     if k <= 0:
-        return (f"WARNING: the storage constant k = {_number(k)} s is not positive; a linear reservoir "
-                "needs k > 0 (outflow S/k leaving a positive storage).",)
-    notes = [f"Outflow Q_out = S/k with k = {_duration(k)}; with no inflow the storage and the outflow halve "
-             f"every k*ln 2 = {_duration(k * math.log(2))}."]
+        return (invalid(f"the storage constant k = {_number(k)} s is not positive; a linear reservoir "
+                        "needs k > 0 (outflow S/k leaving a positive storage).", "linear_reservoir.k_not_positive"),)
+    notes = [info(f"Outflow Q_out = S/k with k = {_duration(k)}; with no inflow the storage and the outflow halve "
+             f"every k*ln 2 = {_duration(k * math.log(2))}.", "linear_reservoir.halving")]
     q_in = values.get("Q_in")
     if q_in is not None:
         if q_in < 0:
-            notes.append("WARNING: the inflow Q_in is negative, i.e. a withdrawal; the storage may fall below "
-                         "zero, where the outflow law S/k no longer means anything.")
+            notes.append(warning("the inflow Q_in is negative, i.e. a withdrawal; the storage may fall below "
+                                 "zero, where the outflow law S/k no longer means anything.",
+                                 "linear_reservoir.withdrawal"))
         else:
-            notes.append(f"With the inflow held at Q_in = {_number(q_in)} m^3/s the storage settles at "
-                         f"S = k*Q_in = {_number(k * q_in)} m^3, where the outflow equals the inflow.")
+            notes.append(info(f"With the inflow held at Q_in = {_number(q_in)} m^3/s the storage settles at "
+                         f"S = k*Q_in = {_number(k * q_in)} m^3, where the outflow equals the inflow.", "linear_reservoir.settles"))
     return tuple(notes)
 
 

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Slot, Note, info, invalid
 
 # Lumped-capacitance analysis is accepted while the Biot number Bi = h*Lc/k, with Lc = V/A, stays at or
 # below 0.1 (standard heat-transfer texts, e.g. Incropera et al., Fundamentals of Heat and Mass Transfer,
@@ -11,18 +11,20 @@ from calcsheet.kinds.base import Kind, Slot
 BIOT_LIMIT = 0.1
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     volume, area, h, k = values["V"], values["A"], values["h"], values["k"]
     if volume <= 0 or area <= 0 or k <= 0:
-        return ("WARNING: V, A and k must be positive for the Biot number Bi = h*Lc/k, Lc = V/A; "
-                "the validity of the lumped model was not checked.",)
+        return (invalid("V, A and k must be positive for the Biot number Bi = h*Lc/k, Lc = V/A; "
+                        "a body with them zero or negative is not a physical body, and the validity of the "
+                        "lumped model cannot be checked.", "lumped_body.properties_not_positive"),)
     length = volume / area
     biot = h * length / k
-    notes = [f"Biot number Bi = h*Lc/k = {biot:.3g} with characteristic length Lc = V/A = {length:.4g} m; "
-             f"the lumped model holds for Bi <= {BIOT_LIMIT:g} (common practice in heat transfer)."]
+    notes = [info(f"Biot number Bi = h*Lc/k = {biot:.3g} with characteristic length Lc = V/A = {length:.4g} m; "
+             f"the lumped model holds for Bi <= {BIOT_LIMIT:g} (common practice in heat transfer).", "lumped_body.biot")]
     if biot > BIOT_LIMIT:
-        notes.append(f"WARNING: Bi = {biot:.3g} exceeds {BIOT_LIMIT:g}: the temperature inside the body is not "
-                     "uniform, so the lumped model is not valid; a transient conduction analysis is needed.")
+        notes.append(invalid(f"Bi = {biot:.3g} exceeds {BIOT_LIMIT:g}: the temperature inside the body is not "
+                             "uniform, so the lumped model is not valid; a transient conduction analysis is needed.",
+                             "lumped_body.biot_exceeded"))
     return tuple(notes)
 
 

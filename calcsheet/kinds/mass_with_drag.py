@@ -1,21 +1,21 @@
 """Mass with linear drag: the speed of a body pushed along a line against a resistance proportional to speed."""
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Note, Slot, invalid, warning
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     """Sign checks: a body has m > 0; a drag or damper force opposes the motion, c >= 0."""
     notes = []
     drag = values.get("c")
     if drag is not None and drag == 0:
-        notes.append("WARNING: c = 0: without drag the body has no terminal speed and keeps "
-                     "accelerating under a steady force.")
+        notes.append(warning("c = 0: without drag the body has no terminal speed and keeps "
+                             "accelerating under a steady force.", "mass_with_drag.c_zero"))
     elif drag is not None and drag < 0:
-        notes.append("WARNING: c is negative; drag opposes the motion, so c is positive "
-                     "(with c < 0 the speed grows instead of settling).")
+        notes.append(invalid("c is negative; drag opposes the motion, so c is positive "
+                             "(with c < 0 the speed grows instead of settling).", "mass_with_drag.c_negative"))
     mass = values.get("m")
     if mass is not None and mass < 0:
-        notes.append("WARNING: m is negative; a mass is positive, so check the sign.")
+        notes.append(invalid("m is negative; a mass is positive, so check the sign.", "mass_with_drag.m_negative"))
     return tuple(notes)
 
 

@@ -2,18 +2,20 @@
 
 from __future__ import annotations
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Slot, Note, info, invalid
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     m_dot, c_p, u, perimeter = values["m_dot"], values["c_p"], values["U"], values["P"]
     if m_dot <= 0 or c_p <= 0:
-        return ("WARNING: m_dot and c_p must be positive: x runs in the direction of flow, from the inlet.",)
+        return (invalid("m_dot and c_p must be positive: x runs in the direction of flow, from the inlet.",
+                        "pipe_temperature.flow_not_positive"),)
     if u <= 0 or perimeter <= 0:
-        return ("WARNING: U and P must be positive for heat to flow from the warmer to the colder side.",)
+        return (invalid("U and P must be positive for heat to flow from the warmer to the colder side.",
+                        "pipe_temperature.transfer_not_positive"),)
     per_length = u * perimeter
-    return (f"Heat loss per unit length and kelvin of difference U*P = {per_length:.4g} W/(m*K); over a length L "
-            f"the number of transfer units is NTU = U*P*L/(m_dot*c_p) = L/({m_dot * c_p / per_length:.4g} m).",)
+    return (info(f"Heat loss per unit length and kelvin of difference U*P = {per_length:.4g} W/(m*K); over a length L "
+            f"the number of transfer units is NTU = U*P*L/(m_dot*c_p) = L/({m_dot * c_p / per_length:.4g} m).", "pipe_temperature.ntu"),)
 
 
 KIND = Kind(

@@ -1,21 +1,21 @@
 """Rotating inertia with viscous friction: the shaft speed when a torque drives it."""
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Note, Slot, invalid, warning
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     """Sign checks: a rotating body has J > 0; viscous friction takes energy out, b >= 0."""
     notes = []
     friction = values.get("b")
     if friction is not None and friction == 0:
-        notes.append("WARNING: b = 0: without friction the shaft has no steady speed and keeps "
-                     "accelerating under a steady torque; bearings, seals and windage always give some b.")
+        notes.append(warning("b = 0: without friction the shaft has no steady speed and keeps "
+                             "accelerating under a steady torque; bearings, seals and windage always give some b.", "rotating_inertia.b_zero"))
     elif friction is not None and friction < 0:
-        notes.append("WARNING: b is negative; viscous friction opposes the motion, so b is positive "
-                     "(with b < 0 the speed grows instead of settling).")
+        notes.append(invalid("b is negative; viscous friction opposes the motion, so b is positive "
+                             "(with b < 0 the speed grows instead of settling).", "rotating_inertia.b_negative"))
     inertia = values.get("J")
     if inertia is not None and inertia < 0:
-        notes.append("WARNING: J is negative; a moment of inertia is positive, so check the sign.")
+        notes.append(invalid("J is negative; a moment of inertia is positive, so check the sign.", "rotating_inertia.J_negative"))
     return tuple(notes)
 
 

@@ -1,22 +1,22 @@
 """Series RL circuit: the inductor current when a source drives it through a resistance."""
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Note, Slot, invalid, warning
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     """Sign checks a circuit engineer makes first: a passive coil has R > 0 and L > 0."""
     notes = []
     resistance = values.get("R")
     if resistance is not None and resistance == 0:
-        notes.append("WARNING: R = 0: with no resistance in the loop the current never settles and "
-                     "rises without limit under a steady source; include the winding resistance of "
-                     "the coil and the internal resistance of the source in R.")
+        notes.append(warning("R = 0: with no resistance in the loop the current never settles and "
+                             "rises without limit under a steady source; include the winding resistance of "
+                             "the coil and the internal resistance of the source in R.", "series_rl.R_zero"))
     elif resistance is not None and resistance < 0:
-        notes.append("WARNING: R is negative; a passive resistance is positive, so check the sign "
-                     "(with R < 0 the current grows instead of settling).")
+        notes.append(invalid("R is negative; a passive resistance is positive, so check the sign "
+                             "(with R < 0 the current grows instead of settling).", "series_rl.R_negative"))
     inductance = values.get("L")
     if inductance is not None and inductance < 0:
-        notes.append("WARNING: L is negative; the inductance of a coil is positive, so check the sign.")
+        notes.append(invalid("L is negative; the inductance of a coil is positive, so check the sign.", "series_rl.L_negative"))
     return tuple(notes)
 
 
