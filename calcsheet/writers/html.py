@@ -9,7 +9,7 @@ from markupsafe import Markup
 
 from calcsheet.sheet import document as doc
 from calcsheet.writers.mathml import to_mathml
-from calcsheet.writers.styles import environment, read_css
+from calcsheet.writers.styles import environment, read_css, render_template
 
 
 def write(sheet: doc.Sheet, style=None) -> str:
@@ -26,9 +26,9 @@ def render_html(sheet: doc.Sheet, style, medium: str, filters: dict, extra_css: 
     env = environment(style)
     env.filters.update(filters)
     env.filters["kind"] = _kind
-    template = env.get_template("sheet.html.j2")
     css = read_css(style, "sheet.css") + ("\n" + read_css(style, "print.css") if medium == "print" else "")
-    return template.render(sheet=sheet, medium=medium, css=Markup(css + extra_css), created=created)
+    return render_template(env, style, "sheet.html.j2",
+                           sheet=sheet, medium=medium, css=Markup(css + extra_css), created=created)
 
 
 def _kind(node) -> str:

@@ -2,21 +2,32 @@
 
 WeasyPrint has no MathML, so every formula is typeset to SVG (ziamath) and embedded as an
 image; long equations are broken into lines that fit the column. The bytes are reproducible:
-fixed document identifier, and dates only from the input or SOURCE_DATE_EPOCH.
+fixed document identifier, dates only from the input or SOURCE_DATE_EPOCH, fonts bundled with the
+package (writers/fonts.py), and font subsets that keep their font's own timestamp.
+
+WeasyPrint reads resources only through writers/fetcher.py (the style folder and our own files),
+relative URLs resolve against the style folder, and a style may neither attach files nor link out.
 """
 
 from __future__ import annotations
 
+import contextlib
 import datetime as dt
+import functools
 import hashlib
 import logging
-import os
+import threading
+import warnings
+from pathlib import Path
 
 from markupsafe import Markup, escape
 
+from calcsheet.errors import InputError
 from calcsheet.sheet import document as doc
-from calcsheet.writers import svgmath
+from calcsheet.writers import build_date, svgmath
 from calcsheet.writers.html import render_html
+from calcsheet.writers.styles import default_style_dir, style_name
+from calcsheet.writers.visible_text import visible
 
 # The equation column of the print style (styles/default/print.css: .equation-math width).
 EQUATION_WIDTH_MM = 140.0
@@ -24,20 +35,72 @@ EQUATION_WIDTH_PX = EQUATION_WIDTH_MM / 25.4 * 96.0
 
 
 def write(sheet: doc.Sheet, style=None) -> bytes:
-    import weasyprint
+    with warnings.catch_warnings():
+        # WeasyPrint warns at import when the machine has no fonts; the PDF needs none of them.
+        warnings.filterwarnings("ignore", message=".*(FontConfig|Fontconfig).*")
+        import weasyprint
 
+    from calcsheet.writers.fetcher import ConfinedFetcher
     from calcsheet.writers.plot import figure_svg, svg_data_uri
 
     html = render_html(sheet, style, "print", {
         "math": lambda m: Markup(_inline(m.latex)),
         "display_math": lambda m: Markup(_display(m.latex)),
-        "figure": lambda f: Markup(f'<img class="figure" alt="{escape(f.title)}" src="{svg_data_uri(figure_svg(f))}">'),
+        "figure": lambda f: Markup(f'<img class="figure" alt="{escape(visible(f.title))}" '
+                                   f'src="{svg_data_uri(figure_svg(f))}">'),
     }, extra_css=_page_css(sheet), created=creation_date(sheet))
     # The screen CSS holds properties print does not use; WeasyPrint would warn about each.
     logging.getLogger("weasyprint").setLevel(logging.ERROR)
-    document = weasyprint.HTML(string=html, base_url=".").render()
-    identifier = hashlib.sha256(html.encode("utf-8")).hexdigest()[:32].encode("ascii")
-    return document.write_pdf(pdf_identifier=identifier, uncompressed_pdf=False)
+    folder = Path(style) if style is not None else default_style_dir()
+    fetcher = ConfinedFetcher([folder, default_style_dir()])
+    document = weasyprint.HTML(string=html, base_url=folder.resolve().as_uri() + "/", url_fetcher=fetcher).render()
+    _refuse_attachments_and_outward_links(document, style)
+    with _font_subsets_keep_their_timestamp():
+        identifier = hashlib.sha256(html.encode("utf-8")).hexdigest()[:32].encode("ascii")
+        data = document.write_pdf(pdf_identifier=identifier, uncompressed_pdf=False)
+    if fetcher.refused or fetcher.missing:
+        url = (fetcher.refused or fetcher.missing)[0]
+        problem = ("lies outside the style folder; a style may use only its own files and data: URLs"
+                   if fetcher.refused else "is not in the style folder")
+        raise InputError(f"{style_name(style)}: '{visible(url)}' {problem}")
+    return data
+
+
+def _refuse_attachments_and_outward_links(document, style) -> None:
+    """A style may not attach files to the PDF nor link out of it (by HTML or CSS); links within
+    the sheet are fine."""
+    links = [(kind, target) for page in document.pages for kind, target, *_ in page.links if kind != "internal"]
+    if document.metadata.attachments:
+        raise InputError(f"{style_name(style)}: the sheet may not carry attached files")
+    if links:
+        kind, target = links[0]
+        what = "an attached file" if kind == "attachment" else "a link"
+        raise InputError(f"{style_name(style)}: {what} to '{visible(str(target))}' would leave the sheet; "
+                         "only links within the sheet (#name) are allowed")
+
+
+_FONT_LOCK = threading.Lock()
+
+
+@contextlib.contextmanager
+def _font_subsets_keep_their_timestamp():
+    """Font subsets made with fontTools keep the font's own ``head.modified``.
+
+    WeasyPrint subsets with HarfBuzz where it can, which keeps the font's timestamp. Where it falls
+    back to fontTools (an older HarfBuzz, or a variable font to instantiate), fontTools stamps
+    each subset with the current time unless SOURCE_DATE_EPOCH is set, and two PDFs of one
+    sheet would differ. For the length of one write, WeasyPrint's font module opens fonts with
+    ``recalcTimestamp=False``; the lock and the restore keep this from reaching any other code.
+    """
+    from weasyprint.pdf import fonts as pdf_fonts
+
+    with _FONT_LOCK:
+        original = pdf_fonts.TTFont
+        pdf_fonts.TTFont = functools.partial(original, recalcTimestamp=False)
+        try:
+            yield
+        finally:
+            pdf_fonts.TTFont = original
 
 
 def _inline(latex: str) -> str:
@@ -58,8 +121,8 @@ def _display(latex: str) -> str:
 
 def _page_css(sheet: doc.Sheet) -> str:
     """Running heads from the title block; values written as escaped CSS strings."""
-    fields = dict(sheet.title_block.fields)
-    left = _css_string(sheet.title_block.title) + r' "\A " ' + _css_string(fields.get("Project", ""))
+    fields = {label: visible(value) for label, value in sheet.title_block.fields}
+    left = _css_string(visible(sheet.title_block.title)) + r' "\A " ' + _css_string(fields.get("Project", ""))
     right = (_css_string(f"Calculation {fields.get('Calculation', '-')}  Revision {fields.get('Revision', '-')}")
              + r' "\A Page " counter(page) " of " counter(pages)')
     return f"\n@page {{ @top-left {{ content: {left}; }} @top-right {{ content: {right}; }} }}\n"
@@ -77,11 +140,9 @@ def _css_string(text: str) -> str:
 
 
 def creation_date(sheet: doc.Sheet) -> str:
-    """The sheet's date from the input, else SOURCE_DATE_EPOCH, else none."""
+    """The sheet's date from the input, else a valid SOURCE_DATE_EPOCH, else none."""
     stated = dict(sheet.metadata).get("date", "")
     if stated:
         return stated
-    epoch = os.environ.get("SOURCE_DATE_EPOCH", "")
-    if epoch.isdigit():
-        return dt.datetime.fromtimestamp(int(epoch), dt.timezone.utc).date().isoformat()
-    return ""
+    epoch = build_date.source_date_epoch()
+    return dt.datetime.fromtimestamp(epoch, dt.timezone.utc).date().isoformat() if epoch is not None else ""

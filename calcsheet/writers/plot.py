@@ -22,6 +22,8 @@ import base64
 import math
 import re
 
+from calcsheet.writers.build_date import invalid_source_date_epoch_hidden
+
 INK = "#1b1f24"
 GREY = "#6b7580"
 PASS = "#1d6b35"
@@ -90,7 +92,8 @@ def figure_svg(figure) -> str:
         fig = _build(figure)
         FigureCanvasSVG(fig)
         out = io.BytesIO()
-        fig.savefig(out, format="svg", metadata={"Date": None, "Creator": None, "Title": figure.title})
+        with invalid_source_date_epoch_hidden():  # matplotlib reads it with int() on its layout pass
+            fig.savefig(out, format="svg", metadata={"Date": None, "Creator": None, "Title": figure.title})
     svg = out.getvalue().decode("utf-8")
     svg = _DOCTYPE.sub("", _DECLARATION.sub("", svg))
     return svg.strip() + "\n"

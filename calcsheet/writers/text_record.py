@@ -1,12 +1,18 @@
 """The plain-text record, made for ``git diff``: one fact per line, no alignment padding.
 
 Column padding would make one changed value ripple through a whole table, so rows are written
-as fields separated by ' | ' and nothing else.
+as fields separated by ' | ' and nothing else. User text cannot forge a line: a line break inside
+a field continues on a line that starts with CONTINUATION, and control characters, ANSI escapes
+and bidirectional overrides are written as visible escapes (writers/visible_text.py).
 """
 
 from __future__ import annotations
 
 from calcsheet.sheet.document import Equation, Figure, ItemList, Math, Note, Paragraph, Section, Sheet, Table
+from calcsheet.writers.visible_text import record_lines
+
+# Starts every line that continues a field across a line break; no record line starts so.
+CONTINUATION = "  \u21b3 "
 
 
 def write(sheet: Sheet, style=None) -> str:
@@ -20,7 +26,7 @@ def write(sheet: Sheet, style=None) -> str:
     lines += ["", "SIGN-OFF"] + [f"  {s.role}: name {s.name or '______'}  date {s.date or '______'}"
                                  for s in sheet.signoff]
     lines += ["", "CAUTION"] + [f"  {c}" for c in sheet.cautions]
-    return "\n".join(lines) + "\n"
+    return "\n".join(safe for line in lines for safe in record_lines(line, CONTINUATION)) + "\n"
 
 
 def _heading(section: Section) -> str:

@@ -1,0 +1,52 @@
+"""Same input, same bytes, in every format, across processes and machines.
+
+Every demo is built twice by the command line, each time in a fresh interpreter with no
+SOURCE_DATE_EPOCH, so no cache, hash order or clock is shared. The second build also stands in
+for another machine: another hash seed, another working folder and time zone, fresh matplotlib
+and fontconfig caches, and no system fonts at all (fontconfig pointed at an empty
+configuration), so a PDF or plot that leaned on the machine's fonts would come out different.
+"""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[2]
+INPUTS = ROOT / "inputs"
+FORMATS = ("html", "pdf", "json", "txt")
+NO_FONTS = '<?xml version="1.0"?>\n<!DOCTYPE fontconfig SYSTEM "fonts.dtd">\n<fontconfig>\n</fontconfig>\n'
+
+
+def _build(out: Path, cwd: Path, **env_changes: str) -> subprocess.CompletedProcess:
+    env = {k: v for k, v in os.environ.items() if k != "SOURCE_DATE_EPOCH"}
+    env.update(env_changes)
+    command = [sys.executable, "-c", "from calcsheet.cli import main; main()",
+               "build", str(INPUTS), "--out", str(out), "--format", ",".join(FORMATS)]
+    return subprocess.run(command, cwd=cwd, env=env, capture_output=True, text=True)
+
+
+def test_every_demo_is_byte_identical_in_two_fresh_processes(tmp_path):
+    fontconfig = tmp_path / "no-fonts.conf"
+    fontconfig.write_text(NO_FONTS, encoding="utf-8")
+    elsewhere = tmp_path / "elsewhere"
+    (elsewhere / "mpl").mkdir(parents=True)
+    (elsewhere / "cache").mkdir()
+
+    first = _build(tmp_path / "first", ROOT, PYTHONHASHSEED="1")
+    second = _build(tmp_path / "second", elsewhere, PYTHONHASHSEED="2", TZ="Pacific/Kiritimati",
+                    FONTCONFIG_FILE=str(fontconfig), MPLCONFIGDIR=str(elsewhere / "mpl"),
+                    XDG_CACHE_HOME=str(elsewhere / "cache"))
+    for run in (first, second):
+        assert run.returncode == 0, run.stderr
+        assert "Traceback" not in run.stderr, run.stderr
+
+    demos = sorted(p.stem for p in INPUTS.glob("*.toml"))
+    expected = sorted(f"{stem}.{fmt}" for stem in demos for fmt in FORMATS)
+    assert sorted(p.name for p in (tmp_path / "first").iterdir()) == expected
+    assert sorted(p.name for p in (tmp_path / "second").iterdir()) == expected
+    differing = [name for name in expected
+                 if (tmp_path / "first" / name).read_bytes() != (tmp_path / "second" / name).read_bytes()]
+    assert differing == [], f"outputs differ between the two builds: {differing}"
