@@ -40,7 +40,7 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
         warnings.filterwarnings("ignore", message=".*(FontConfig|Fontconfig).*")
         import weasyprint
 
-    from calcsheet.writers.fetcher import ConfinedFetcher
+    from calcsheet.writers.fetcher import STYLE_ROOT, ConfinedFetcher
     from calcsheet.writers.plot import figure_svg, svg_data_uri
 
     html = render_html(sheet, style, "print", {
@@ -51,9 +51,8 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
     }, extra_css=_page_css(sheet), created=creation_date(sheet))
     # The screen CSS holds properties print does not use; WeasyPrint would warn about each.
     logging.getLogger("weasyprint").setLevel(logging.ERROR)
-    folder = Path(style) if style is not None else default_style_dir()
-    fetcher = ConfinedFetcher([folder, default_style_dir()])
-    document = weasyprint.HTML(string=html, base_url=folder.resolve().as_uri() + "/", url_fetcher=fetcher).render()
+    fetcher = ConfinedFetcher(Path(style) if style is not None else default_style_dir(), default_style_dir())
+    document = weasyprint.HTML(string=html, base_url=STYLE_ROOT, url_fetcher=fetcher).render()
     _refuse_attachments_and_outward_links(document, style)
     with _font_subsets_keep_their_timestamp():
         identifier = hashlib.sha256(html.encode("utf-8")).hexdigest()[:32].encode("ascii")
