@@ -15,6 +15,7 @@ from calcsheet.derive.classify import Classification
 from calcsheet.derive.evaluate import ResponseEvaluator
 from calcsheet.derive.integrating_factor import Solution
 from calcsheet.derive.readable import compact
+from calcsheet.errors import ModelRefused
 from calcsheet.model import Criterion, Model, Point
 
 SEARCH_SCALES = 60  # how many natural scales past the initial point a level is searched for
@@ -104,6 +105,9 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     x0 = model.initial_at.si
     tau, tau_expr, tau_note = _time_constant(cls, p_value, model)
     scale = tau if tau else _natural_scale(p_value, x, x0, model)
+    if not (math.isfinite(scale) and scale > 0):  # a time constant beyond the floating-point range
+        raise ModelRefused(f"the natural scale of the response, 1/p = {scale:g} {_si_unit(model)}, is beyond the "
+                           "range this tool computes in; restate the parameters", "parameters")
     farthest = max([x0] + [pt.si for pt in _abscissae(model)])
     span_end = x0 + max(5 * scale, (farthest - x0) * 1.05)
     grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), SEARCH_POINTS)
@@ -186,6 +190,10 @@ def _time_constant(cls: Classification, p_value: sp.Expr, model: Model):
     if p_num <= 0:
         return None, None, f"p = {p_num:g} is not positive: the natural response does not decay, so there is no {word}"
     return 1.0 / p_num, compact(1 / cls.p), ""
+
+
+def _si_unit(model: Model) -> str:
+    return "s" if _is_time(model) else "SI units"
 
 
 def _is_time(model: Model) -> bool:
@@ -318,7 +326,7 @@ def reach_for(level: Point, y, grid, samples, final, model: Model, stop: tuple[s
     if final is not None and start is not None and (level.si - final) * (start - final) < 0:
         return Reach(level, None, f"not reached {searched}; the response settles at its final value short of it",
                      SETTLES_SHORT)
-    if final is not None and start is not None and abs(level.si - final) > abs(start - final):
+    if final is not None and start is not None and abs(level.si - final) >= abs(start - final) * (1 - AT_LEVEL):
         return Reach(level, None, f"not reached {searched}; the response moves away from it, toward its final value",
                      MOVES_AWAY)
     return Reach(level, None, f"not reached {searched}", NOT_IN_RANGE)

@@ -5,6 +5,10 @@ from __future__ import annotations
 import sympy as sp
 
 from calcsheet.derive.derivation import Derivation
+from calcsheet.derive.numbers import APPROACHES_FINAL, MODEL_STOPS, MOVES_AWAY, SETTLES_SHORT, SOLUTION_ENDS, \
+    SEARCH_SCALES
+from calcsheet.derive.verify import bound
+from calcsheet.kinds.base import INVALID, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
 from calcsheet.sheet.document import (Equation, ItemList, Math, Note, Outcome, Paragraph, Section, Sheet,
@@ -76,17 +80,35 @@ def _title_block(d: Derivation) -> TitleBlock:
 
 def _outcome(d: Derivation) -> Outcome:
     verdicts = d.numbers.verdicts
-    failed = [v for v in verdicts if not v.passed]
+    not_valid = getattr(d.numbers, "not_valid", ())
+    failed = [v for v in verdicts if _status(v) == "fail"]
+    unassessed = [v for v in verdicts if _status(v) == "not assessed"]
     verified = d.verification.passed
-    if not verdicts:
+    if not_valid:
+        head = ("The model is not valid for this case: " + " ".join(n.text for n in not_valid)
+                + (" The criteria are not assessed." if verdicts else ""))
+    elif not verdicts:
         head = "No acceptance criteria stated."
-    elif failed:
-        head = f"{len(failed)} of {len(verdicts)} criteria FAIL."
+    elif failed or unassessed:
+        head = " ".join(part for part in (
+            f"{len(failed)} of {len(verdicts)} criteria FAIL." if failed else "",
+            f"{len(unassessed)} of {len(verdicts)} criteria not assessed: they depend on the response after the "
+            "model stops holding." if unassessed else ""
+        ) if part)
     else:
         head = "The criterion passes." if len(verdicts) == 1 else f"All {len(verdicts)} criteria pass."
     head += " Verification passed." if verified else " Verification FAILED: do not rely on these results."
-    lines = tuple(f"{'PASS' if v.passed else 'FAIL'}: {v.criterion.text}" for v in verdicts)
-    return Outcome(passed=not failed and verified, text=head, lines=lines)
+    lines = tuple(f"{_STATUS_WORDS[_status(v)]}: {v.criterion.text}" for v in verdicts)
+    return Outcome(passed=not not_valid and not failed and not unassessed and verified, text=head, lines=lines)
+
+
+_STATUS_WORDS = {"pass": "PASS", "fail": "FAIL", "not assessed": "NOT ASSESSED"}
+_NOT_ASSESSED_WHY = {"model_not_valid": "model not valid", "past_validity_limit": "past the validity limit"}
+
+
+def _status(verdict) -> str:
+    """pass, fail or not assessed (a verdict of a switched model may predate the assessed flag)."""
+    return getattr(verdict, "status", "pass" if verdict.passed else "fail")
 
 
 def _basis(d: Derivation) -> Section:
@@ -134,9 +156,16 @@ def _kind_blocks(use) -> list:
     if use.forcing:
         blocks.append(Paragraph(f"Forcing: {use.forcing}."))
     blocks += [Paragraph("Assumptions of this kind:"), ItemList(use.assumptions)]
-    blocks += [Note("warning" if note.startswith("WARNING") else "method", note.removeprefix("WARNING: "))
-               for note in use.notes]
+    blocks += [_kind_note(note) for note in use.notes]
     return blocks
+
+
+def _kind_note(note) -> Note:
+    """A kind's finding on the sheet: a warning box for warnings and for a model not valid here."""
+    found = KindNote.of(note)
+    if found.severity == INVALID:
+        return Note("warning", f"Model not valid for this case: {found.text}")
+    return Note("warning" if found.severity == WARNING else "method", found.text)
 
 
 def _si_text(p) -> str:
@@ -263,7 +292,12 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     if d.quadrature is not None:
         blocks.append(Note("method", f"The integral term is evaluated by {d.quadrature_method}. Largest error "
                                      "estimate over every evaluation made for this sheet: "
-                                     f"{number(d.quadrature.largest_error, 2)} {si_y}".rstrip() + "."))
+                                     f"{bound(d.quadrature.largest_error)} {si_y}".rstrip() + "."))
+        if getattr(d.quadrature, "troubled", 0):
+            blocks.append(Note("warning", f"In {d.quadrature.troubled} of {d.quadrature.evaluations} evaluations the "
+                                          "quadrature reported that it could not reach its tolerance within its "
+                                          "bound of work; those values may be less accurate than stated. The "
+                                          "independent integration in the verification step decides."))
     if num.values:
         blocks.append(values_table(m, num.values))
     if num.reach:
@@ -282,23 +316,57 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     return Section("numbers", "Numbers", tuple(blocks))
 
 
+PAST_LIMIT = "past the validity limit: does not apply"
+
+
 def values_table(m, values) -> Table:
-    return Table((m.variable.name, m.unknown.name),
-                 tuple((v.at.text + _also(v.at, m.variable), in_units(v.y, m.unknown)) for v in values),
-                 f"Values of {m.unknown.name}")
+    rows = tuple((v.at.text + _also(v.at, m.variable), in_units(v.y, m.unknown)) for v in values)
+    past = [not getattr(v, "applies", True) for v in values]
+    if not any(past):
+        return Table((m.variable.name, m.unknown.name), rows, f"Values of {m.unknown.name}")
+    return Table((m.variable.name, m.unknown.name, "Remark"),
+                 tuple(row + (PAST_LIMIT if late else "",) for row, late in zip(rows, past)),
+                 f"Values of {m.unknown.name}", row_status=tuple("fail" if late else "" for late in past),
+                 status_column=2)
 
 
 def reach_table(m, reaches) -> Table:
     return Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
-                 tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached", r.note)
-                       for r in reaches), "Levels reached after the initial point")
+                 tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached",
+                        _reach_remark(r, m)) for r in reaches), "Levels reached after the initial point")
+
+
+def _reach_remark(r, m) -> str:
+    """Why a level is not reached, in the sheet's words (the rule is in numbers.reach_for)."""
+    code = getattr(r, "code", "")
+    searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
+    if code == MODEL_STOPS:
+        return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the model stops "
+                f"holding ({(m.kind.limit[1] if m.kind and m.kind.limit else 'validity limit')}); the model says "
+                "nothing after that")
+    if code == SOLUTION_ENDS:
+        return f"not reached before the solution stops existing near {m.variable.name} = {in_units(r.stop, m.variable)}"
+    if code == APPROACHES_FINAL:
+        return "not reached: this is the final value, which the response approaches but never reaches"
+    if code == SETTLES_SHORT:
+        return f"not reached {searched}; the response settles at its final value short of it"
+    if code == MOVES_AWAY:
+        return f"not reached {searched}; the response moves away from it, toward its final value"
+    return r.note
 
 
 def criteria_table(m, verdicts) -> Table:
     return Table(("Criterion", "Check", "Found", "Result"),
-                 tuple((v.criterion.text, v.criterion.check, _found(v, m), "PASS" if v.passed else "FAIL")
-                       for v in verdicts), "Acceptance criteria",
-                 row_status=tuple("pass" if v.passed else "fail" for v in verdicts))
+                 tuple((v.criterion.text, v.criterion.check, _found(v, m), _result(v)) for v in verdicts),
+                 "Acceptance criteria",
+                 row_status=tuple({"pass": "pass", "fail": "fail"}.get(_status(v), "") for v in verdicts))
+
+
+def _result(verdict) -> str:
+    status = _status(verdict)
+    if status == "not assessed":
+        return f"not assessed ({_NOT_ASSESSED_WHY.get(verdict.code, 'see the record')})"
+    return _STATUS_WORDS[status]
 
 
 def checks_table(checks, caption: str = "") -> Table:

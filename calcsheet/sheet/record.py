@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from calcsheet.derive.verify import bound
+from calcsheet.kinds.base import Note
 from calcsheet.mathtext import plain
 from calcsheet.sheet.quantities import record_value, rounded
 
@@ -27,6 +29,8 @@ def build_record(d, n) -> dict:
         "kind": None if m.kind is None else {
             "name": m.kind.name, "title": m.kind.title, "law": m.kind.law, "forcing": m.kind.forcing,
             "notes": list(m.kind.notes),
+            "findings": [_finding(n) for n in m.kind.notes],
+            "valid": not m.kind.not_valid,
         },
         "classification": {
             "order": c.order, "linear": c.linear, "homogeneous": c.homogeneous,
@@ -40,7 +44,8 @@ def build_record(d, n) -> dict:
             "natural": {"latex": n.tex(s.natural), "text": plain(s.natural)},
             "forced": {"latex": n.tex(s.forced), "text": plain(s.forced)},
             "quadrature": None if d.quadrature is None else {
-                "method": d.quadrature_method, "largest_error_estimate": float(f"{d.quadrature.largest_error:.2g}")},
+                "method": d.quadrature_method, "largest_error_estimate": bound(d.quadrature.largest_error),
+                "evaluations_with_warnings": getattr(d.quadrature, "troubled", 0)},
         },
         "time_constant": record_value(num.time_constant, m.variable),
         "final_value": record_value(num.final_value, m.unknown),
@@ -58,11 +63,20 @@ def build_record(d, n) -> dict:
 def results_record(m, num) -> dict:
     """Values, levels reached and criteria, each number with its declared unit."""
     return {
-        "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown)} for v in num.values],
-        "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable)} for r in num.reach],
+        "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown),
+                    "applies": getattr(v, "applies", True)} for v in num.values],
+        "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable),
+                   "reason": None if r.x is not None else getattr(r, "code", None)} for r in num.reach],
         "criteria": [{"text": v.criterion.text, "check": v.criterion.check, "passed": v.passed,
+                      "status": getattr(v, "status", "pass" if v.passed else "fail"),
+                      "not_assessed_because": getattr(v, "code", "") or None,
                       "found": _found(v, m)} for v in num.verdicts],
     }
+
+
+def _finding(note) -> dict:
+    found = Note.of(note)
+    return {"severity": found.severity, "code": found.code or None, "text": found.text}
 
 
 def verification_record(verification) -> dict:
