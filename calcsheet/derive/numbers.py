@@ -36,7 +36,7 @@ class ValueAt:
 
 # Why a level is not reached (Reach.code); the sheet words each one.
 REACHED, MODEL_STOPS, SOLUTION_ENDS, APPROACHES_FINAL, SETTLES_SHORT, MOVES_AWAY, NOT_IN_RANGE = (
-    "reached", "model_stops", "solution_ends", "approaches_final", "settles_short", "moves_away", "not_in_range")
+    "reached", "model_stops", "solution_ends", "approaches_final", "settles_short", "starts_on_level", "not_in_range")
 
 
 @dataclass(frozen=True)
@@ -326,9 +326,9 @@ def reach_for(level: Point, y, grid, samples, final, model: Model, stop: tuple[s
     if final is not None and start is not None and (level.si - final) * (start - final) < 0:
         return Reach(level, None, f"not reached {searched}; the response settles at its final value short of it",
                      SETTLES_SHORT)
-    if final is not None and start is not None and abs(level.si - final) >= abs(start - final) * (1 - AT_LEVEL):
-        return Reach(level, None, f"not reached {searched}; the response moves away from it, toward its final value",
-                     MOVES_AWAY)
+    if start is not None and abs(level.si - start) <= AT_LEVEL * max(size, 1e-300):
+        return Reach(level, None, "not reached after the initial point: the response starts on this level and "
+                                  "leaves it without coming back across it", MOVES_AWAY)
     return Reach(level, None, f"not reached {searched}", NOT_IN_RANGE)
 
 

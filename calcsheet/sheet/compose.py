@@ -351,7 +351,8 @@ def _reach_remark(r, m) -> str:
     if code == SETTLES_SHORT:
         return f"not reached {searched}; the response settles at its final value short of it"
     if code == MOVES_AWAY:
-        return f"not reached {searched}; the response moves away from it, toward its final value"
+        return ("not reached after the initial point: the response starts on this level and leaves it without "
+                "coming back across it")
     return r.note
 
 
