@@ -100,8 +100,10 @@ def test_biot_warning_reaches_the_sheet(tmp_path):
     built = build_sheet(path)
     warnings = [n for n in built.derivation.model.kind.notes if n.startswith("WARNING: ")]
     assert len(warnings) == 1 and "0.741" in warnings[0]
+    assert warnings[0].severity == "invalid" and not built.derivation.passed  # the model does not hold here
     text = render(built.sheet, ("txt",))["txt"]
-    assert "WARNING: Bi = 0.741 exceeds 0.1" in text
+    assert "WARNING: Model not valid for this case: Bi = 0.741 exceeds 0.1" in text
+    assert "OUTCOME: The model is not valid for this case: Bi = 0.741 exceeds 0.1" in text
 
 
 def ramp_lagged(seconds: float, start: float, rate: float, tau: float) -> float:
