@@ -103,6 +103,7 @@ class Switch:
     at: "Point"
     text: str
     model: "Model"
+    carried: tuple[tuple[str, str], ...] = ()  # states the kind's law carries over, as (name, value shown)
 
 
 @dataclass(frozen=True)

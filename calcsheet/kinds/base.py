@@ -59,6 +59,9 @@ def info(text: str, code: str = "") -> Note:
     return Note(text, INFO, code)
 
 
+START_SLOT = "t_V"  # the start of a shifted law's clock: the initial point or the switch instant
+
+
 @dataclass(frozen=True)
 class Slot:
     """A named quantity of a kind: its symbol, a unit showing its dimension, what it means."""
@@ -88,6 +91,12 @@ class Kind:
     # where the model stops holding, as (variable value in SI, what happens), e.g. a tank overflowing
     limit: Callable[[dict[str, float]], tuple[float, str] | None] = field(default=lambda values: None)
     starter: str = ""  # the rest of a starter input for `calcsheet new` ([sheet], values, requests)
+    # A law whose own clock starts with the interval (a tank's volume law): the equation with the
+    # variable measured from START_SLOT, used when an interval does not start at 0.
+    shifted_equation: str = ""
+    # States the law carries besides the unknown, at the end of an interval: SI values of the slots
+    # the next interval starts from (a tank's V_0 becomes the volume reached at the switch).
+    carry: Callable[[dict[str, float], float], dict[str, float]] = field(default=lambda values, at: {})
 
     def slot(self, name: str) -> Slot:
         return next(s for s in self.slots if s.name == name)

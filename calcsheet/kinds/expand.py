@@ -5,9 +5,9 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass, replace
 
-from calcsheet.errors import InputError
+from calcsheet.errors import InputError, key_part
 from calcsheet.kinds import kind_named
-from calcsheet.kinds.base import Kind, KindUse, Note, check_slot_dimension
+from calcsheet.kinds.base import START_SLOT, Kind, KindUse, Note, check_slot_dimension
 from calcsheet.kinds.forcing import forcing_from_table
 from calcsheet.source import units
 from calcsheet.source.loader_support import declared_parts
@@ -20,7 +20,9 @@ class Expanded:
     use: KindUse
 
 
-def expand_kind(model_table: dict, parameters: dict, forcing_table) -> Expanded:
+def expand_kind(model_table: dict, parameters: dict, forcing_table, start=None, start_source: str = "") -> Expanded:
+    """``start`` is where the interval begins as written (``[initial] at`` or a switch's ``at``): a law with
+    its own clock (a tank's volume law) is then written from it."""
     name = model_table.get("kind")
     if not isinstance(name, str):
         raise InputError("must be the name of a kind in quotes (see `calcsheet kinds`)", "model.kind")
@@ -31,7 +33,8 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table) -> Expanded:
     unknown = _declared(model_table, "unknown", kind.unknown, kind)
     variable = _declared(model_table, "variable", kind.variable, kind)
     params = dict(parameters)
-    equation, words, frequency = kind.equation, "", ""
+    shifted = bool(kind.shifted_equation) and start is not None and _nonzero(start)
+    equation, words, frequency = kind.shifted_equation if shifted else kind.equation, "", ""
     if forcing_table is not None:
         if not kind.source:
             raise InputError(f"kind {kind.name} has no source to drive", "forcing")
@@ -41,11 +44,21 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table) -> Expanded:
         source_unit = kind.slot(kind.source).unit
         forcing = forcing_from_table(forcing_table, kind.source, source_unit, kind.variable.name,
                                      _unit_of(variable) or kind.variable.unit)
+        for generated in sorted(set(forcing.parameters) & set(params)):
+            raise InputError(f"{generated} is given by [forcing] (the {forcing.form}); remove it from [parameters]",
+                             f"parameters.{generated}")
         params.update({name: {"value": raw, "source": f"[forcing] {forcing.form}"}
                        for name, raw in forcing.parameters.items()})
-        equation = re.sub(rf"(?<![A-Za-z0-9_]){re.escape(kind.source)}(?![A-Za-z0-9_])", forcing.expression, equation)
+        # the expression goes in through a function: user text is never read as a replacement template
+        equation = re.sub(rf"(?<![A-Za-z0-9_]){re.escape(kind.source)}(?![A-Za-z0-9_])",
+                          lambda _: forcing.expression, equation)
         words, frequency = forcing.words, forcing.frequency
-    _check_parameters(kind, params, forcing_table)
+        generated_names = frozenset(forcing.parameters)
+    else:
+        generated_names = frozenset()
+    _check_parameters(kind, params, forcing_table, generated_names)
+    if shifted:
+        params[START_SLOT] = {"value": start, "source": start_source or "start of the interval"}
     table = {"equation": equation, "unknown": unknown, "variable": variable}
     use = KindUse(kind.name, kind.title, kind.law, kind.law_steps, kind.assumptions, forcing=words,
                   frequency=frequency, slot_names=tuple(s.name for s in kind.slots))
@@ -56,7 +69,14 @@ def kind_checks(use: KindUse, parameters) -> KindUse:
     """The kind's validity checks, run on the SI values of the parameters."""
     kind = kind_named(use.name)
     values = {p.name: p.si for p in parameters}
-    return replace(use, notes=tuple(map(Note.of, kind.checks(values))), limit=kind.limit(values))
+    try:
+        return replace(use, notes=tuple(map(Note.of, kind.checks(values))), limit=kind.limit(values))
+    except (ArithmeticError, ValueError):  # a check dividing by a parameter of zero, say
+        zeros = [s.name for s in kind.slots if values.get(s.name) == 0]
+        named = f": {', '.join(zeros)} = 0" if zeros else ""
+        raise InputError(f"kind {kind.name}'s checks cannot be worked out with the stated values{named}; "
+                         "give each a value that describes a real case",
+                         f"parameters.{zeros[0]}" if zeros else "parameters") from None
 
 
 def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:
@@ -67,12 +87,16 @@ def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:
     if name != slot.name:
         raise InputError(f"kind {kind.name} calls its {key} '{slot.name}' ({slot.meaning}); write "
                          f"\"{slot.name} [{unit_text or slot.unit}]\"", f"model.{key}")
-    unit = units.parse_unit(unit_text)
+    try:
+        unit = units.parse_unit(unit_text)
+    except InputError as error:
+        raise error.located(key=f"model.{key}")
     if not slot.unit:  # a quantity of any dimension: the reading of a sensor, say
         return text
-    if _angular(slot.unit) != _angular(unit_text):
+    if units.is_angular(units.parse_unit(slot.unit)) != units.is_angular(unit):
         raise InputError(f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}; '{unit_text}' "
-                         f"{'is not' if _angular(slot.unit) else 'is'} an angular unit, and rad/s and Hz "
+                         f"{'is not' if units.is_angular(units.parse_unit(slot.unit)) else 'is'} an angular unit, "
+                         "and rad/s and Hz "
                          "differ by 2 pi although they share a dimension", f"model.{key}")
     if not units.same_dimension(unit, units.parse_unit(slot.unit)):
         raise InputError(f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}, got '{unit_text}'",
@@ -80,16 +104,13 @@ def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:
     return text
 
 
-def _angular(unit_text: str) -> bool:
-    """Angles hide in pint's dimensionless radian; look at the unit's words instead."""
-    return bool(re.search(r"rad|rpm|deg(?!C|F)|rev", unit_text))
-
-
 def _unit_of(declared_text: str) -> str:
-    return declared_parts(declared_text, "")[1]
+    return declared_parts(declared_text, "model.variable")[1]
 
 
-def _check_parameters(kind: Kind, params: dict, forcing_table) -> None:
+def _check_parameters(kind: Kind, params: dict, forcing_table, generated_names: frozenset = frozenset()) -> None:
+    """Each slot present (or defaulted) with its dimension; nothing else but the names a [forcing]
+    form generates, or the values an expression forcing names."""
     known = {s.name for s in kind.slots}
     for slot in kind.slots:
         where = f"parameters.{slot.name}"
@@ -97,8 +118,10 @@ def _check_parameters(kind: Kind, params: dict, forcing_table) -> None:
             if slot.name == kind.source and forcing_table is not None:
                 continue
             if slot.default is None:
+                alternative = (f", or a [forcing] table that gives {slot.name} as a function of {kind.variable.name}"
+                               if slot.name == kind.source else "")
                 raise InputError(f"kind {kind.name} needs {slot.name} ({slot.meaning}), e.g. "
-                                 f"{slot.name} = \"{slot.example}\"", where)
+                                 f"{slot.name} = \"{slot.example}\" in [parameters]{alternative}", where)
             params[slot.name] = {"value": slot.default, "source": f"default of kind {kind.name}"}
         raw = params[slot.name]
         value = raw.get("value") if isinstance(raw, dict) else raw
@@ -107,9 +130,20 @@ def _check_parameters(kind: Kind, params: dict, forcing_table) -> None:
         except InputError as error:
             raise error.located(key=where)
         check_slot_dimension(kind, slot, quantity, where)
-    generated = set(params) - known
+    others = set(params) - known - generated_names
     expression_forcing = isinstance(forcing_table, dict) and forcing_table.get("form") == "expression"
-    for name in sorted(generated):
-        if not name.startswith(f"{kind.source}_") and not expression_forcing:
+    for name in sorted(others):
+        if not expression_forcing:
+            through_forcing = (f"; the values of a [forcing] form are written in [forcing], not as {kind.source}_..."
+                               if kind.source and name.startswith(f"{kind.source}_") else "")
             raise InputError(f"'{name}' is not a parameter of kind {kind.name} (its parameters: "
-                             f"{', '.join(s.name for s in kind.slots)})", f"parameters.{name}")
+                             f"{', '.join(s.name for s in kind.slots)}){through_forcing}",
+                             f"parameters.{key_part(name)}")
+
+
+def _nonzero(raw) -> bool:
+    """Whether a start point as written lies off the variable's origin (errors are reported where it is read)."""
+    try:
+        return units.to_si(units.parse_quantity(raw)) != 0
+    except InputError:
+        return False

@@ -1,10 +1,10 @@
 """Well-mixed tank: the concentration of a dissolved substance while the tank fills, drains or runs full."""
 
-from calcsheet.kinds.base import Kind, Slot
-from calcsheet.kinds.mixing_tank import tank_slots, volume_limit, volume_notes
+from calcsheet.kinds.base import START_SLOT, Kind, Slot
+from calcsheet.kinds.mixing_tank import carried_volume, tank_slots, volume_limit, volume_notes
 
 
-def _checks(values: dict[str, float]) -> tuple[str, ...]:
+def _checks(values: dict[str, float]):
     return volume_notes(values, concentration=True)
 
 
@@ -20,6 +20,8 @@ KIND = Kind(
     slots=tank_slots("0.25 m^3/min", "0.15 m^3/min", "0.8 kg/m^3", "4 m^3", "10 m^3"),
     limit=volume_limit,
     equation="(V_0 + (q_in - q_out)*t)*dc/dt = q_in*(c_in - c)",
+    shifted_equation=f"(V_0 + (q_in - q_out)*(t - {START_SLOT}))*dc/dt = q_in*(c_in - c)",
+    carry=carried_volume,
     law_steps=(
         (r"\frac{d\left(V c\right)}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",
          "d(V*c)/dt = q_in*c_in - q_out*c   (mass balance: accumulation = in - out)"),

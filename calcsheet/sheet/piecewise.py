@@ -31,15 +31,20 @@ def compose_piecewise(pd) -> Sheet:
 def _switch_list(pd) -> Section:
     m = pd.model
     rows = []
-    for k, interval in enumerate(pd.intervals, start=1):
+    carried = [()] + [s.carried for s in m.switches]
+    for k, (interval, states) in enumerate(zip(pd.intervals, carried), start=1):
         end = in_units(interval.end, m.variable) if interval.end is not None else "end"
         start_value = interval.derivation.model.initial_value
         rows.append((str(k), f"{in_units(interval.start, m.variable)} to {end}", interval.text,
-                     in_units(start_value.si, m.unknown)))
+                     in_units(start_value.si, m.unknown),
+                     "; ".join(f"{name} at the switch = {value}" for name, value in states) or "-"))
     return Section("switches", "Intervals and switches", (
         Paragraph(f"The model changes at each switch. Every interval is derived on its own below; its initial value "
-                  f"is the value the previous interval reaches at the switch, since {m.unknown.name} cannot jump."),
-        Table(("Interval", f"{m.variable.name}", "At its start", f"{m.unknown.name} at its start"), tuple(rows)),
+                  f"is the value the previous interval reaches at the switch, since {m.unknown.name} cannot jump. Parameters "
+                  "set at a switch stay in force until a later switch changes them, and any other state the law "
+                  "carries (a tank's volume) starts from the value reached at the switch."),
+        Table(("Interval", f"{m.variable.name}", "At its start", f"{m.unknown.name} at its start",
+               "Other states carried over"), tuple(rows)),
     ))
 
 

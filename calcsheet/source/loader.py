@@ -1,25 +1,30 @@
 """Read an input file (TOML, format version 1) and build a validated Model.
 
-Every problem is reported as ``file: key: what is wrong``. Independent problems (unknown keys,
-bad parameters) are gathered and reported together; later checks need the earlier ones to pass.
+Every problem is reported as ``file: key: what is wrong`` (a TOML syntax error as
+``file:LINE:COLUMN: what is wrong``). Every section that does not depend on another is checked,
+and all their problems are reported together, one per line; a check that needs an earlier part
+(the equation needs its parameters) runs only once that part has passed.
 """
 
 from __future__ import annotations
 
 import re
 import tomllib
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
 import sympy as sp
 
-from calcsheet.errors import CalcsheetError, InputError, ModelRefused
+from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part
 from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetInfo, Switch
 from calcsheet.source import expressions as ex
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.source import sheet_keys, units
 from calcsheet.source.loader_support import declared_parts
-from calcsheet.source.dimensions import check_equation
+from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
+from calcsheet.source.singular import Values, check_equation_values
+from calcsheet.source.text_rules import MAX_FILE_BYTES, check_raw, toml_kind
 from calcsheet.source.symbolic import to_sympy
 
 TABLES = {
@@ -38,21 +43,46 @@ TABLES = {
 }
 LISTS = {"criteria", "revisions", "switch"}  # written as [[name]]
 RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | {"reach", "final_value", "time_constant"}
-_CHECK = re.compile(
-    r"^\s*(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\(\s*(?P<argument>[^()]*?)\s*\))?\s*"
-    r"(?P<op><=|>=|<|>)\s*(?P<limit>.+?)\s*$"
-)
+# Applied to stripped text: one optional group between single runs of spaces, so it is linear.
+_CHECK = re.compile(r"(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\((?P<argument>[^()]*)\)\s*)?(?P<op><=|>=|<|>)(?P<limit>.*)",
+                    re.DOTALL)
+_SECOND_COMPARISON = re.compile(r"[<>=]|\b(?:and|or)\b")
+_TOML_POSITION = re.compile(r"\(at line (\d+), column (\d+)\)$")
+MAX_STYLE_NAME = 200
 
 
-class ErrorList(CalcsheetError):
-    """Several independent input errors, shown one per line."""
+class _Errors:
+    """The errors of independent sections, gathered so all are reported; one per key, the first found."""
 
-    def __init__(self, errors: list[InputError]):
-        super().__init__("; ".join(str(e) for e in errors))
-        self.errors = errors
+    def __init__(self):
+        self.items: list[CalcsheetError] = []
 
-    def __str__(self) -> str:
-        return "\n".join(str(e) for e in self.errors)
+    def add(self, error: CalcsheetError) -> None:
+        for item in getattr(error, "errors", [error]):
+            if not any(_same_place(item.key, seen.key) for seen in self.items):
+                self.items.append(item)
+
+    def attempt(self, thunk, default=None):
+        """The value of ``thunk()``, or ``default`` with its error kept."""
+        try:
+            return thunk()
+        except CalcsheetError as error:
+            self.add(error)
+            return default
+
+    def raise_any(self) -> None:
+        if len(self.items) == 1:
+            raise self.items[0]
+        if self.items:
+            raise ErrorList(list(self.items))
+
+
+def _same_place(a: str, b: str) -> bool:
+    """One key inside the other (parameters.R and parameters.R.value): report only the first."""
+    if not a or not b:
+        return False
+    short, long = sorted((a, b), key=len)
+    return long == short or long.startswith(short + ".") or long.startswith(short + "[")
 
 
 def load_model(path: str | Path) -> Model:
@@ -60,39 +90,183 @@ def load_model(path: str | Path) -> Model:
     name = str(path)
     try:
         raw = _read_toml(Path(path))
-        return _Builder(name, raw).build()
-    except ErrorList as errors:
-        for error in errors.errors:
-            error.located(file=name)
-        raise
+        return _Builder(name, raw, text_problems=check_raw(raw)).build()
     except CalcsheetError as error:
         raise error.located(file=name)
+    except RecursionError:  # a defect of ours if it happens: the parsers bound their nesting
+        raise InputError("the input nests too deeply to be read", file=name) from None
 
 
 def _read_toml(path: Path) -> dict:
     try:
-        text = path.read_bytes().decode("utf-8")
+        with path.open("rb") as handle:
+            data = handle.read(MAX_FILE_BYTES + 1)
     except OSError as exc:
         raise InputError(f"cannot read the file ({exc.strerror or exc})")
+    if len(data) > MAX_FILE_BYTES:
+        raise InputError(f"the file is larger than {MAX_FILE_BYTES:,} bytes; an input is a short text")
+    try:
+        text = data.decode("utf-8")
     except UnicodeDecodeError:
         raise InputError("the file is not UTF-8 text")
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"not valid TOML: {exc}")
+        message = str(exc)
+        position = _TOML_POSITION.search(message)
+        if position:
+            line, column = int(position.group(1)), int(position.group(2))
+            raise InputError(f"not valid TOML: {message[:position.start()].strip()}", line=line, column=column)
+        raise InputError(f"not valid TOML: {message}")
+    except RecursionError:
+        raise InputError("not valid here: lists or tables are nested too deeply to be read") from None
+    except (ValueError, MemoryError) as exc:  # an integer of thousands of digits, say
+        raise InputError(f"cannot be read: {type(exc).__name__} while reading a value (a number too long?)")
 
 
 class _Builder:
     """Builds one Model; holds only the file name and the raw tables while it works."""
 
-    def __init__(self, file: str, raw: dict):
+    def __init__(self, file: str, raw: dict, start_source: str = "", text_problems: list | None = None):
         self.file = file
         self.raw = raw
-        self.original = raw  # as read: each switched interval starts again from it
+        self.text_problems = text_problems or []  # characters and sizes, found in the whole file once
+        self.original = raw  # as read, before a kind is expanded
+        self.start_source = start_source  # what starts this interval: the initial point, or switch N
 
     def build(self) -> Model:
-        self.check_keys()
-        sheet = self.sheet_info()
+        errors = _Errors()
+        for problem in self.text_problems:
+            errors.add(problem)
+        errors.attempt(self.check_keys)
+        if not self.tables_readable():
+            errors.raise_any()  # a table written as a list, or a value where a table belongs: stop here
+        sheet = errors.attempt(self.sheet_info)
+        model_table, kind_use = errors.attempt(self.model_table, (None, None))
+        unknown = variable = None
+        if model_table is not None:
+            unknown = errors.attempt(lambda: self.declared(model_table, "unknown"))
+            variable = errors.attempt(lambda: self.declared(model_table, "variable"))
+            if unknown and variable and unknown.name == variable.name:
+                errors.add(InputError("the unknown and the variable need different names", "model.variable"))
+                unknown = variable = None
+        parameters = errors.attempt(lambda: self.parameters({d.name for d in (unknown, variable) if d}))
+        equation_text = equation = None
+        if model_table is not None:
+            equation_text = errors.attempt(lambda: self.string(model_table, "equation", "model.equation",
+                                                               required=True))
+        initial = errors.attempt(lambda: self.table("initial", required=True))
+        initial_at = initial_value = None
+        if initial is not None and variable:
+            initial_at = errors.attempt(
+                lambda: self.point(initial.get("at", f"0 {variable.unit_text}"), variable, "initial.at"))
+        if initial is not None and unknown:
+            initial_value = errors.attempt(
+                lambda: self.point(self.required(initial, "value", "initial.value"), unknown, "initial.value"))
+        if equation_text is not None and unknown and variable:
+            names = frozenset(p.name for p in parameters or ()) | frozenset(self.table("parameters"))
+            equation = errors.attempt(lambda: _wrap_key(lambda: ex.parse_equation(equation_text, names),
+                                                        "model.equation"))
+        symbolic = None
+        if equation is not None and unknown and variable and parameters is not None:
+            derivative = sp.Symbol(f"d{unknown.name}/d{variable.name}", real=True)
+            symbolic = errors.attempt(lambda: _wrap_key(
+                lambda: _symbolic_equation(equation, unknown, variable, parameters, derivative, initial_at),
+                "model.equation"))
+        evaluate = self.table("evaluate")
+        evaluate_at = errors.attempt(lambda: self.points(evaluate, "at", variable), ()) if variable else ()
+        for index, point in enumerate(evaluate_at if initial_at else ()):
+            if point.si < initial_at.si:
+                errors.add(InputError(f"'{point.text}' lies before the initial point {initial_at.text}; the "
+                                      "sheet solves forward from the initial condition", f"evaluate.at[{index + 1}]"))
+        reach = errors.attempt(lambda: self.points(evaluate, "reach", unknown), ()) if unknown else ()
+        criteria = errors.attempt(lambda: self.criteria(unknown, variable), ()) if unknown and variable else ()
+        plot_to = errors.attempt(lambda: self.plot_end(initial_at, variable)) if variable else None
+        kind = None
+        if kind_use is not None and parameters is not None:
+            kind = errors.attempt(lambda: kind_checks(kind_use, parameters))
+        errors.raise_any()
+        if symbolic is None:  # every part above reports its own error; this is a guard only
+            raise InputError("the model could not be read", "model")
+        lhs, rhs, unused = symbolic
+        model = Model(
+            path=self.file, sheet=sheet, equation_text=equation_text, equation=equation,
+            unknown=unknown, variable=variable, derivative=derivative, lhs=lhs, rhs=rhs,
+            parameters=parameters, initial_at=initial_at, initial_value=initial_value,
+            evaluate_at=evaluate_at, reach=reach, criteria=criteria, unused_parameters=unused,
+            plot_to=plot_to, kind=kind,
+        )
+        return replace(model, switches=self.switches(model)) if self.original.get("switch") else model
+
+    def switches(self, first: Model) -> tuple[Switch, ...]:
+        """Each [[switch]] becomes the model of the interval that follows it.
+
+        A switch starts from the parameters and forcing in force just before it (not from the input's),
+        changes only what it names, and carries over every state the kind's law holds besides the
+        unknown (a tank's volume); the unknown itself carries over in the derivation.
+        """
+        result, previous = [], first
+        parameters, forcing = dict(self.original.get("parameters", {})), self.original.get("forcing")
+        for index, entry in enumerate(self.original.get("switch", [])):
+            where = f"switch[{index + 1}]"
+            at = self.point(self.required(entry, "at", f"{where}.at"), first.variable, f"{where}.at")
+            if at.si <= previous.initial_at.si:
+                raise InputError(f"'{at.text}' must come after {previous.initial_at.text}", f"{where}.at")
+            changes = self.switch_changes(entry, first, where)
+            carried = _carried_states(previous, at)
+            for name in sorted(set(changes) & set(carried)):
+                raise InputError(f"{name} is carried over the switch from the state reached there; it cannot "
+                                 "be set at a switch", f"{where}.parameters.{name}")
+            parameters = {**parameters, **changes, **{name: value for name, (value, _) in carried.items()}}
+            forcing = entry.get("forcing", forcing)
+            raw = {k: v for k, v in self.original.items() if k not in ("evaluate", "criteria", "plot", "switch",
+                                                                        "forcing")}
+            raw["parameters"] = parameters
+            raw["initial"] = {"at": entry["at"], "value": self.original.get("initial", {}).get("value")}
+            if forcing is not None:
+                raw["forcing"] = forcing
+            try:
+                model = _Builder(self.file, raw, start_source=f"switch {index + 1}").build()
+            except CalcsheetError as error:
+                raise _prefixed(error, where)
+            text = self.string(entry, "text", f"{where}.text") or f"switch {index + 1}"
+            result.append(Switch(at, text, model, tuple((name, shown) for name, (_, shown) in carried.items())))
+            previous = model
+        return tuple(result)
+
+    def switch_changes(self, entry: dict, first: Model, where: str) -> dict:
+        """The parameters a switch sets: each must name a parameter of the model, stated as in [parameters]."""
+        changes = entry.get("parameters", {})
+        if not isinstance(changes, dict):
+            raise InputError("must be a table of parameter values, e.g. parameters = { R = \"80 ohm\" }",
+                             f"{where}.parameters")
+        known = _switchable(first, self.original.get("parameters", {}))
+        errors = []
+        for name, value in changes.items():
+            key = f"{where}.parameters.{name}"
+            if name not in known:
+                errors.append(InputError(f"'{name}' is not a parameter of this model (its parameters: "
+                                         f"{', '.join(sorted(known))})", key))
+            elif not (isinstance(value, str) or (isinstance(value, dict) and "value" in value)):
+                errors.append(InputError("state the new value as text with its unit, \"80 ohm\", or as a "
+                                         "table { value = \"80 ohm\", source = \"...\" }", key))
+        if errors:
+            raise ErrorList(errors)
+        return changes
+
+    # ----------------------------------------------------------------- tables and keys
+    def tables_readable(self) -> bool:
+        """Whether every known table is a table ([[name]] ones a list of tables), so sections can be read."""
+        for key, value in self.raw.items():
+            if key not in TABLES:
+                continue
+            entries = value if key in LISTS else [value]
+            if not isinstance(entries, list) or not all(isinstance(entry, dict) for entry in entries):
+                return False
+        return True
+
+    def model_table(self):
+        """The [model] table, with a kind expanded into its equation and parameters."""
         model_table = self.table("model", required=True)
         kind_use = None
         if "kind" in model_table:
@@ -100,70 +274,13 @@ class _Builder:
         elif "forcing" in self.raw:
             raise InputError("a [forcing] table goes with a model kind; in an equation, write the "
                              "function of the variable directly", "forcing")
-        unknown = self.declared(model_table, "unknown")
-        variable = self.declared(model_table, "variable")
-        if unknown.name == variable.name:
-            raise InputError("the unknown and the variable need different names", "model.variable")
-        parameters = self.parameters(unknown, variable)
-        equation_text = self.string(model_table, "equation", "model.equation", required=True)
-        names = frozenset(p.name for p in parameters)
-        equation = _wrap_key(lambda: ex.parse_equation(equation_text, names), "model.equation")
-        derivative = sp.Symbol(f"d{unknown.name}/d{variable.name}", real=True)
-        lhs, rhs, unused = _wrap_key(
-            lambda: _symbolic_equation(equation, unknown, variable, parameters, derivative), "model.equation"
-        )
-        initial = self.table("initial", required=True)
-        initial_at = self.point(initial.get("at", f"0 {variable.unit_text}"), variable, "initial.at")
-        initial_value = self.point(self.required(initial, "value", "initial.value"), unknown, "initial.value")
-        evaluate = self.table("evaluate")
-        evaluate_at = self.points(evaluate, "at", variable)
-        for index, point in enumerate(evaluate_at):
-            if point.si < initial_at.si:
-                raise InputError(f"'{point.text}' lies before the initial point {initial_at.text}; the sheet "
-                                 "solves forward from the initial condition", f"evaluate.at[{index + 1}]")
-        return Model(
-            path=self.file, sheet=sheet, equation_text=equation_text, equation=equation,
-            unknown=unknown, variable=variable, derivative=derivative, lhs=lhs, rhs=rhs,
-            parameters=parameters, initial_at=initial_at, initial_value=initial_value,
-            evaluate_at=evaluate_at,
-            reach=self.points(evaluate, "reach", unknown),
-            criteria=self.criteria(unknown, variable), unused_parameters=unused,
-            plot_to=self.plot_end(initial_at, variable),
-            kind=kind_use and kind_checks(kind_use, parameters),
-            switches=self.switches(initial_at, variable),
-        )
+        return model_table, kind_use
 
-    def switches(self, initial_at: Point, variable: Declared) -> tuple[Switch, ...]:
-        """Each [[switch]] becomes the model of the interval that follows it."""
-        result, previous = [], initial_at
-        for index, entry in enumerate(self.original.get("switch", [])):
-            where = f"switch[{index + 1}]"
-            at = self.point(self.required(entry, "at", f"{where}.at"), variable, f"{where}.at")
-            if at.si <= previous.si:
-                raise InputError(f"'{at.text}' must come after {previous.text}", f"{where}.at")
-            changes = entry.get("parameters", {})
-            if not isinstance(changes, dict):
-                raise InputError("must be a table of parameter values", f"{where}.parameters")
-            raw = {k: v for k, v in self.original.items() if k not in ("evaluate", "criteria", "plot", "switch")}
-            raw["parameters"] = {**self.original.get("parameters", {}), **changes}
-            raw["initial"] = {"at": entry["at"], "value": self.original.get("initial", {}).get("value")}
-            if "forcing" in entry:
-                raw["forcing"] = entry["forcing"]
-            try:
-                model = _Builder(self.file, raw).build()
-            except CalcsheetError as error:
-                raise error.located(key=where) if not error.key else _prefixed(error, where)
-            text = self.string(entry, "text", f"{where}.text") or f"switch {index + 1}"
-            result.append(Switch(at, text, model))
-            previous = at
-        return tuple(result)
-
-    # ----------------------------------------------------------------- tables and keys
     def check_keys(self) -> None:
         errors = []
         for key, value in self.raw.items():
             if key not in TABLES:
-                errors.append(InputError(f"unknown table (expected one of: {', '.join(TABLES)})", key))
+                errors.append(InputError(f"unknown table (expected one of: {', '.join(TABLES)})", key_part(key)))
                 continue
             allowed = TABLES[key]
             if isinstance(value, list) and key not in LISTS:
@@ -173,10 +290,10 @@ class _Builder:
             for index, entry in enumerate(entries):
                 where = f"{key}[{index + 1}]" if isinstance(value, list) else key
                 if not isinstance(entry, dict):
-                    errors.append(InputError("must be a table", where))
+                    errors.append(InputError(f"must be a table, but found {toml_kind(entry)}", where))
                 elif allowed is not None:
                     errors.extend(InputError(f"unknown key (expected one of: {', '.join(sorted(allowed))})",
-                                             f"{where}.{k}") for k in entry if k not in allowed)
+                                             f"{where}.{key_part(k)}") for k in entry if k not in allowed)
         for key in LISTS:
             if key in self.raw and not isinstance(self.raw[key], list):
                 errors.append(InputError(f"write {key} as [[{key}]] tables", key))
@@ -202,40 +319,69 @@ class _Builder:
             return ""
         value = table[key]
         if not isinstance(value, str):
-            raise InputError(f"must be text in quotes, got {type(value).__name__}", where)
+            raise InputError(f"must be text in quotes, but found {toml_kind(value)}", where)
         return value.strip()
 
     def strings(self, table: dict, key: str, where: str) -> tuple[str, ...]:
         value = table.get(key, [])
         if isinstance(value, str):
             value = [value]
-        if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
-            raise InputError("must be a list of texts", where)
+        if not isinstance(value, list):
+            raise InputError(f"must be a list of texts in quotes, but found {toml_kind(value)}", where)
+        for index, item in enumerate(value):
+            if not isinstance(item, str):
+                raise InputError(f"must be a list of texts in quotes, but item {index + 1} is {toml_kind(item)}",
+                                 where)
         return tuple(v.strip() for v in value)
 
     # ----------------------------------------------------------------------- sections
     def sheet_info(self) -> SheetInfo:
+        """[sheet], [signoff] and [[revisions]]: each key is checked, and every problem is reported."""
         table = self.table("sheet", required=True)
-        text = {k: self.string(table, k, f"sheet.{k}") for k in
+        errors = _Errors()
+        text = {k: errors.attempt(lambda k=k: self.string(table, k, f"sheet.{k}"), "") for k in
                 ("number", "revision", "project", "originator", "purpose")}
-        title = self.string(table, "title", "sheet.title", required=True)
-        if not title:
-            raise InputError("must not be empty", "sheet.title")
-        return SheetInfo(title=title, references=self.strings(table, "references", "sheet.references"),
-                         assumptions=self.strings(table, "assumptions", "sheet.assumptions"),
-                         date=sheet_keys.iso_date(table.get("date", ""), "sheet.date"),
-                         style=self.style_folder(self.string(table, "style", "sheet.style")),
-                         signoff=sheet_keys.signoff(self.raw.get("signoff", {}), text["originator"]),
-                         revisions=sheet_keys.revisions(self.raw.get("revisions", [])), **text)
+        title = errors.attempt(lambda: self.string(table, "title", "sheet.title", required=True), "")
+        if not title and "title" in table and isinstance(table["title"], str):
+            errors.add(InputError("must not be empty", "sheet.title"))
+        info = dict(
+            references=errors.attempt(lambda: self.strings(table, "references", "sheet.references"), ()),
+            assumptions=errors.attempt(lambda: self.strings(table, "assumptions", "sheet.assumptions"), ()),
+            date=errors.attempt(lambda: sheet_keys.iso_date(table.get("date", ""), "sheet.date"), ""),
+            style=errors.attempt(lambda: self.style_folder(self.string(table, "style", "sheet.style")), ""),
+            signoff=errors.attempt(lambda: sheet_keys.signoff(self.raw.get("signoff", {}), text["originator"]), ()),
+            revisions=errors.attempt(lambda: sheet_keys.revisions(self.raw.get("revisions", [])), ()),
+        )
+        errors.raise_any()
+        return SheetInfo(title=title, **info, **text)
 
     def style_folder(self, text: str) -> str:
-        """A house style folder, relative to the input file; it must exist."""
+        """A house style folder named by the input: inside the input file's folder tree, symlinks resolved.
+
+        A received input must not point its build at any folder on the machine; the command line's
+        --style may point anywhere, because the person building chose it.
+        """
         if not text:
             return ""
-        folder = Path(self.file).parent / text
-        if not folder.is_dir():
-            raise InputError(f"no style folder '{text}' next to the input (looked for {folder})", "sheet.style")
-        return str(folder)
+        if len(text) > MAX_STYLE_NAME:
+            raise InputError(f"a style folder name of {len(text)} characters; at most {MAX_STYLE_NAME}",
+                             "sheet.style")
+        home = Path(self.file).parent
+        try:
+            base = home.resolve()
+            folder = (home / text).resolve()
+            inside = not Path(text).is_absolute() and folder.is_relative_to(base)
+            found = inside and folder.is_dir()
+        except (OSError, RuntimeError, ValueError) as exc:  # a name too long for the system, a symlink loop
+            raise InputError(f"the style folder '{text}' cannot be looked up ({getattr(exc, 'strerror', '') or exc})",
+                             "sheet.style") from None
+        if not inside:
+            raise InputError(f"the style folder '{text}' lies outside the input file's folder ({base}); a style "
+                             "named in an input must be inside that folder tree; give --style on the command "
+                             "line to use a style kept elsewhere", "sheet.style")
+        if not found:
+            raise InputError(f"no style folder '{text}' next to the input (looked for {home / text})", "sheet.style")
+        return str(home / text)
 
     def declared(self, table: dict, key: str) -> Declared:
         where = f"model.{key}"
@@ -246,14 +392,15 @@ class _Builder:
         unit = _wrap_key(lambda: units.parse_unit(unit_text), where)
         return Declared(name, unit, unit_text, sp.Symbol(name, real=True))
 
-    def parameters(self, unknown: Declared, variable: Declared) -> tuple[Parameter, ...]:
+    def parameters(self, taken: set[str]) -> tuple[Parameter, ...]:
+        """Every parameter, each checked on its own; ``taken``: the names of the unknown and the variable."""
         table = self.table("parameters")
         errors, result = [], []
         for name, entry in table.items():
             try:
-                result.append(self.parameter(name, entry, {unknown.name, variable.name}))
+                result.append(self.parameter(name, entry, taken))
             except InputError as error:
-                errors.append(error.located(key=f"parameters.{name}"))
+                errors.append(error.located(key=f"parameters.{key_part(name)}"))
         if errors:
             raise ErrorList(errors)
         return tuple(result)
@@ -267,7 +414,9 @@ class _Builder:
         if isinstance(entry, dict):
             unknown_keys = set(entry) - {"value", "source", "note"}
             if unknown_keys:
-                raise InputError(f"unknown key '{sorted(unknown_keys)[0]}' (expected value, source, note)")
+                shown = key_part(sorted(unknown_keys)[0])
+                raise InputError(f"unknown key {shown if shown.startswith(chr(34)) else repr(shown)} "
+                                 "(expected value, source, note)")
             if "value" not in entry:
                 raise InputError("the table needs a value, e.g. { value = \"47 kohm\" }")
             source, note = (self.string(entry, k, f"parameters.{name}.{k}") for k in ("source", "note"))
@@ -275,6 +424,7 @@ class _Builder:
         quantity = units.parse_quantity(entry)
         text = entry if isinstance(entry, str) else f"{entry:g}"
         si_value = units.to_si(quantity)
+        units.check_magnitude(si_value, text.strip())
         return Parameter(name=name, text=text.strip(), quantity=quantity, si=si_value,
                          si_unit=units.si_unit(quantity.units), symbol=_parameter_symbol(name, si_value),
                          source=source, note=note)
@@ -286,44 +436,63 @@ class _Builder:
                 f"'{raw}' has dimension {units.dimension_text(quantity.units)}, but {like.name} is in "
                 f"{like.unit_text or 'no unit'} ({units.dimension_text(like.unit)})", where)
         text = raw if isinstance(raw, str) else f"{raw:g}"
-        return Point(text.strip(), quantity, units.to_si(quantity))
+        si_value = units.to_si(quantity)
+        _wrap_key(lambda: units.check_magnitude(si_value, text.strip()), where)
+        return Point(text.strip(), quantity, si_value)
 
     def points(self, table: dict, key: str, like: Declared) -> tuple[Point, ...]:
+        """Every point of ``evaluate.<key>``, each checked on its own."""
         raw = table.get(key, [])
         if not isinstance(raw, list):
             raw = [raw]
-        return tuple(self.point(item, like, f"evaluate.{key}[{i + 1}]") for i, item in enumerate(raw))
+        errors = _Errors()
+        result = tuple(errors.attempt(lambda i=i, item=item: self.point(item, like, f"evaluate.{key}[{i + 1}]"))
+                       for i, item in enumerate(raw))
+        errors.raise_any()
+        return result
 
     def apply_kind(self, model_table: dict):
         """Replace a kind by its equation and checked parameters, and remember what to say about it."""
-        expanded = expand_kind(model_table, self.raw.get("parameters", {}), self.raw.get("forcing"))
+        initial = self.raw.get("initial", {})
+        start = initial.get("at") if isinstance(initial, dict) else None
+        expanded = expand_kind(model_table, self.raw.get("parameters", {}), self.raw.get("forcing"), start,
+                               self.start_source or "the initial point")
         self.raw = {**self.raw, "parameters": expanded.parameters}
         return expanded.model_table, expanded.use
 
-    def plot_end(self, initial_at: Point, variable: Declared) -> Point | None:
+    def plot_end(self, initial_at: Point | None, variable: Declared) -> Point | None:
         table = self.table("plot")
         if "to" not in table:
             return None
         end = self.point(table["to"], variable, "plot.to")
-        if end.si <= initial_at.si:
+        if initial_at is not None and end.si <= initial_at.si:
             raise InputError(f"'{end.text}' must lie after the initial point {initial_at.text}", "plot.to")
         return end
 
     def criteria(self, unknown: Declared, variable: Declared) -> tuple[Criterion, ...]:
-        result = []
+        """Every [[criteria]] table, each checked on its own."""
+        errors, result = _Errors(), []
         for index, entry in enumerate(self.raw.get("criteria", [])):
             where = f"criteria[{index + 1}]"
-            text = self.string(entry, "text", f"{where}.text")
-            check = self.string(entry, "check", f"{where}.check", required=True)
-            result.append(self.criterion(text or check, check, unknown, variable, f"{where}.check"))
+            text = errors.attempt(lambda: self.string(entry, "text", f"{where}.text"), "")
+            check = errors.attempt(lambda: self.string(entry, "check", f"{where}.check", required=True))
+            if check is not None:
+                result.append(errors.attempt(
+                    lambda: self.criterion(text or check, check, unknown, variable, f"{where}.check")))
+        errors.raise_any()
         return tuple(result)
 
     def criterion(self, text: str, check: str, unknown: Declared, variable: Declared, where: str) -> Criterion:
-        match = _CHECK.match(check)
+        match = _CHECK.fullmatch(check.strip())
         if not match:
             raise InputError(f"'{check}' must read like \"{unknown.name}(60 s) <= 50 V\" or "
                              "\"reach(50 V) <= 60 s\"", where)
+        if _SECOND_COMPARISON.search(match.group("limit")):
+            raise InputError(f"'{check}' holds more than one comparison; a check is one comparison, so write "
+                             "each as its own [[criteria]] table (e.g. one \"v(1 min) >= 5 V\", another "
+                             "\"v(2 min) <= 10 V\")", where)
         subject, argument = match.group("subject"), match.group("argument")
+        argument = None if argument is None else argument.strip()
         kinds = {unknown.name: ("value", variable, unknown), "reach": ("reach", unknown, variable),
                  "time_constant": ("time_constant", None, variable), "final_value": ("final_value", None, unknown)}
         if subject not in kinds:
@@ -334,7 +503,7 @@ class _Builder:
         return Criterion(
             text=text, check=check, subject=kind,
             argument=None if argument is None else self.point(argument, argument_like, where),
-            operator=match.group("op"), limit=self.point(match.group("limit"), limit_like, where),
+            operator=match.group("op"), limit=self.point(match.group("limit").strip(), limit_like, where),
         )
 
 
@@ -348,8 +517,8 @@ def _parameter_symbol(name: str, value: float) -> sp.Symbol:
 
 
 def _symbolic_equation(equation: ex.Equation, unknown: Declared, variable: Declared,
-                       parameters: tuple[Parameter, ...], derivative: sp.Symbol):
-    """Refuse what is not a single first-order ODE in the unknown, check units, build sympy."""
+                       parameters: tuple[Parameter, ...], derivative: sp.Symbol, initial_at: Point | None = None):
+    """Refuse what is not a single first-order ODE in the unknown, check units and values, build sympy."""
     _refuse_wrong_derivatives(equation, unknown, variable)
     known = {p.name: p for p in parameters}
     used = ex.names_in(equation.left) | ex.names_in(equation.right)
@@ -361,6 +530,13 @@ def _symbolic_equation(equation: ex.Equation, unknown: Declared, variable: Decla
     si[variable.name] = units.si_unit(variable.unit)
     rate = (units.registry().Quantity(1, si[unknown.name]) / units.registry().Quantity(1, si[variable.name])).units
     check_equation(equation, lambda n: si[n] if n in si else units.registry().dimensionless, lambda d: rate)
+    absolute = {p.name: p.text for p in parameters if units.is_offset(p.quantity.units)}
+    if units.is_offset(unknown.unit):
+        absolute[unknown.name] = f"the unknown, in {unknown.unit_text}"
+    refuse_absolute_sums(equation, absolute, frozenset(known))
+    check_equation_values(equation, Values(
+        {p.name: (p.si, p.text) for p in parameters}, variable.name,
+        None if initial_at is None else initial_at.si, "" if initial_at is None else initial_at.text))
     symbols = {p.name: p.symbol for p in parameters}
     symbols[unknown.name] = unknown.symbol
     symbols[variable.name] = variable.symbol
@@ -387,8 +563,37 @@ def _refuse_wrong_derivatives(equation: ex.Equation, unknown: Declared, variable
 
 
 def _prefixed(error, where: str):
-    error.key = f"{where}.{error.key}"
+    """An error found inside a switch's own model, keyed from the switch: switch[1].parameters.R."""
+    for inner in getattr(error, "errors", [error]):
+        if not inner.key.startswith(where):
+            inner.key = f"{where}.{inner.key}" if inner.key else where
     return error
+
+
+def _switchable(first: Model, stated: dict) -> set[str]:
+    """What a switch may set: the stated parameters of an equation, or every parameter of a kind."""
+    if first.kind is None:
+        return set(stated)
+    from calcsheet.kinds import kind_named
+    from calcsheet.kinds.base import START_SLOT
+
+    return {slot.name for slot in kind_named(first.kind.name).slots} - {START_SLOT}
+
+
+def _carried_states(previous: Model, at: Point) -> dict[str, tuple[str, str]]:
+    """The states a kind's law carries over a switch, each as (raw value in SI, value as shown)."""
+    if previous.kind is None:
+        return {}
+    from calcsheet.kinds import kind_named
+
+    kind = kind_named(previous.kind.name)
+    values = {p.name: p.si for p in previous.parameters}
+    carried = {}
+    for name, value in kind.carry(values, at.si).items():
+        unit = units.unit_label(units.si_unit(units.parse_unit(kind.slot(name).unit)))
+        carried[name] = ({"value": f"{value!r} {unit}", "source": f"reached at the switch at {at.text}, carried over"},
+                         f"{value:.6g} {unit}")
+    return carried
 
 
 def _wrap_key(thunk, key: str):
