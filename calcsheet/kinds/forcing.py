@@ -74,7 +74,7 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
         if key not in allowed:
             raise InputError(f"unknown key for a {name} (expected: {', '.join(sorted(allowed))})", f"forcing.{key}")
     if not source_unit:  # a source of any dimension takes the unit of the first value given for it
-        source_unit = next((_unit_text(table[r.key]) for r in form.roles
+        source_unit = next((_unit_text(table[r.key], f"forcing.{r.key}") for r in form.roles
                             if r.dimension == "source" and r.key in table), "")
     expected = {"source": source_unit, "variable": variable_unit, "rate": f"({source_unit})/({variable_unit})",
                 "frequency": f"1/({variable_unit})", "angle": "rad"}
@@ -107,7 +107,23 @@ def _expression(table: dict, source: str) -> Forcing:
     text = table.get("expression")
     if not isinstance(text, str) or not text.strip():
         raise InputError("give the forcing as text in quotes, e.g. \"V_0*(1 - exp(-t/T_r))\"", "forcing.expression")
+    _check_expression(text)
     return Forcing(f"({text.strip()})", {}, f"{source} is given by the expression {text.strip()}", "expression")
+
+
+def _check_expression(text: str) -> None:
+    """The expression stands in the kind's equation in parentheses, so it must be one whole
+    expression of its own: no '=', no derivative, brackets balanced."""
+    from calcsheet.source import expressions as ex
+
+    try:
+        node = ex.parse_expression(text)
+    except InputError as error:
+        raise error.located(key="forcing.expression")
+    found = ex.derivatives_in(node)
+    if found:
+        raise InputError(f"'{found[0].text}' is a derivative; a forcing is a function of the variable only",
+                         "forcing.expression")
 
 
 def _is_temperature(unit_text: str) -> bool:
@@ -120,8 +136,11 @@ def _as_difference(raw: str) -> str:
     return f"{number} delta_{unit.strip()}" if unit.strip() in ("degC", "degF") else raw
 
 
-def _unit_text(raw) -> str:
-    quantity = units.parse_quantity(raw)
+def _unit_text(raw, where: str = "forcing") -> str:
+    try:
+        quantity = units.parse_quantity(raw)
+    except InputError as error:
+        raise error.located(key=where)
     return str(quantity.units) if str(quantity.units) != "dimensionless" else ""
 
 
@@ -131,6 +150,9 @@ def _check(raw, expected_unit: str, role: Role, form: str) -> None:
         quantity = units.parse_quantity(raw)
     except InputError as error:
         raise error.located(key=where)
+    if role.dimension == "angle" and quantity.magnitude != 0 and not units.is_angular(quantity.units):
+        raise InputError(f"'{raw}' needs an angle unit: a bare number would be read as radians, so write "
+                         f"\"{raw} deg\" or \"{raw} rad\"", where)
     if "()" in expected_unit or not expected_unit:
         return  # a source of any dimension: the equation's unit check decides
     if not units.same_dimension(quantity.units, units.parse_unit(expected_unit)):

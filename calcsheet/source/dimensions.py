@@ -125,3 +125,56 @@ def _same(a: pint.Unit, b: pint.Unit) -> bool:
 
 def _is_zero(node: ex.Node) -> bool:
     return isinstance(node, ex.Number) and float(node.text) == 0.0
+
+
+def refuse_absolute_sums(equation: ex.Equation, absolute: dict[str, str], parameters: frozenset[str]) -> None:
+    """Refuse a sum of two absolute temperatures (names stated in degC or degF, with their texts).
+
+    In kelvin, 20 degC + 15 degC is 293.15 K + 288.15 K: a temperature of 308 degC, not 35 degC.
+    A difference of two (T - T_amb) is a temperature difference, and a difference plus one
+    (T_amb + (T_1 - T_2)) is a temperature again; a scaled sum such as (T_1 + T_2)/2, a mean, is
+    kept. Terms are counted in the order written, so ``T_a + dT_r - T`` is refused at ``T_a + dT_r``.
+    """
+    for side in (equation.left, equation.right):
+        _AbsoluteSums(absolute, parameters).visit(side, scaled=False)
+
+
+class _AbsoluteSums:
+    def __init__(self, absolute: dict[str, str], parameters: frozenset[str]):
+        self.absolute = absolute
+        self.parameters = parameters
+
+    def visit(self, node: ex.Node, scaled: bool) -> None:
+        if isinstance(node, ex.Binary) and node.op in "+-" and not scaled:
+            self.chain(node)
+        if isinstance(node, ex.Binary) and node.op in "*/":
+            numeric_left, numeric_right = constant_value(node.left) is not None, constant_value(node.right) is not None
+            self.visit(node.left, scaled=numeric_right)
+            self.visit(node.right, scaled=numeric_left and node.op == "*")
+            return
+        for child in ex.children(node):
+            self.visit(child, scaled=False)
+
+    def chain(self, node: ex.Node) -> None:
+        net, seen = 0, []
+        for sign, term in ex.additive_terms(node):
+            if isinstance(term, ex.Unary) and isinstance(term.operand, ex.Name):
+                sign, term = (-sign if term.op == "-" else sign), term.operand
+            if isinstance(term, ex.Name) and term.name in self.absolute:
+                net += sign
+                seen.append(term.name)
+                if abs(net) >= 2:
+                    self.refuse(node, seen)
+
+    def refuse(self, node: ex.Node, names: list[str]) -> None:
+        first, second = names[-2], names[-1]
+        if second not in self.parameters:
+            first, second = second, first  # name the parameter to rewrite, not the unknown
+        number, _, unit = self.absolute[second].partition(" ")
+        hint = (f"\"{number} K\" or \"{number} delta_{unit.strip()}\"" if second in self.parameters and unit.strip()
+                else "K or delta_degC")
+        raise InputError(
+            f"'{ex.render(node)}' adds two absolute temperatures ({first} = {self.absolute[first]}, "
+            f"{second} = {self.absolute[second]}), and the sum of two temperatures on a scale with an offset "
+            f"is no temperature; if {second} is a rise or a difference, write it as one: {hint}",
+            key=f"parameters.{second}" if second in self.parameters else "model.equation")

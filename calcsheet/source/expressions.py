@@ -29,6 +29,11 @@ FUNCTIONS = (
 CONSTANTS = ("pi",)
 NAME_PATTERN = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")
 MAX_LENGTH = 2000
+# Nesting bounds keep recursion far below Python's limit, in this parser and in every walk of the
+# tree after it: parentheses, calls, signs and exponents inside each other, and the depth of the
+# finished tree (a sum of n terms is n levels deep).
+MAX_NESTING = 50
+MAX_TREE_DEPTH = 200
 
 _NUMBER = re.compile(r"(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?")
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
@@ -145,6 +150,18 @@ class _Parser:
         self.text = text
         self.tokens = tokenize(text, names)
         self.index = 0
+        self.nesting = 0
+
+    def nested(self, rule):
+        """Run a grammar rule one level deeper, refusing input nested beyond MAX_NESTING."""
+        self.nesting += 1
+        try:
+            if self.nesting > MAX_NESTING:
+                raise InputError(f"the expression nests more than {MAX_NESTING} levels deep (parentheses, "
+                                 f"functions, signs or powers inside each other) in '{_shortened(self.text)}'")
+            return rule()
+        finally:
+            self.nesting -= 1
 
     @property
     def current(self) -> Token:
@@ -183,13 +200,13 @@ class _Parser:
 
     def signed(self) -> Node:
         if op := self.accept("+", "-"):
-            return Unary(op, self.signed())
+            return Unary(op, self.nested(self.signed))
         return self.power()
 
     def power(self) -> Node:
         base = self.atom()
         if self.accept("^", "**"):
-            return Binary("^", base, self.signed())
+            return Binary("^", base, self.nested(self.signed))
         return base
 
     def atom(self) -> Node:
@@ -203,7 +220,7 @@ class _Parser:
         if token.kind == "name":
             return self.name_or_call()
         if self.accept("("):
-            node = self.expression()
+            node = self.nested(self.expression)
             self.expect(")")
             return node
         raise self.error("expected a number, a name or '('")
@@ -214,7 +231,7 @@ class _Parser:
         if self.accept("("):
             if name not in FUNCTIONS:
                 raise InputError(f"'{name}' is not a known function (known: {', '.join(FUNCTIONS)})")
-            argument = self.expression()
+            argument = self.nested(self.expression)
             self.expect(")")
             return Call(_canonical_function(name), argument)
         if name in FUNCTIONS:
@@ -236,6 +253,7 @@ def parse_expression(text: str) -> Node:
     node = parser.expression()
     if parser.current.kind != "end":
         raise parser.error("expected an operator or the end")
+    _refuse_deep_tree(node, text)
     return node
 
 
@@ -250,7 +268,25 @@ def parse_equation(text: str, names: frozenset[str] = frozenset()) -> Equation:
     right = parser.expression()
     if parser.current.kind != "end":
         raise parser.error("expected an operator or the end")
+    _refuse_deep_tree(left, text)
+    _refuse_deep_tree(right, text)
     return Equation(left, right)
+
+
+def _refuse_deep_tree(node: Node, text: str) -> None:
+    """Measure the tree without recursion; refuse one deeper than MAX_TREE_DEPTH."""
+    stack = [(node, 1)]
+    while stack:
+        current, depth = stack.pop()
+        if depth > MAX_TREE_DEPTH:
+            raise InputError(f"the expression is more than {MAX_TREE_DEPTH} operations deep (a sum of more "
+                             f"than {MAX_TREE_DEPTH} terms, say) in '{_shortened(text)}'; write it more simply")
+        stack.extend((child, depth + 1) for child in children(current))
+
+
+def _shortened(text: str, limit: int = 60) -> str:
+    text = " ".join(text.split())
+    return text if len(text) <= limit else text[:limit - 3] + "..."
 
 
 # -------------------------------------------------------------------------------- walking

@@ -16,7 +16,7 @@ from typing import Any
 
 import sympy as sp
 
-from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part
+from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part, shortened
 from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetInfo, Switch
 from calcsheet.source import expressions as ex
 from calcsheet.kinds.expand import expand_kind, kind_checks
@@ -433,7 +433,7 @@ class _Builder:
         quantity = _wrap_key(lambda: units.parse_quantity(raw), where)
         if not units.same_dimension(quantity.units, like.unit):
             raise InputError(
-                f"'{raw}' has dimension {units.dimension_text(quantity.units)}, but {like.name} is in "
+                f"'{shortened(raw)}' has dimension {units.dimension_text(quantity.units)}, but {like.name} is in "
                 f"{like.unit_text or 'no unit'} ({units.dimension_text(like.unit)})", where)
         text = raw if isinstance(raw, str) else f"{raw:g}"
         si_value = units.to_si(quantity)
@@ -485,10 +485,10 @@ class _Builder:
     def criterion(self, text: str, check: str, unknown: Declared, variable: Declared, where: str) -> Criterion:
         match = _CHECK.fullmatch(check.strip())
         if not match:
-            raise InputError(f"'{check}' must read like \"{unknown.name}(60 s) <= 50 V\" or "
+            raise InputError(f"'{shortened(check)}' must read like \"{unknown.name}(60 s) <= 50 V\" or "
                              "\"reach(50 V) <= 60 s\"", where)
         if _SECOND_COMPARISON.search(match.group("limit")):
-            raise InputError(f"'{check}' holds more than one comparison; a check is one comparison, so write "
+            raise InputError(f"'{shortened(check)}' holds more than one comparison; a check is one comparison, so write "
                              "each as its own [[criteria]] table (e.g. one \"v(1 min) >= 5 V\", another "
                              "\"v(2 min) <= 10 V\")", where)
         subject, argument = match.group("subject"), match.group("argument")

@@ -99,7 +99,7 @@ def test_steady_state_amplitude_is_seen_in_the_solution(tmp_path):
     ('form = "wobble"', "forcing.form", "unknown form 'wobble'"),
     ('form = "step"\nafter = "3 A"\nat = "1 s"', "forcing.after", "dimension of V"),
     ('form = "pulse"\nheight = "3 V"\nstart = "1 s"\nwidth = "2 s"\nlength = "1 s"', "forcing.length", "unknown key"),
-    ('form = "expression"\nexpression = "__import__(\'os\')"', "model.equation", "unexpected character"),
+    ('form = "expression"\nexpression = "__import__(\'os\')"', "forcing.expression", "unexpected character"),
 ])
 def test_forcing_errors_name_the_key(tmp_path, forcing, key, fragment):
     path = write(tmp_path, RC.format(C="100 uF", at='"1 s"', forcing=forcing))

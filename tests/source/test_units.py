@@ -102,9 +102,9 @@ def test_percent_is_a_hundredth():
 @pytest.mark.parametrize("value, fragment", [
     (True, "true/false"),
     (False, "true/false"),
-    (None, "got NoneType"),
-    ([1], "got list"),
-    ({"value": 1}, "got dict"),
+    (None, "but found a value of another kind"),
+    ([1], "but found a list"),
+    ({"value": 1}, "but found a table"),
     ("V", "is not a number followed by a unit"),
     ("", "is not a number followed by a unit"),
     ("nan V", "is not a number followed by a unit"),
