@@ -17,6 +17,16 @@ EXIT_INTERNAL = 3
 @click.version_option(package_name="calcsheet")
 def main() -> None:
     """calcsheet: derive, verify and document first-order linear models as calculation sheets."""
+    _neutralise_bad_source_date_epoch()
+
+
+def _neutralise_bad_source_date_epoch() -> None:
+    """A SOURCE_DATE_EPOCH that is not whole seconds up to year 9999 is ignored: drop it before any library
+    (scipy's import among them) reads it with a bare int()."""
+    from calcsheet.writers.build_date import source_date_epoch
+
+    if "SOURCE_DATE_EPOCH" in os.environ and source_date_epoch() is None:
+        del os.environ["SOURCE_DATE_EPOCH"]
 
 
 @main.command()
@@ -36,11 +46,11 @@ def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str
     def one(built) -> int:
         house = style_dir or (Path(built.sheet.style) if built.sheet.style else None)
         rendered = render(built.sheet, chosen, house)
-        written = write_outputs(Path(out_dir), built.path.stem, rendered)
+        written = write_outputs(Path(out_dir), built.path.stem, rendered)  # an OSError is the user's: see _run_each
         click.echo(f"{built.path}: {_summary(built.derivation)} -> {', '.join(str(w) for w in written)}")
         return EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED
 
-    sys.exit(_run_each(inputs, one))
+    sys.exit(_run_each(inputs, one, writes=True))
 
 
 @main.command()
@@ -79,18 +89,18 @@ def new(name: str, file: str | None) -> None:
     if target.exists():
         _guard(lambda: (_ for _ in ()).throw(InputError("already exists; choose another name or remove it",
                                                         file=str(target))))
-    write_file(target, text)
+    _guard(lambda: _os_guarded(lambda: write_file(target, text), str(target)))
     click.echo(f"wrote {target}: build it with `calcsheet build {target}`")
 
 
-def _run_each(inputs: tuple[str, ...], action) -> int:
+def _run_each(inputs: tuple[str, ...], action, writes: bool = False) -> int:
     from calcsheet.pipeline import build_sheet, collect_inputs
 
-    paths = _guard(lambda: collect_inputs(inputs))
+    paths = _guard(lambda: collect_inputs(inputs, writes))
     worst = EXIT_OK
     for path in paths:
         try:
-            worst = max(worst, action(build_sheet(path)))
+            worst = max(worst, _os_guarded(lambda: action(build_sheet(path)), str(path)))
         except CalcsheetError as error:
             click.echo(str(error.located(file=str(path))), err=True)
             worst = max(worst, error.exit_code)
@@ -122,9 +132,24 @@ def _style(style: str | None) -> Path | None:
     return path
 
 
+def _os_guarded(thunk, file: str):
+    """An unwritable folder, a full disk or a file where a folder should be is the user's to fix: one line, exit 2."""
+    from calcsheet.errors import InputError
+
+    try:
+        return thunk()
+    except OSError as error:
+        where = error.filename or file
+        raise InputError(f"cannot write or read here: {error.strerror or error}", file=str(where)) from None
+
+
 def _guard(thunk):
     try:
         return thunk()
     except CalcsheetError as error:
         click.echo(str(error), err=True)
         sys.exit(EXIT_INPUT_ERROR)
+
+
+if __name__ == "__main__":
+    main()

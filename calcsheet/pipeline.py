@@ -63,8 +63,9 @@ def write_file(target: Path, data: str | bytes) -> Path:
     return target
 
 
-def collect_inputs(items: tuple[str, ...]) -> list[Path]:
-    """Files as given; folders contribute their *.toml files in name order."""
+def collect_inputs(items: tuple[str, ...], writes: bool = False) -> list[Path]:
+    """Files as given; folders contribute their *.toml files in name order. Where outputs are written,
+    two inputs of one stem are refused."""
     paths: list[Path] = []
     for item in items:
         path = Path(item)
@@ -77,7 +78,19 @@ def collect_inputs(items: tuple[str, ...]) -> list[Path]:
             paths.append(path)
         else:
             raise InputError("no such file or folder", file=item)
+    if writes:
+        _refuse_same_stems(paths)
     return paths
+
+
+def _refuse_same_stems(paths: list[Path]) -> None:
+    """Outputs are named after the input's stem: two inputs of one stem would overwrite each other."""
+    seen: dict[str, Path] = {}
+    for path in paths:
+        other = seen.setdefault(path.stem, path)
+        if other != path and other.resolve() != path.resolve():
+            raise InputError(f"has the same name as {other}; their outputs ({path.stem}.*) would overwrite "
+                             "each other: build them into different --out folders", file=str(path))
 
 
 def parse_formats(text: str, known: tuple[str, ...]) -> tuple[str, ...]:

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 import sympy as sp
 
-from calcsheet.derive.budget import INTEGRATE_SECONDS, within
+from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, within
 from calcsheet.derive.classify import Classification
 from calcsheet.derive.readable import choose_branches, compact, exp_of_logs_to_powers
 from calcsheet.errors import ModelRefused
@@ -38,6 +38,7 @@ class Solution:
     forced_closed: sp.Expr  # the part of the forced response that has a closed form
     branches: tuple[str, ...]  # sympy case splits decided by the stated values
     fallback_reason: str = ""
+    fallback_codes: tuple[str, ...] = ()  # why terms stayed integrals: budget.NO_CLOSED_FORM or BUDGET_EXCEEDED
     special_case: tuple[tuple[str, str], ...] = ()  # (symbol, value) the stated values force, e.g. q_in = q_out
     p: sp.Expr = None  # p and r as solved (the classification's, unless a special case applies)
     r: sp.Expr = None
@@ -65,7 +66,7 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         p, r = p.subs(special), r.subs(special)
         P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS)
     if not closed:
-        raise ModelRefused(f"the integrating factor needs the integral of p = {p}, and {why}; "
+        raise ModelRefused(f"the integrating factor needs the integral of p = {p}, and {_REASONS[why]}; "
                            "this tool does not handle that case yet", "model.equation")
     mu = exp_of_logs_to_powers(sp.exp(P))
     taken = {p.name for p in model.parameters}
@@ -91,9 +92,16 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         x0=x0, y0=y0, dummy=s, P=P, mu=mu, mu_r=sp.powsimp(mu * r), antiderivative=antiderivative,
         open_terms=tuple(open_terms), constant=K, general=(antiderivative + K) / mu,
         constant_value=k_value, particular=natural + forced, natural=natural, forced=forced,
-        forced_closed=forced_closed, branches=tuple(notes), fallback_reason="; ".join(sorted(set(reasons))),
+        forced_closed=forced_closed, branches=tuple(notes), fallback_reason="; ".join(_REASONS[code] for code in sorted(set(reasons))),
+        fallback_codes=tuple(sorted(set(reasons))),
         special_case=tuple((plain(k), plain(v)) for k, v in special.items()), p=p, r=r,
     )
+
+
+_REASONS = {
+    NO_CLOSED_FORM: "sympy found no closed form for this integral",
+    BUDGET_EXCEEDED: f"symbolic integration did not finish within its budget of {INTEGRATE_SECONDS:g} s",
+}
 
 
 def _special_case(P: sp.Expr, values) -> dict:
@@ -128,7 +136,7 @@ def _free_name(name: str, taken: set[str]) -> str:
 
 
 def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.Expr, bool, str]:
-    """∫ expr dx under the time budget: (result, closed, why not closed).
+    """∫ expr dx under the time budget: (result, closed, the code of why not closed).
 
     The quick rule-based integrator goes first; the full algorithm only when it fails.
     """
@@ -140,8 +148,8 @@ def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.
 
     result, done = within(seconds, attempt, None)
     if not done:
-        return sp.Integral(expr, x), False, f"symbolic integration did not finish within its budget of {seconds:g} s"
+        return sp.Integral(expr, x), False, BUDGET_EXCEEDED
     result, _ = choose_branches(result, values)
     if result.has(sp.Integral) or result.has(sp.Piecewise):
-        return sp.Integral(expr, x), False, "sympy found no closed form for this integral"
+        return sp.Integral(expr, x), False, NO_CLOSED_FORM
     return result, True, ""

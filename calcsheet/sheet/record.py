@@ -38,6 +38,7 @@ def build_record(d, n) -> dict:
         },
         "solution": {
             "closed_form": s.closed_form,
+            "fallback": list(s.fallback_codes),
             "integrating_factor": {"latex": n.tex(s.mu), "text": plain(s.mu)},
             "general": {"latex": n.tex(s.general), "text": plain(s.general)},
             "particular": {"latex": n.tex(s.particular), "text": plain(s.particular)},
