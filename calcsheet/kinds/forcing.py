@@ -100,6 +100,12 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
                    frequency=f"{source}_freq" if name == "sine" else "")
 
 
+def role_keys(table, source: str) -> dict[str, str]:
+    """Each parameter a form generates, with the [forcing] key it comes from: V_s_tau -> forcing.time_constant."""
+    form = FORMS.get(table.get("form", "").strip()) if isinstance(table, dict) and isinstance(table.get("form"), str) else None
+    return {f"{source}_{r.suffix}": f"forcing.{r.key}" for r in form.roles} if form and source else {}
+
+
 def _expression(table: dict, source: str) -> Forcing:
     for key in table:
         if key not in ("form", "expression"):

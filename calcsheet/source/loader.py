@@ -185,6 +185,8 @@ class _Builder:
         kind = None
         if kind_use is not None and parameters is not None:
             kind = errors.attempt(lambda: kind_checks(kind_use, parameters))
+        if kind_use is not None:
+            _forcing_keys(errors, self.raw.get("forcing"), kind_use.name)
         errors.raise_any()
         if symbolic is None:  # every part above reports its own error; this is a guard only
             raise InputError("the model could not be read", "model")
@@ -594,6 +596,18 @@ def _carried_states(previous: Model, at: Point) -> dict[str, tuple[str, str]]:
         carried[name] = ({"value": f"{value!r} {unit}", "source": f"reached at the switch at {at.text}, carried over"},
                          f"{value:.6g} {unit}")
     return carried
+
+
+def _forcing_keys(errors: _Errors, forcing_table, kind_name: str) -> None:
+    """A value a [forcing] form generates is keyed where the user wrote it: forcing.time_constant."""
+    from calcsheet.kinds import kind_named
+    from calcsheet.kinds.forcing import role_keys
+
+    keys = role_keys(forcing_table, kind_named(kind_name).source)
+    for error in errors.items:
+        name = error.key.removeprefix("parameters.")
+        if error.key.startswith("parameters.") and name in keys:
+            error.key = keys[name]
 
 
 def _wrap_key(thunk, key: str):

@@ -489,7 +489,6 @@ def test_long_style_names_get_one_line(tmp_path, length, fragment):
     refused(tmp_path, free(sheet=f'style = "{"s" * length}"'), "sheet.style", fragment)
 
 
-def test_style_name_with_an_overlong_component_gets_one_line(tmp_path):
-    # each component within the length bound, but the path as a whole too long for the system
-    name = "/".join(["d" * 60] * 3)
-    refused(tmp_path, free(sheet=f'style = "{name}"'), "sheet.style", "no style folder")
+def test_zero_forcing_time_constant_is_keyed_where_it_was_written(tmp_path):
+    text = kind(extra='[forcing]\nform = "exponential"\ninitial = "10 V"\ntime_constant = "0 s"\n')
+    refused(tmp_path, text, "forcing.time_constant", "V_s_tau = 0 makes the equation singular", "'V_s_tau' is zero")
