@@ -44,23 +44,60 @@ def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[s
 
 
 def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str | bytes]) -> list[Path]:
-    """Write each output as ``out_dir/<stem>.<format>``, each one atomically."""
-    return [write_file(out_dir / f"{stem}.{fmt}", data) for fmt, data in rendered.items()]
+    """Write a sheet's outputs as ``out_dir/<stem>.<format>``: every format goes to a temporary file first,
+    and only when all are complete are they renamed into place, one right after another. A failed run
+    leaves the previous outputs as they were; no file under a final name is ever partly written."""
+    out_dir.mkdir(parents=True, exist_ok=True)
+    remove_stale_parts(out_dir)
+    staged = []
+    try:
+        for fmt, data in rendered.items():
+            staged.append((_staged(out_dir / f"{stem}.{fmt}", data), out_dir / f"{stem}.{fmt}"))
+    except BaseException:
+        for temporary, _ in staged:
+            temporary.unlink(missing_ok=True)
+        raise
+    for temporary, target in staged:
+        os.replace(temporary, target)
+    return [target for _, target in staged]
 
 
 def write_file(target: Path, data: str | bytes) -> Path:
     """Write to a temporary file beside ``target`` and rename it into place: never half a file."""
     target.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.", suffix=".part")
+    os.replace(_staged(target, data), target)
+    return target
+
+
+def _staged(target: Path, data: str | bytes) -> Path:
+    """``data`` written in full to a hidden temporary beside ``target``, named with this process's id."""
+    handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.{os.getpid()}.", suffix=".part")
     try:
         with os.fdopen(handle, "wb") as stream:
             stream.write(data if isinstance(data, bytes) else data.encode("utf-8"))
         os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes 0600; outputs are ordinary files
-        os.replace(temporary, target)
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise
-    return target
+    return Path(temporary)
+
+
+def remove_stale_parts(folder: Path) -> None:
+    """Temporaries left by a build that was killed: those whose process no longer runs."""
+    for part in folder.glob(".*.part"):
+        pid = part.name.rsplit(".", 3)[-3] if part.name.count(".") >= 4 else ""
+        if pid.isdigit() and not _running(int(pid)):
+            part.unlink(missing_ok=True)
+
+
+def _running(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True
 
 
 def collect_inputs(items: tuple[str, ...], writes: bool = False) -> list[Path]:
