@@ -26,6 +26,9 @@ SCALE = 1.0  # multiplies every budget; only the margin test changes it
 # Why a symbolic step fell back, as a code a record or a test can compare (the sheet words it).
 NO_CLOSED_FORM = "no_closed_form"
 BUDGET_EXCEEDED = "budget_exceeded"
+# The antiderivative found has no finite value at the initial point (two logarithmic singularities
+# that cancel only in the limit, say), so K = y0 mu(x0) - F(x0) cannot be taken by substitution.
+NOT_FINITE_AT_START = "antiderivative_not_finite_at_start"
 
 
 class OutOfTime(BaseException):

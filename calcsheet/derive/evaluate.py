@@ -23,6 +23,7 @@ from calcsheet.errors import ModelRefused
 from calcsheet.model import Model
 
 QUAD_RTOL = 1e-12
+FLOAT_RANGE = 1.7e308  # just inside the largest double (about 1.797e308)
 QUAD_SUBINTERVALS = 400  # QUADPACK's bound on its work: at most this many subdivisions per integral
 QUAD_METHOD = ("adaptive Gauss–Kronrod quadrature (QUADPACK QAGS via scipy.integrate.quad), "
                f"relative tolerance {QUAD_RTOL:.0e}, at most {QUAD_SUBINTERVALS} subintervals")
@@ -94,6 +95,16 @@ class ResponseEvaluator:
             return self.closed_limit.limit(x)
         except NotFinite:
             return math.nan
+
+    def overflows_at(self, x: float) -> bool:
+        """Is the closed-form part at x beyond the floating-point range (mpmath's exponent is unbounded,
+        so a growing response there is a huge number, not a missing one)?"""
+        with mpmath.workdps(30):
+            try:
+                value = self.closed(mpmath.mpf(x))
+                return bool(mpmath.isinf(value) or abs(value) > FLOAT_RANGE)
+            except (ArithmeticError, ValueError, TypeError):
+                return False
 
     def _quadrature(self, P, r, a: float, b: float) -> float:
         """The integral from a to b of exp(P(s) - P(b)) r(s) ds, its error estimate logged.

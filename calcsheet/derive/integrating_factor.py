@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 import sympy as sp
 
-from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, within
+from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, NOT_FINITE_AT_START, within
 from calcsheet.derive.classify import Classification
 from calcsheet.derive.readable import choose_branches, compact, exp_of_logs_to_powers
 from calcsheet.errors import ModelRefused
@@ -72,14 +72,22 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
     taken = {p.name for p in model.parameters}
     K = sp.Symbol(next(n for n in ("K", "K_c", "C_K", "K_int") if n not in taken))
     s = sp.Dummy(f"{model.variable.name}'")  # a Dummy can never clash with a parameter name
-    closed_parts, open_terms, reasons, notes = [], [], [], []
+    closed_parts, open_terms, singular, reasons, notes = [], [], [], [], []
+    start = {**values, x0: model.initial_at.si} if isinstance(x0, sp.Symbol) else values
     for term in sp.Add.make_args(r) if not cls.homogeneous else ():
         integral, done, reason = _integrate(sp.powsimp(mu * term), x, values, forcing_seconds)
+        if done and not _finite_at(integral, x, x0, start):
+            done, reason = False, NOT_FINITE_AT_START
         if done:
             closed_parts.append(integral)
+        elif reason == NOT_FINITE_AT_START:
+            singular.append(term)
         else:
             open_terms.append(term)
             reasons.append(reason)
+    if singular:  # kept as one integral: apart, terms such as 1/t and -exp(-t/T)/t diverge at t = 0
+        open_terms.append(sp.factor_terms(sp.together(sp.Add(*singular))))
+        reasons.append(NOT_FINITE_AT_START)
     F, branch_notes = choose_branches(compact(sp.Add(*closed_parts)), values)
     notes.extend(branch_notes)
     k_value = compact(y0 * mu.subs(x, x0) - F.subs(x, x0))
@@ -101,7 +109,23 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
 _REASONS = {
     NO_CLOSED_FORM: "sympy found no closed form for this integral",
     BUDGET_EXCEEDED: f"symbolic integration did not finish within its budget of {INTEGRATE_SECONDS:g} s",
+    NOT_FINITE_AT_START: "the antiderivative found has no finite value at the initial point, so the constant "
+                         "of integration cannot be taken from it there",
 }
+
+
+def _finite_at(antiderivative: sp.Expr, x: sp.Symbol, x0: sp.Expr, values) -> bool:
+    """Has F a finite real value at the initial point, with the stated values? (Ei(a t) - Ei(b t) at
+    t = 0 has not: each term is infinite, and only their limit is finite.)"""
+    try:
+        value = complex(sp.N(antiderivative.subs(values).subs(x, x0.subs(values)), 15))
+    except (TypeError, ValueError, ArithmeticError):
+        return False
+    return all(map(_is_finite, (value.real, value.imag))) and abs(value.imag) <= 1e-12 * max(1.0, abs(value.real))
+
+
+def _is_finite(number: float) -> bool:
+    return number == number and abs(number) != float("inf")
 
 
 def _special_case(P: sp.Expr, values) -> dict:

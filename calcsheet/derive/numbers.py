@@ -35,8 +35,9 @@ class ValueAt:
 
 
 # Why a level is not reached (Reach.code); the sheet words each one.
-REACHED, MODEL_STOPS, SOLUTION_ENDS, APPROACHES_FINAL, SETTLES_SHORT, MOVES_AWAY, NOT_IN_RANGE = (
-    "reached", "model_stops", "solution_ends", "approaches_final", "settles_short", "starts_on_level", "not_in_range")
+REACHED, MODEL_STOPS, SOLUTION_ENDS, APPROACHES_FINAL, SETTLES_SHORT, MOVES_AWAY, NOT_IN_RANGE, OVERFLOWS = (
+    "reached", "model_stops", "solution_ends", "approaches_final", "settles_short", "starts_on_level", "not_in_range",
+    "overflows")
 
 
 @dataclass(frozen=True)
@@ -121,6 +122,11 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     if limit is not None:  # levels are searched only where the model holds
         grid = grid[grid <= limit[0]]
     samples, domain_end = _sample(y, grid)
+    overflow = domain_end is not None and (singular is None or domain_end < singular) and _overflows(y, samples,
+                                                                                                     domain_end)
+    if overflow:
+        domain_end = _overflow_point(y, float(grid[len(samples) - 1]) if len(samples) else x0, domain_end)
+        _refuse_overflow_before(farthest, domain_end, model)
     if singular is not None and (domain_end is None or singular < domain_end):
         domain_end = singular
     final, final_note = _final_value(model, cls, solution, values, p_value)
@@ -135,14 +141,51 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     not_valid = tuple(model.kind.not_valid) if model.kind is not None else ()
     points = tuple(ValueAt(pt, y(pt.si), applies=limit is None or pt.si <= limit[0]) for pt in model.evaluate_at)
     searched = grid[: len(samples)]
-    reaches = tuple(reach_for(level, y, searched, samples, final, model, stop=_stop(limit, domain_end, searched_to))
-                    for level in model.reach)
+    stop = (OVERFLOWS, domain_end) if overflow else _stop(limit, domain_end, searched_to)
+    reaches = tuple(reach_for(level, y, searched, samples, final, model, stop=stop) for level in model.reach)
     verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, model, valid_until=limit, not_valid=not_valid)
                      for c in model.criteria)
     return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
                    final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
                    domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
                    sine=_steady_sine(model, tau), valid_until=limit, not_valid=not_valid)
+
+
+OVERFLOW_SIZE = 1e200  # a response this large (SI) just before it stops being finite has overflowed
+
+
+def _overflows(y: ResponseEvaluator, samples: np.ndarray, at: float) -> bool:
+    """Did the response stop being finite because it grew past the floating-point range (rather than
+    at a point where the solution itself ends, such as a log of zero)? Either it was already huge, or
+    the precise evaluation there gives an infinity rather than no number at all."""
+    if len(samples) and float(np.max(np.abs(samples))) > OVERFLOW_SIZE:
+        return True
+    return y.overflows_at(at)
+
+
+def _overflow_point(y: ResponseEvaluator, finite: float, beyond: float) -> float:
+    """Where the response passes the floating-point range, between a point where it is finite and one
+    beyond; bisection to a relative width of 1e-6, a bounded number of halvings."""
+    for _ in range(60):
+        if beyond - finite <= 1e-6 * abs(beyond):
+            break
+        middle = 0.5 * (finite + beyond)
+        finite, beyond = (finite, middle) if y.overflows_at(middle) else (middle, beyond)
+    return beyond
+
+
+def _refuse_overflow_before(farthest: float, at: float, model: Model) -> None:
+    """A response that grows past the floating-point range before a point the input asks about has no
+    number to give there: refused, naming where, rather than shown as a value that is not finite."""
+    if farthest < at:
+        return
+    from calcsheet.sheet.quantities import in_units
+
+    raise ModelRefused(f"the response grows without bound and passes the floating-point range (about 1e308) near "
+                       f"{model.variable.name} = {in_units(at, model.variable)}, before "
+                       f"{model.variable.name} = {in_units(farthest, model.variable)}, the farthest point asked "
+                       "about; check the signs of the parameters (a negative loss coefficient makes the response "
+                       "grow) or ask about earlier points", "evaluate")
 
 
 def _stop(limit, domain_end, searched_to: float) -> tuple[str, float] | None:
@@ -338,7 +381,9 @@ def first_crossing(level: float, y, grid, samples) -> float | None:
     if len(samples) < 2:
         return None
     gap = samples - level
-    size = max(float(np.max(np.abs(samples))), abs(level), 1e-300)
+    # the response's size so far (as in the integration check): a response growing through many orders of
+    # magnitude is not measured against the size it reaches only later
+    size = np.maximum(np.maximum.accumulate(np.abs(samples)), max(abs(level), 1e-300))
     side = np.where(gap > AT_LEVEL * size, 1, np.where(gap < -AT_LEVEL * size, -1, 0))
     clear = np.nonzero(side)[0]
     if len(clear) == 0:

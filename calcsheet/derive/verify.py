@@ -210,6 +210,8 @@ def integrate_pieces(model: Model, slope, x0: float, y0: float, targets: list[fl
             except _TooMuchWork:
                 raise IntegrationFailed(f"not completed: the integration needed more than {MAX_SLOPE_CALLS:.0e} "
                                         "evaluations of the slope") from None
+            except (ValueError, ArithmeticError):  # an implicit method met a slope that is not finite
+                raise IntegrationFailed("the integrator met a slope that is not finite") from None
         if not result.success:
             raise IntegrationFailed(f"the integrator stopped: {result.message}")
         if not np.all(np.isfinite(result.y[0])):

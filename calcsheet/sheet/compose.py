@@ -5,8 +5,8 @@ from __future__ import annotations
 import sympy as sp
 
 from calcsheet.derive.derivation import Derivation
-from calcsheet.derive.numbers import APPROACHES_FINAL, MODEL_STOPS, MOVES_AWAY, SETTLES_SHORT, SOLUTION_ENDS, \
-    SEARCH_SCALES
+from calcsheet.derive.numbers import APPROACHES_FINAL, MODEL_STOPS, MOVES_AWAY, OVERFLOWS, SETTLES_SHORT, \
+    SOLUTION_ENDS, SEARCH_SCALES
 from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
@@ -344,6 +344,9 @@ def _reach_remark(r, m) -> str:
         return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the model stops "
                 f"holding ({(m.kind.limit[1] if m.kind and m.kind.limit else 'validity limit')}); the model says "
                 "nothing after that")
+    if code == OVERFLOWS:
+        return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the response grows "
+                "past the floating-point range")
     if code == SOLUTION_ENDS:
         return f"not reached before the solution stops existing near {m.variable.name} = {in_units(r.stop, m.variable)}"
     if code == APPROACHES_FINAL:

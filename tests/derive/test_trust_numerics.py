@@ -130,6 +130,53 @@ def test_removable_singularity_in_a_closed_form_constant(tmp_path):
         assert value.y == pytest.approx(float(expected), rel=1e-9)
 
 
+@pytest.mark.parametrize("tau", [2.0, 10.0])  # the forcing's own time constant T = 3 s below and above tau
+def test_an_antiderivative_with_no_value_at_the_initial_point_gives_no_nan_on_the_sheet(tmp_path, tau):
+    # The antiderivative sympy finds, T (Ei(t/tau) - Ei(t (1/tau - 1/T)))/tau, is infinite at t = 0 term by
+    # term; the constant of integration must not be taken from it there (the sheet once printed K = nan).
+    # Oracle: mpmath quad of the convolution integral, as in the test above.
+    T = 3.0
+    path = write(tmp_path, free("tau*dy/dt + y = T*(1 - exp(-t/T))/t", f'tau = "{tau} s"\nT = "{T} s"', "0.5",
+                                '"1 s", "20 s"'))
+    built = build_sheet(path)
+    text = render(built.sheet, ("txt",))["txt"]
+    assert "nan" not in text.lower().replace("nanosecond", "")
+    assert built.derivation.verification.passed and built.derivation.solution.open_terms
+    assert built.derivation.solution.fallback_codes == ("antiderivative_not_finite_at_start",)
+    for value in built.derivation.numbers.values:
+        t = value.at.si
+        forced = mpmath.quad(lambda s: mpmath.exp(-(t - s) / tau) * (-T * mpmath.expm1(-s / T) / s) / tau, [0, t])
+        assert value.y == pytest.approx(0.5 * math.exp(-t / tau) + float(forced), rel=1e-9)
+
+
+# ------------------------------------------------------------ class: a response past the floating-point range
+@pytest.mark.parametrize("kind_input", [
+    free("dy/dt = k*y", 'k = "1e3 1/s"', "1", '"1 s", "10 s"'),
+    # a lumped body with a negative film coefficient heats without bound (found by the check campaign)
+    None,
+])
+def test_a_response_that_overflows_before_a_point_asked_about_is_refused(tmp_path, kind_input):
+    from calcsheet.kinds.catalogue import starter_text
+
+    text = kind_input or starter_text("lumped_body").replace('value = "25 W/(m^2*K)"', 'value = "-1.5e10 W/(m^2*K)"')
+    assert "-1.5e10" in text or kind_input
+    result = subprocess.run([COMMAND, "check", str(write(tmp_path, text))], capture_output=True, text=True)
+    assert result.returncode == 2, result.stderr
+    assert "floating-point range" in result.stderr and "internal error" not in result.stderr
+    assert len(result.stderr.strip().splitlines()) == 1
+
+
+def test_an_overflow_past_every_point_asked_about_only_ends_the_level_search(tmp_path):
+    # y = exp(1000 t) passes 1.7e308 near t = ln(1.7e308)/1000 = 0.7097 s (arithmetic of the input); the
+    # value at 0.5 s is exp(500); 1e29 is reached at ln(1e29)/1000; -5 is never reached, and the search
+    # says it stopped where the response left the floating-point range.
+    d = derived(tmp_path, free("dy/dt = k*y", 'k = "1e3 1/s"', "1", '"0.5 s"', extra='reach = ["1e29", "-5"]'))
+    assert d.numbers.values[0].y == pytest.approx(math.exp(500), rel=1e-12)
+    assert d.numbers.reach[0].x == pytest.approx(math.log(1e29) / 1000, rel=1e-9)
+    assert d.numbers.reach[1].x is None and d.numbers.reach[1].code == "overflows"
+    assert d.numbers.reach[1].stop == pytest.approx(math.log(1.7e308) / 1000, rel=1e-5)
+
+
 def test_forcing_with_no_finite_limit_at_the_initial_point_is_refused(tmp_path):
     with pytest.raises(ModelRefused) as caught:
         derived(tmp_path, free("tau*dy/dt + y = T/t", 'tau = "2 s"\nT = "1 s"', "0"))
