@@ -114,10 +114,19 @@ def _run_each(inputs: tuple[str, ...], action, writes: bool = False) -> int:
 
 
 def _summary(derivation) -> str:
+    """One line: the verdict, how many criteria pass, and which fail or are not assessed, by number and text."""
     verdicts = derivation.numbers.verdicts
-    passed = sum(v.passed for v in verdicts)
-    parts = [f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria",
-             "verification passed" if derivation.verification.passed else "verification FAILED"]
+    passed = sum(v.status == "pass" for v in verdicts)
+    parts = [f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria"]
+    failed = [f'#{k} "{v.criterion.text}"' for k, v in enumerate(verdicts, 1) if v.status == "fail"]
+    unassessed = [f'#{k} "{v.criterion.text}"' for k, v in enumerate(verdicts, 1) if v.status == "not assessed"]
+    if failed:
+        parts.append("FAIL: " + ", ".join(failed))
+    if unassessed:
+        why = "the model is not valid for this case" if derivation.numbers.not_valid else \
+            "they need the response past the model's validity limit"
+        parts.append("not assessed (" + why + "): " + ", ".join(unassessed))
+    parts.append("verification passed" if derivation.verification.passed else "verification FAILED")
     return ("PASS" if derivation.passed else "FAIL") + " (" + "; ".join(parts) + ")"
 
 

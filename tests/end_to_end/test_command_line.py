@@ -44,6 +44,27 @@ def test_failing_criterion_exits_1_and_still_writes_the_sheet(tmp_path):
     assert "FAIL" in text  # v(10 s) = 400 e^-1 = 147 V, above 50 V
 
 
+def test_check_names_each_failing_criterion_by_number_and_text(tmp_path):
+    # v(10 s) = 400 exp(-1) = 147 V (the arithmetic of the input): the first passes, the second fails
+    path = write(tmp_path, GOOD + '[[criteria]]\ntext = "slow enough"\ncheck = "v(10 s) >= 100 V"\n'
+                                  '[[criteria]]\ntext = "fast"\ncheck = "v(10 s) <= 50 V"\n')
+    result = run("check", str(path))
+    assert result.exit_code == 1
+    assert '1 of 2 criteria pass; FAIL: #2 "fast";' in result.output
+
+
+def test_check_counts_a_criterion_not_assessed_apart_from_a_failure(tmp_path):
+    # A lumped body with Bi = h Lc / k = 25 * (1e-4/0.016) / 0.2 = 0.78 > 0.1 (common practice, no source:
+    # the lumped model needs Bi <= 0.1), so its criterion is not assessed, and says so.
+    from calcsheet.kinds.catalogue import starter_text
+
+    text = starter_text("lumped_body").replace('value = "45 W/(m*K)"', 'value = "0.2 W/(m*K)"')
+    result = run("check", str(write(tmp_path, text)))
+    assert result.exit_code == 1
+    assert "0 of 2 criteria pass; not assessed (the model is not valid for this case): #1" in result.output
+    assert "FAIL: #" not in result.output
+
+
 @pytest.mark.parametrize("bad, fragment", [
     (GOOD.replace('"10 kohm"', '"10 kohmz"'), "parameters.R"),
     (GOOD.replace("R*C*dv/dt + v = 0", "R*C*dv/dt + v^2/(1 V) = 0"), "model.equation"),
