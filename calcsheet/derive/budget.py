@@ -1,13 +1,15 @@
 """Time budgets for symbolic steps that can run for minutes (sympy's integrate has no timeout).
 
-A SIGALRM timer interrupts the step; the caller then takes its fallback. Off the main thread,
-where signals cannot be used, steps run without a budget.
+A SIGALRM timer interrupts the step; the caller then takes its fallback. Budgets nest (an inner
+step never cancels its caller's budget), and where one cannot be armed (off the main thread) the
+step is refused loudly rather than run without one.
 """
 
 from __future__ import annotations
 
 import signal
 import threading
+import time
 from contextlib import contextmanager
 from typing import Callable, TypeVar
 
@@ -32,31 +34,67 @@ NOT_FINITE_AT_START = "antiderivative_not_finite_at_start"
 
 
 class OutOfTime(BaseException):
-    """Raised inside a step whose budget ran out (BaseException so sympy's own handlers pass it on)."""
+    """Raised inside a step whose budget ran out (BaseException so sympy's own handlers pass it on).
+
+    ``budget`` is the budget that ran out: an outer budget expiring inside an inner step is not
+    taken by the inner step as its own.
+    """
+
+    def __init__(self, budget: object = None):
+        super().__init__()
+        self.budget = budget
+
+
+class BudgetUnavailable(RuntimeError):
+    """A budget cannot be armed here (off the main thread, or no interval timer): a defect of the caller."""
+
+
+_open: list[tuple[object, float]] = []  # (budget, deadline on the monotonic clock), outermost first
 
 
 @contextmanager
 def time_budget(seconds: float):
+    """Interrupt the body after ``seconds`` × SCALE. Budgets nest: the timer is armed for the nearest
+    deadline of all open budgets, and an inner one never cancels or extends an outer one."""
     if threading.current_thread() is not threading.main_thread() or not hasattr(signal, "setitimer"):
-        yield
-        return
-
-    def _expire(signum, frame):
-        raise OutOfTime()
-
-    previous = signal.signal(signal.SIGALRM, _expire)
-    signal.setitimer(signal.ITIMER_REAL, seconds * SCALE)
+        raise BudgetUnavailable("symbolic steps need a time budget, which needs the main thread and SIGALRM")
+    token = object()
+    _open.append((token, time.monotonic() + seconds * SCALE))
+    previous = signal.signal(signal.SIGALRM, _expire) if len(_open) == 1 else None
     try:
-        yield
+        _arm()
+        yield token
     finally:
-        signal.setitimer(signal.ITIMER_REAL, 0)
-        signal.signal(signal.SIGALRM, previous)
+        _open.remove(next(entry for entry in _open if entry[0] is token))
+        if _open:
+            _arm()
+        else:
+            signal.setitimer(signal.ITIMER_REAL, 0)
+            signal.signal(signal.SIGALRM, previous)
+
+
+def _arm() -> None:
+    """Set the timer for the nearest open deadline (at once, if it has passed)."""
+    nearest = min(deadline for _, deadline in _open)
+    signal.setitimer(signal.ITIMER_REAL, max(nearest - time.monotonic(), 1e-6))
+
+
+def _expire(signum, frame):
+    now = time.monotonic()
+    expired = min(_open, key=lambda entry: entry[1])
+    if expired[1] <= now + 1e-3:
+        raise OutOfTime(expired[0])
+    _arm()  # woken early (the timer's resolution): wait for the rest
 
 
 def within(seconds: float, step: Callable[[], T], fallback: T) -> tuple[T, bool]:
-    """Run ``step`` under a budget; return (result, True) or (fallback, False) when time ran out."""
+    """Run ``step`` under a budget; return (result, True) or (fallback, False) when its own time ran out.
+    An outer budget that runs out meanwhile passes through to its own ``within``."""
+    token = None
     try:
-        with time_budget(seconds):
+        with time_budget(seconds) as token:
             return step(), True
-    except OutOfTime:
+    except OutOfTime as expired:
+        if expired.budget is not token:
+            raise
         return fallback, False

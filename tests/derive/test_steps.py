@@ -118,3 +118,43 @@ def test_budget_interrupts_a_long_step():
 
     result, finished = budget.within(0.05, forever, "fallback")
     assert (result, finished) == ("fallback", False)
+
+
+def test_an_inner_budget_does_not_cancel_the_outer_one():
+    # The outer budget (0.2 s) must still interrupt the loop that follows a finished inner step.
+    def inner_then_forever():
+        budget.within(5.0, lambda: None, None)
+        while True:
+            pass
+
+    assert budget.within(0.2, inner_then_forever, "outer fell back") == ("outer fell back", False)
+
+
+def test_an_outer_budget_expiring_inside_an_inner_step_is_the_outer_one_s():
+    # The inner step has a long budget of its own; the outer one runs out first and its within takes it.
+    def forever():
+        while True:
+            pass
+
+    def inner():
+        return budget.within(30.0, forever, "inner fell back")
+
+    assert budget.within(0.1, inner, "outer fell back") == ("outer fell back", False)
+
+
+def test_a_budget_off_the_main_thread_is_refused_loudly():
+    import threading
+
+    caught = []
+    worker = threading.Thread(target=lambda: caught.append(_raises(lambda: budget.within(1.0, lambda: 1, 0))))
+    worker.start()
+    worker.join()
+    assert caught == [budget.BudgetUnavailable]
+
+
+def _raises(thunk):
+    try:
+        thunk()
+    except Exception as error:  # the type is the answer
+        return type(error)
+    return None
