@@ -11,8 +11,8 @@ from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
-from calcsheet.sheet.document import (Equation, ItemList, Math, Note, Outcome, Paragraph, Section, Sheet,
-                                      Table, TitleBlock)
+from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Section,
+                                      Sheet, Table, TitleBlock)
 from calcsheet.sheet.quantities import in_units, number, numeric_expression
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.record import build_record
@@ -55,7 +55,8 @@ def compose(d: Derivation) -> Sheet:
              _integration(d, n), _initial_condition(d, n), _split(d, n), _numbers(d, n), _verification(d)]
     numbered = tuple(Section(s.key, s.title, s.blocks, i + 1) for i, s in enumerate(steps))
     response = Section("response", "Response at a glance", (response_figure(d),))
-    return Sheet(title_block=_title_block(d), outcome=_outcome(d), sections=(response, _basis(d)) + numbered,
+    return Sheet(title_block=title_block(d.model.sheet), labels=sheet_labels(), outcome=_outcome(d),
+                 sections=(response, _basis(d)) + numbered,
                  cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)), signoff=d.model.sheet.signoff,
                  revisions=d.model.sheet.revisions, metadata=_metadata(d), record=build_record(d, n),
                  source_name=d.model.path, style=d.model.sheet.style)
@@ -71,11 +72,23 @@ def _metadata(d: Derivation) -> tuple[tuple[str, str], ...]:
 
 
 # ----------------------------------------------------------------------------- front matter
-def _title_block(d: Derivation) -> TitleBlock:
-    info = d.model.sheet
-    fields = (("Calculation", info.number), ("Revision", info.revision), ("Project", info.project),
-              ("Originator", info.originator))
-    return TitleBlock(info.title, tuple((k, v) for k, v in fields if v))
+def title_block(info) -> TitleBlock:
+    """The sheet's identity from the input's [sheet] table, each entry with its label."""
+    return TitleBlock(info.title, number=Field("Calculation", info.number), revision=Field("Revision", info.revision),
+                      project=Field("Project", info.project), originator=Field("Originator", info.originator))
+
+
+def sheet_labels() -> Labels:
+    """The words every writer shows around the content (headings, table heads, running heads)."""
+    return Labels(
+        sheet="Calculation sheet", outcome="Outcome", step="Step",
+        revisions="Revisions", revision_columns=("Revision", "Date", "Description"),
+        signoff="Sign-off", signoff_columns=("Role", "Name", "Date", "Signature"), cautions="Caution",
+        notes=(("caution", "Caution"), ("warning", "Warning"), ("method", "Method")),
+        figure="Figure",
+        figure_summary="{title}: {y_label} against {x_label}, from {first:.4g} to {last:.4g}; {curve} curve points, "
+                       "{independent} independent points, {levels} horizontal and {limits} vertical guides",
+        page="Page", of="of", footer="Prepared with calcsheet. Review by a licensed engineer governs any use.")
 
 
 def _outcome(d: Derivation) -> Outcome:

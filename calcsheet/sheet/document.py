@@ -93,9 +93,58 @@ class Section:
 
 
 @dataclass(frozen=True)
+class Field:
+    """One entry of the title block: the word shown for it and its value ("" when not given)."""
+
+    label: str
+    value: str = ""
+
+
+@dataclass(frozen=True)
 class TitleBlock:
+    """The sheet's identity, by name, so a writer never finds an entry by searching its label."""
+
     title: str
-    fields: tuple[tuple[str, str], ...]  # (label, value) pairs, only those given
+    number: Field
+    revision: Field
+    project: Field
+    originator: Field
+
+    @property
+    def given(self) -> tuple[Field, ...]:
+        """The entries the input gave, in the order the sheet shows them."""
+        return tuple(f for f in (self.number, self.revision, self.project, self.originator) if f.value)
+
+
+@dataclass(frozen=True)
+class Labels:
+    """Every word a writer shows around the content, so that only compose chooses wording.
+
+    Writers may change the case of a label (the text record shouts its headings) but never its
+    words. ``figure_summary`` is a str.format template over the figure's counts and range.
+    """
+
+    sheet: str  # before the title in the text record
+    outcome: str
+    step: str  # before a step's number
+    revisions: str
+    revision_columns: tuple[str, str, str]  # revision, date, description
+    signoff: str
+    signoff_columns: tuple[str, str, str, str]  # role, name, date, signature
+    cautions: str
+    notes: tuple[tuple[str, str], ...]  # Note.kind -> the word shown before a note
+    figure: str
+    figure_summary: str
+    page: str  # running head: "<page> 3 <of> 7"
+    of: str
+    footer: str  # foot of every printed page
+
+    def note(self, kind: str) -> str:
+        """The word for a note of this kind; an unknown kind is a composing error, not a blank."""
+        words = dict(self.notes)
+        if kind not in words:
+            raise KeyError(f"no label for a note of kind {kind!r}")
+        return words[kind]
 
 
 @dataclass(frozen=True)
@@ -110,6 +159,7 @@ class Outcome:
 @dataclass(frozen=True)
 class Sheet:
     title_block: TitleBlock
+    labels: Labels
     outcome: Outcome
     sections: tuple[Section, ...]
     cautions: tuple[str, ...]

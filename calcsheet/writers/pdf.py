@@ -41,13 +41,13 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
         import weasyprint
 
     from calcsheet.writers.fetcher import STYLE_ROOT, ConfinedFetcher
-    from calcsheet.writers.plot import figure_svg, svg_data_uri
+    from calcsheet.writers.plot import figure_svg
 
-    html = render_html(sheet, style, "print", {
+    html = render_html(sheet, style, "pdf", {
         "math": lambda m: Markup(_inline(m.latex)),
         "display_math": lambda m: Markup(_display(m.latex)),
         "figure": lambda f: Markup(f'<img class="figure" alt="{escape(visible(f.title))}" '
-                                   f'src="{svg_data_uri(figure_svg(f))}">'),
+                                   f'src="{svgmath.data_uri(figure_svg(f))}">'),
     }, extra_css=_page_css(sheet), created=creation_date(sheet))
     # The screen CSS holds properties print does not use; WeasyPrint would warn about each.
     logging.getLogger("weasyprint").setLevel(logging.ERROR)
@@ -119,12 +119,15 @@ def _display(latex: str) -> str:
 
 
 def _page_css(sheet: doc.Sheet) -> str:
-    """Running heads from the title block; values written as escaped CSS strings."""
-    fields = {label: visible(value) for label, value in sheet.title_block.fields}
-    left = _css_string(visible(sheet.title_block.title)) + r' "\A " ' + _css_string(fields.get("Project", ""))
-    right = (_css_string(f"Calculation {fields.get('Calculation', '-')}  Revision {fields.get('Revision', '-')}")
-             + r' "\A Page " counter(page) " of " counter(pages)')
-    return f"\n@page {{ @top-left {{ content: {left}; }} @top-right {{ content: {right}; }} }}\n"
+    """Running heads and foot from the title block's named entries and the Sheet's labels, as escaped
+    CSS strings (print.css sets only their look)."""
+    block, words = sheet.title_block, sheet.labels
+    left = _css_string(visible(block.title)) + r' "\A " ' + _css_string(visible(block.project.value))
+    number, revision = (f"{f.label} {visible(f.value) or '-'}" for f in (block.number, block.revision))
+    right = (_css_string(f"{number}  {revision}") + " " + _css_string(f"\n{words.page} ") + " counter(page) "
+             + _css_string(f" {words.of} ") + " counter(pages)")
+    return (f"\n@page {{ @top-left {{ content: {left}; }} @top-right {{ content: {right}; }} "
+            f"@bottom-left {{ content: {_css_string(words.footer)}; }} }}\n")
 
 
 def _css_string(text: str) -> str:

@@ -18,7 +18,6 @@ matplotlib is imported inside the functions, never at module level, and pyplot i
 
 from __future__ import annotations
 
-import base64
 import math
 import re
 
@@ -97,11 +96,6 @@ def figure_svg(figure) -> str:
     svg = out.getvalue().decode("utf-8")
     svg = _DOCTYPE.sub("", _DECLARATION.sub("", svg))
     return svg.strip() + "\n"
-
-
-def svg_data_uri(svg: str) -> str:
-    """A ``data:`` URI carrying the SVG, for writers that prefer ``<img src=...>``."""
-    return "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")
 
 
 def build_figure(figure):

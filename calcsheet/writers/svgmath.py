@@ -34,6 +34,7 @@ def render(latex: str, size: float = FONT_SIZE) -> Rendered:
 
 
 def data_uri(svg: str) -> str:
+    """A ``data:`` URI carrying an SVG (an equation or the plot) for ``<img src=...>`` in the PDF."""
     return "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")
 
 

@@ -8,52 +8,76 @@ and bidirectional overrides are written as visible escapes (writers/visible_text
 
 from __future__ import annotations
 
-from calcsheet.sheet.document import Equation, Figure, ItemList, Math, Note, Paragraph, Section, Sheet, Table
+from functools import partial
+
+from calcsheet.sheet.document import Equation, Figure, ItemList, Labels, Note, Paragraph, Section, Sheet, Table
+from calcsheet.writers.dispatch import cell_kind, dispatch
 from calcsheet.writers.visible_text import record_lines
 
 # Starts every line that continues a field across a line break; no record line starts so.
 CONTINUATION = "  \u21b3 "
+WRITER = "text"
 
 
 def write(sheet: Sheet, style=None) -> str:
-    lines = [f"CALCULATION SHEET: {sheet.title_block.title}"]
-    lines += [f"{label}: {value}" for label, value in sheet.title_block.fields]
-    lines += ["", f"OUTCOME: {sheet.outcome.text}"] + [f"  {line}" for line in sheet.outcome.lines]
+    words = sheet.labels
+    lines = [f"{words.sheet.upper()}: {sheet.title_block.title}"]
+    lines += [f"{field.label}: {field.value}" for field in sheet.title_block.given]
+    lines += ["", f"{words.outcome.upper()}: {sheet.outcome.text}"] + [f"  {line}" for line in sheet.outcome.lines]
+    handlers = _handlers(words)
     for section in sheet.sections:
-        lines += ["", _heading(section)] + [line for block in section.blocks for line in _block(block)]
+        lines += ["", _heading(section, words)]
+        lines += [line for block in section.blocks for line in dispatch(block, handlers, WRITER)]
     if sheet.revisions:
-        lines += ["", "REVISIONS"] + [f"  {r.revision} | {r.date or '-'} | {r.description}" for r in sheet.revisions]
-    lines += ["", "SIGN-OFF"] + [f"  {s.role}: name {s.name or '______'}  date {s.date or '______'}"
-                                 for s in sheet.signoff]
-    lines += ["", "CAUTION"] + [f"  {c}" for c in sheet.cautions]
+        lines += ["", words.revisions.upper()]
+        lines += [f"  {r.revision} | {r.date or '-'} | {r.description}" for r in sheet.revisions]
+    _, name, date, _ = (column.lower() for column in words.signoff_columns)
+    lines += ["", words.signoff.upper()] + [f"  {s.role}: {name} {s.name or '______'}  {date} {s.date or '______'}"
+                                            for s in sheet.signoff]
+    lines += ["", words.cautions.upper()] + [f"  {c}" for c in sheet.cautions]
     return "\n".join(safe for line in lines for safe in record_lines(line, CONTINUATION)) + "\n"
 
 
-def _heading(section: Section) -> str:
-    prefix = f"STEP {section.number}. " if section.number else ""
+def _heading(section: Section, words: Labels) -> str:
+    prefix = f"{words.step.upper()} {section.number}. " if section.number else ""
     return f"== {prefix}{section.title} =="
 
 
-def _block(block) -> list[str]:
-    if isinstance(block, Paragraph):
-        return [block.text]
-    if isinstance(block, Equation):
-        label = f"   [{block.label}]" if block.label else ""
-        return [f"    {block.math.text}{label}"]
-    if isinstance(block, Note):
-        return [f"{block.kind.upper()}: {block.text}"]
-    if isinstance(block, ItemList):
-        return [f"  - {item}" for item in block.items]
-    if isinstance(block, Table):
-        caption = [f"{block.caption}:"] if block.caption else []
-        return caption + ["  " + " | ".join(block.header)] + ["  " + " | ".join(_cell(c) for c in row) for row in block.rows]
-    if isinstance(block, Figure):
-        first, last = block.curve[0][0], block.curve[-1][0]
-        return [f"FIGURE: {block.title}: {block.y_label} against {block.x_label}, from {first:.4g} to {last:.4g}; "
-                f"{len(block.curve)} curve points, {len(block.independent)} independent points, "
-                f"{len(block.levels)} horizontal and {len(block.limits)} vertical guides"]
-    raise TypeError(f"no text form for {type(block).__name__}")
+def _handlers(words: Labels) -> dict:
+    """One function per block kind (writers/dispatch.py names the kinds)."""
+    return {"paragraph": _paragraph, "equation": _equation, "note": partial(_note, words=words), "list": _list,
+            "table": _table, "figure": partial(_figure, words=words)}
+
+
+def _paragraph(block: Paragraph) -> list[str]:
+    return [block.text]
+
+
+def _equation(block: Equation) -> list[str]:
+    label = f"   [{block.label}]" if block.label else ""
+    return [f"    {block.math.text}{label}"]
+
+
+def _note(block: Note, words: Labels) -> list[str]:
+    return [f"{words.note(block.kind).upper()}: {block.text}"]
+
+
+def _list(block: ItemList) -> list[str]:
+    return [f"  - {item}" for item in block.items]
+
+
+def _table(block: Table) -> list[str]:
+    caption = [f"{block.caption}:"] if block.caption else []
+    return caption + ["  " + " | ".join(block.header)] + ["  " + " | ".join(_cell(c) for c in row) for row in block.rows]
+
+
+def _figure(block: Figure, words: Labels) -> list[str]:
+    summary = words.figure_summary.format(
+        title=block.title, y_label=block.y_label, x_label=block.x_label, first=block.curve[0][0],
+        last=block.curve[-1][0], curve=len(block.curve), independent=len(block.independent),
+        levels=len(block.levels), limits=len(block.limits))
+    return [f"{words.figure.upper()}: {summary}"]
 
 
 def _cell(cell) -> str:
-    return cell.text if isinstance(cell, Math) else str(cell)
+    return cell.text if cell_kind(cell, WRITER) == "math" else cell

@@ -20,7 +20,8 @@ from PIL import Image
 from pypdf import PdfReader
 
 from calcsheet.errors import InputError
-from calcsheet.sheet.document import Outcome, Paragraph, Section, Sheet, TitleBlock
+from calcsheet.sheet.compose import sheet_labels
+from calcsheet.sheet.document import Field, Outcome, Paragraph, Section, Sheet, TitleBlock
 from calcsheet.writers import html, pdf
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -29,7 +30,9 @@ SECRET = "FORBIDDEN-CONTENT-5521"
 
 def small_sheet() -> Sheet:
     return Sheet(
-        title_block=TitleBlock("Style isolation check", (("Calculation", "SEC-1"), ("Revision", "A"))),
+        title_block=TitleBlock("Style isolation check", number=Field("Calculation", "SEC-1"),
+                               revision=Field("Revision", "A"), project=Field("Project"), originator=Field("Originator")),
+        labels=sheet_labels(),
         outcome=Outcome(True, "All 1 criteria pass."),
         sections=(Section("basis", "Basis of the calculation", (Paragraph("A paragraph of the sheet."),)),),
         cautions=("Defer to local codes and licensed practice.",),

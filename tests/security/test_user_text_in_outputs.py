@@ -13,7 +13,8 @@ from pypdf import PdfReader
 
 from calcsheet.model import Revision, SignOff
 from calcsheet.pipeline import build_sheet, render
-from calcsheet.sheet.document import ItemList, Note, Outcome, Paragraph, Section, Sheet, Table, TitleBlock
+from calcsheet.sheet.compose import sheet_labels
+from calcsheet.sheet.document import Field, ItemList, Note, Outcome, Paragraph, Section, Sheet, Table, TitleBlock
 from calcsheet.writers import html, json_record, pdf, text_record
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -86,7 +87,10 @@ UNSAFE = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\u202
 def forging_sheet(trick: str) -> Sheet:
     """A failing sheet whose every kind of text field tries to add lines of its own."""
     return Sheet(
-        title_block=TitleBlock("Title" + FORGED + trick, (("Calculation", "X-1" + FORGED), ("Revision", "A" + trick))),
+        title_block=TitleBlock("Title" + FORGED + trick, number=Field("Calculation", "X-1" + FORGED),
+                               revision=Field("Revision", "A" + trick), project=Field("Project", "P" + FORGED + trick),
+                               originator=Field("Originator")),
+        labels=sheet_labels(),
         outcome=Outcome(False, "1 of 2 criteria FAIL.", ("FAIL: criterion text" + FORGED + trick,)),
         sections=(Section("basis", "Basis" + FORGED, (
             Paragraph("Purpose: a purpose" + FORGED + trick),

@@ -73,25 +73,25 @@ def test_pdf_creation_date_comes_from_source_date_epoch(sheets, monkeypatch):
 @pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
 def test_pages_carry_the_title_block_and_page_n_of_m(pdfs, sheets, demo):
     reader = PdfReader(io.BytesIO(pdfs[demo.stem]))
-    fields = dict(sheets[demo.stem].title_block.fields)
+    block, words = sheets[demo.stem].title_block, sheets[demo.stem].labels
     total = len(reader.pages)
     assert total >= 2
     for number, page in enumerate(reader.pages, start=1):
         text = page.extract_text()
-        assert f"Page {number} of {total}" in text
-        assert f"Calculation {fields['Calculation']}" in text and f"Revision {fields['Revision']}" in text
+        assert f"{words.page} {number} {words.of} {total}" in text
+        assert f"Calculation {block.number.value}" in text and f"Revision {block.revision.value}" in text
+        assert block.project.value in text and words.footer in text
     last = reader.pages[-1].extract_text()
-    assert "Sign-off" in last and "licensed engineer" in last
+    assert words.signoff in last
 
 
 @pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
 def test_metadata_and_embedded_fonts(pdfs, sheets, demo):
     reader = PdfReader(io.BytesIO(pdfs[demo.stem]))
     info = sheets[demo.stem].title_block
-    fields = dict(info.fields)
     assert reader.metadata.title == info.title
-    assert reader.metadata.author == fields["Originator"]
-    assert fields["Calculation"] in reader.metadata.subject
+    assert reader.metadata.author == info.originator.value
+    assert info.number.value in reader.metadata.subject
     fonts = []
     for page in reader.pages:
         for font in (page["/Resources"].get("/Font") or {}).values():

@@ -9,6 +9,7 @@ import os
 import re
 import shutil
 import subprocess
+from types import SimpleNamespace
 from pathlib import Path
 
 import pytest
@@ -16,7 +17,8 @@ from fontTools.ttLib import TTFont
 from pypdf import PdfReader
 
 from calcsheet.pipeline import build_sheet
-from calcsheet.sheet.document import Outcome, Sheet, TitleBlock
+from calcsheet.sheet.compose import sheet_labels, title_block
+from calcsheet.sheet.document import Outcome, Sheet
 from calcsheet.writers import fonts, pdf
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -122,7 +124,9 @@ def test_the_font_module_is_restored_after_a_build(built_pdf):
 
 
 def _undated_sheet() -> Sheet:
-    return Sheet(title_block=TitleBlock("t", ()), outcome=Outcome(True, "ok"), sections=(), cautions=())
+    untitled = SimpleNamespace(title="t", number="", revision="", project="", originator="")
+    return Sheet(title_block=title_block(untitled), labels=sheet_labels(), outcome=Outcome(True, "ok"), sections=(),
+                 cautions=())
 
 
 @pytest.mark.parametrize("value", ["", " ", "soon", "-5", "1.5", "1e9", "\u00b2", "\u0661\u0662", "0x10",

@@ -10,7 +10,8 @@ import xml.etree.ElementTree as ET
 import pytest
 
 from calcsheet.sheet.document import Figure, Guide
-from calcsheet.writers.plot import GUIDE_STYLE, build_figure, figure_svg, svg_data_uri
+from calcsheet.writers.plot import GUIDE_STYLE, build_figure, figure_svg
+from calcsheet.writers.svgmath import data_uri
 
 SVG_NS = "{http://www.w3.org/2000/svg}"
 
@@ -99,7 +100,7 @@ def test_text_is_drawn_as_paths(svg):
 
 
 def test_data_uri_round_trips(svg):
-    uri = svg_data_uri(svg)
+    uri = data_uri(svg)
     prefix = "data:image/svg+xml;base64,"
     assert uri.startswith(prefix)
     assert base64.b64decode(uri[len(prefix):]).decode("utf-8") == svg
