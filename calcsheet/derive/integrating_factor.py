@@ -86,7 +86,9 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
             open_terms.append(term)
             reasons.append(reason)
     if singular:  # kept as one integral: apart, terms such as 1/t and -exp(-t/T)/t diverge at t = 0
-        open_terms.append(sp.factor_terms(sp.together(sp.Add(*singular))))
+        combined = sp.factor_terms(sp.together(sp.Add(*singular)))
+        _refuse_unless_finite_at_start(sp.powsimp(mu * combined), x, start, model)
+        open_terms.append(combined)
         reasons.append(NOT_FINITE_AT_START)
     F, branch_notes = choose_branches(compact(sp.Add(*closed_parts)), values)
     notes.extend(branch_notes)
@@ -112,6 +114,19 @@ _REASONS = {
     NOT_FINITE_AT_START: "the antiderivative found has no finite value at the initial point, so the constant "
                          "of integration cannot be taken from it there",
 }
+
+
+def _refuse_unless_finite_at_start(integrand: sp.Expr, x: sp.Symbol, start, model: Model) -> None:
+    """The integral from the initial point exists only where mu r has a finite limit there (T/t has none)."""
+    from calcsheet.derive.safe_numeric import NotFinite, SafeFunction
+
+    x0 = model.initial_at.si
+    scale = max(abs(x0), max((abs(p.si) for p in model.evaluate_at), default=1.0), 1e-300)
+    try:
+        SafeFunction(integrand.subs(start), x, scale=scale, side=1).limit(x0)
+    except NotFinite:
+        raise ModelRefused("the forcing has no finite limit at the initial point, so the response cannot start "
+                           "there: the integral of mu*r from the initial point does not exist", "model.equation") from None
 
 
 def _finite_at(antiderivative: sp.Expr, x: sp.Symbol, x0: sp.Expr, values) -> bool:

@@ -17,6 +17,7 @@ from calcsheet.derive.integrating_factor import Solution
 from calcsheet.derive.readable import compact
 from calcsheet.errors import ModelRefused
 from calcsheet.model import Criterion, Model, Point
+from calcsheet.subjects import SUBJECTS, VARIABLE
 
 SEARCH_SCALES = 60  # how many natural scales past the initial point a level is searched for
 SEARCH_POINTS = 2001
@@ -258,9 +259,10 @@ def _natural_scale(p_value: sp.Expr, x: sp.Symbol, x0: float, model: Model) -> f
 def _abscissae(model: Model) -> list[Point]:
     points = list(model.evaluate_at)
     for c in model.criteria:
-        if c.subject == "value":
+        subject = SUBJECTS[c.subject]
+        if subject.argument == VARIABLE:
             points.append(c.argument)
-        elif c.subject in ("reach", "time_constant"):
+        elif subject.found == VARIABLE:
             points.append(c.limit)
     return points
 
@@ -426,19 +428,31 @@ def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model
     return verdict
 
 
+@dataclass(frozen=True)
+class Response:
+    """What a criterion's quantity is computed from: y(x), the scanned grid and samples, tau and the final value."""
+
+    y: object
+    grid: np.ndarray
+    samples: np.ndarray
+    tau: float | None
+    final: float | None
+
+
+# One function per subject of calcsheet/subjects.py: the quantity a criterion compares, in SI, or None.
+QUANTITIES = {
+    "value": lambda c, r: r.y(c.argument.si),
+    "reach": lambda c, r: first_crossing(c.argument.si, r.y, r.grid, r.samples),
+    "time_constant": lambda c, r: r.tau,
+    "final_value": lambda c, r: r.final,
+}
+
+
 def _verdict(criterion: Criterion, y, grid, samples, tau, final) -> Verdict:
-    note = ""
-    if criterion.subject == "value":
-        actual = y(criterion.argument.si)
-    elif criterion.subject == "reach":
-        actual = first_crossing(criterion.argument.si, y, grid, samples)
-        if actual is None:
-            note = "level not reached; taken as never"
-    elif criterion.subject == "time_constant":
-        actual = tau
-    else:
-        actual = final
-    if actual is None and criterion.subject != "reach":
+    subject = SUBJECTS[criterion.subject]
+    actual = QUANTITIES[subject.name](criterion, Response(y, grid, samples, tau, final))
+    note = "level not reached; taken as never" if actual is None and subject.absent_is_never else ""
+    if actual is None and not subject.absent_is_never:
         return Verdict(criterion, None, False, "the quantity does not exist for this response")
     if actual is not None and not math.isfinite(actual):
         return Verdict(criterion, None, False, "the quantity is not finite for this response")
@@ -453,10 +467,11 @@ def _needs_past(criterion: Criterion, verdict: Verdict, limit: float) -> bool:
     level not reached before the limit may be reached after it: that decides the criterion only when
     its limit lies beyond the validity limit (reach <= 20 min with the tank full at 80 min fails either way).
     """
-    if criterion.subject == "value":
-        return criterion.argument.si > limit
-    if criterion.subject == "final_value":
+    subject = SUBJECTS[criterion.subject]
+    if subject.depends_on_whole_response:
         return True
-    if criterion.subject == "reach" and verdict.actual is None:
+    if subject.argument == VARIABLE:  # a quantity at a point: past the limit or not
+        return criterion.argument.si > limit
+    if subject.absent_is_never and verdict.actual is None:
         return criterion.limit.si > limit
     return False

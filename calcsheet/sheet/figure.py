@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from calcsheet.sheet.document import Figure, Guide
 from calcsheet.source.units import from_si
+from calcsheet.subjects import SUBJECTS, UNKNOWN
 
 
 def response_figure(d) -> Figure:
@@ -19,12 +20,13 @@ def response_figure(d) -> Figure:
     limits = []
     for v in num.verdicts:
         c, status = v.criterion, "pass" if v.passed else "fail"
-        if c.subject in ("value", "final_value"):
+        subject = SUBJECTS[c.subject]
+        if subject.guide == "level":
             levels.append(Guide(y_of(c.limit.si), f"limit {c.check}", status))
-        elif c.subject in ("reach", "time_constant"):
+        else:
             limits.append(Guide(x_of(c.limit.si), f"limit {c.check}", status))
-            if c.subject == "reach" and all(g.label != f"level {c.argument.text}" for g in levels):
-                levels.append(Guide(y_of(c.argument.si), f"level {c.argument.text}", ""))
+        if subject.argument == UNKNOWN and all(g.label != f"level {c.argument.text}" for g in levels):
+            levels.append(Guide(y_of(c.argument.si), f"level {c.argument.text}", ""))
     return Figure(
         title=f"Response of {m.unknown.name}",
         x_label=_axis(m.variable), y_label=_axis(m.unknown),

@@ -1,0 +1,30 @@
+"""The criterion subjects are one table read by every stage (a property of our own code; no outside source)."""
+
+from __future__ import annotations
+
+from calcsheet.derive.numbers import QUANTITIES
+from calcsheet.source.loader import RESERVED
+from calcsheet.subjects import SUBJECTS, UNKNOWN, VARIABLE, spellings, written_subject
+
+
+def test_every_subject_has_a_quantity_to_compute():
+    assert set(QUANTITIES) == set(SUBJECTS)
+
+
+def test_every_subject_says_what_its_numbers_are_measured_like():
+    for subject in SUBJECTS.values():
+        assert subject.argument in (None, UNKNOWN, VARIABLE)
+        assert subject.found in (UNKNOWN, VARIABLE)
+        assert subject.guide in ("level", "limit_x")
+        assert (subject.guide == "level") == (subject.found == UNKNOWN)
+
+
+def test_a_check_names_its_subject_by_the_unknown_or_a_word():
+    assert written_subject("v", "v").name == "value"
+    assert written_subject("reach", "v").name == "reach"
+    assert written_subject("tau", "v") is None
+    assert spellings("v") == "v(...), reach(...), time_constant or final_value"
+
+
+def test_subject_words_cannot_be_parameter_names():
+    assert {"reach", "time_constant", "final_value"} <= RESERVED
