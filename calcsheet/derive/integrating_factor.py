@@ -37,7 +37,6 @@ class Solution:
     forced: sp.Expr
     forced_closed: sp.Expr  # the part of the forced response that has a closed form
     branches: tuple[str, ...]  # sympy case splits decided by the stated values
-    fallback_reason: str = ""
     fallback_codes: tuple[str, ...] = ()  # why terms stayed integrals: budget.NO_CLOSED_FORM or BUDGET_EXCEEDED
     special_case: tuple[tuple[str, str], ...] = ()  # (symbol, value) the stated values force, e.g. q_in = q_out
     p: sp.Expr = None  # p and r as solved (the classification's, unless a special case applies)
@@ -102,17 +101,15 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         x0=x0, y0=y0, dummy=s, P=P, mu=mu, mu_r=sp.powsimp(mu * r), antiderivative=antiderivative,
         open_terms=tuple(open_terms), constant=K, general=(antiderivative + K) / mu,
         constant_value=k_value, particular=natural + forced, natural=natural, forced=forced,
-        forced_closed=forced_closed, branches=tuple(notes), fallback_reason="; ".join(_REASONS[code] for code in sorted(set(reasons))),
+        forced_closed=forced_closed, branches=tuple(notes),
         fallback_codes=tuple(sorted(set(reasons))),
         special_case=tuple((plain(k), plain(v)) for k, v in special.items()), p=p, r=r,
     )
 
 
-_REASONS = {
+_REASONS = {  # for the refusal when p itself cannot be integrated; the sheet's words are in compose
     NO_CLOSED_FORM: "sympy found no closed form for this integral",
     BUDGET_EXCEEDED: f"symbolic integration did not finish within its budget of {INTEGRATE_SECONDS:g} s",
-    NOT_FINITE_AT_START: "the antiderivative found has no finite value at the initial point, so the constant "
-                         "of integration cannot be taken from it there",
 }
 
 

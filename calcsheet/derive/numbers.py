@@ -45,7 +45,6 @@ REACHED, MODEL_STOPS, SOLUTION_ENDS, APPROACHES_FINAL, SETTLES_SHORT, MOVES_AWAY
 class Reach:
     level: Point
     x: float | None  # SI; None when not reached
-    note: str = ""
     code: str = REACHED  # why it is not reached, when it is not (see the codes above)
     stop: float | None = None  # SI: where the search stopped, for model_stops and solution_ends
 
@@ -55,7 +54,6 @@ class Verdict:
     criterion: Criterion
     actual: float | None  # SI value of the checked quantity; None when it does not exist
     passed: bool  # False also when the criterion could not be assessed
-    note: str = ""
     assessed: bool = True  # False: the model is not valid for the case, or the criterion needs points past its limit
     code: str = ""  # why not assessed: "model_not_valid" or "past_validity_limit"
 
@@ -81,9 +79,9 @@ class SteadySine:
 class Numbers:
     time_constant: float | None  # SI
     time_constant_expr: sp.Expr | None
-    time_constant_note: str
+    time_constant_note: str  # why there is none: TAU_VARYING or TAU_NOT_DECAYING ("" when there is one)
     final_value: float | None  # SI
-    final_value_note: str
+    final_value_note: str  # how it was found, or why there is none: a FINAL_* code
     scale: float  # natural scale of the variable (SI): tau, or 1/|p(x0)|
     span: tuple[float, float]  # a sensible range to show the response over (SI)
     domain_end: float | None  # where the solution stops existing, if inside the searched range
@@ -226,14 +224,20 @@ def _as_solved(cls: Classification, solution: Solution, model: Model) -> Classif
     return replace(cls, p=solution.p, r=solution.r, constant_coefficients=x not in solution.p.free_symbols)
 
 
+# Why there is no time constant, or how the final value was found or why there is none (the sheet words each).
+TAU_VARYING, TAU_NOT_DECAYING = "p_varies", "p_not_positive"
+FINAL_LIMIT_OF_SOLUTION, FINAL_LIMIT_OF_R_OVER_P = "limit_of_solution", "limit_of_r_over_p"
+FINAL_NOT_DECAYING, FINAL_UNDETERMINED, FINAL_OUT_OF_TIME = "p_not_positive", "varying_and_open", "limit_budget"
+FINAL_OSCILLATES, FINAL_GROWS, FINAL_UNSETTLED = "oscillates", "grows", "does_not_settle"
+
+
 def _time_constant(cls: Classification, p_value: sp.Expr, model: Model):
-    word = "time constant" if _is_time(model) else "length constant"
+    """(tau, its expression, why there is none): a code from above, "" when there is one."""
     if not cls.constant_coefficients:
-        return None, None, f"p varies with {model.variable.name}, so there is no single {word}"
-    p_num = float(p_value)
-    if p_num <= 0:
-        return None, None, f"p = {p_num:g} is not positive: the natural response does not decay, so there is no {word}"
-    return 1.0 / p_num, compact(1 / cls.p), ""
+        return None, None, TAU_VARYING
+    if float(p_value) <= 0:
+        return None, None, TAU_NOT_DECAYING
+    return 1.0 / float(p_value), compact(1 / cls.p), ""
 
 
 def _si_unit(model: Model) -> str:
@@ -312,26 +316,26 @@ def _sample(y: ResponseEvaluator, grid: np.ndarray) -> tuple[np.ndarray, float |
 def _final_value(model: Model, cls: Classification, solution: Solution, values, p_value) -> tuple[float | None, str]:
     x = model.variable.symbol
     if cls.constant_coefficients and float(p_value) <= 0:
-        return None, "none: the natural response does not decay (p is not positive)"
+        return None, FINAL_NOT_DECAYING
     if solution.closed_form:
         expr = solution.particular.subs({**values, **solution.initial_values(model)})
-        how = f"limit of the particular solution as {model.variable.name} grows without bound"
+        how = FINAL_LIMIT_OF_SOLUTION
     elif cls.constant_coefficients:
         expr = (cls.r / cls.p).subs(values)
-        how = f"limit of r/p as {model.variable.name} grows without bound, p being constant and positive"
+        how = FINAL_LIMIT_OF_R_OVER_P
     else:
-        return None, "not determined: varying coefficient and no closed form"
+        return None, FINAL_UNDETERMINED
     expr = _steps_settled(expr, x)
     limit, done = within(LIMIT_SECONDS, lambda: sp.limit(expr, x, sp.oo), None)
     if not done or limit is None:
-        return None, "not determined: the limit did not finish within its time budget"
+        return None, FINAL_OUT_OF_TIME
     if isinstance(limit, sp.AccumBounds):
-        return None, "none: the response keeps oscillating and does not settle"
+        return None, FINAL_OSCILLATES
     if limit.is_finite and limit.is_real and limit.is_number:
         return float(limit), how
     if limit in (sp.oo, -sp.oo):
-        return None, "none: the response grows without bound"
-    return None, "none: the response keeps oscillating or does not settle"
+        return None, FINAL_GROWS
+    return None, FINAL_UNSETTLED
 
 
 def _steps_settled(expr: sp.Expr, x: sp.Symbol) -> sp.Expr:
@@ -359,22 +363,17 @@ def reach_for(level: Point, y, grid, samples, final, model: Model, stop: tuple[s
     x = first_crossing(level.si, y, grid, samples)
     if x is not None:
         return Reach(level, x)
-    searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
     if stop is not None:
-        return Reach(level, None, f"not reached before the search stopped ({stop[0].replace('_', ' ')})",
-                     stop[0], stop[1])
+        return Reach(level, None, stop[0], stop[1])
     size = max([abs(level.si)] + [abs(float(v)) for v in samples[:1]] + ([abs(final)] if final is not None else []))
     start = float(samples[0]) if len(samples) else None
     if final is not None and abs(level.si - final) <= AT_LEVEL * max(size, 1e-300):
-        return Reach(level, None, "not reached: the response approaches its final value and never reaches it",
-                     APPROACHES_FINAL)
+        return Reach(level, None, APPROACHES_FINAL)
     if final is not None and start is not None and (level.si - final) * (start - final) < 0:
-        return Reach(level, None, f"not reached {searched}; the response settles at its final value short of it",
-                     SETTLES_SHORT)
+        return Reach(level, None, SETTLES_SHORT)
     if start is not None and abs(level.si - start) <= AT_LEVEL * max(size, 1e-300):
-        return Reach(level, None, "not reached after the initial point: the response starts on this level and "
-                                  "leaves it without coming back across it", MOVES_AWAY)
-    return Reach(level, None, f"not reached {searched}", NOT_IN_RANGE)
+        return Reach(level, None, MOVES_AWAY)
+    return Reach(level, None, NOT_IN_RANGE)
 
 
 def first_crossing(level: float, y, grid, samples) -> float | None:
@@ -419,12 +418,9 @@ def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model
     the response past the kind's validity limit (a tank that has overflowed)."""
     verdict = _verdict(criterion, y, grid, samples, tau, final)
     if not_valid:
-        return replace(verdict, passed=False, assessed=False, code=MODEL_NOT_VALID,
-                       note="not assessed: the model is not valid for this case")
+        return replace(verdict, passed=False, assessed=False, code=MODEL_NOT_VALID)
     if valid_until is not None and _needs_past(criterion, verdict, valid_until[0]):
-        return replace(verdict, passed=False, assessed=False, code=PAST_VALIDITY_LIMIT,
-                       note=f"not assessed: it depends on the response after the model stops holding "
-                            f"({valid_until[1]})")
+        return replace(verdict, passed=False, assessed=False, code=PAST_VALIDITY_LIMIT)
     return verdict
 
 
@@ -451,13 +447,12 @@ QUANTITIES = {
 def _verdict(criterion: Criterion, y, grid, samples, tau, final) -> Verdict:
     subject = SUBJECTS[criterion.subject]
     actual = QUANTITIES[subject.name](criterion, Response(y, grid, samples, tau, final))
-    note = "level not reached; taken as never" if actual is None and subject.absent_is_never else ""
-    if actual is None and not subject.absent_is_never:
-        return Verdict(criterion, None, False, "the quantity does not exist for this response")
     if actual is not None and not math.isfinite(actual):
-        return Verdict(criterion, None, False, "the quantity is not finite for this response")
-    compared = math.inf if actual is None else actual
-    return Verdict(criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)), note)
+        actual = None
+    if actual is None and not subject.absent_is_never:  # the quantity does not exist for this response
+        return Verdict(criterion, None, False)
+    compared = math.inf if actual is None else actual  # a level never reached is reached at infinity
+    return Verdict(criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)))
 
 
 def _needs_past(criterion: Criterion, verdict: Verdict, limit: float) -> bool:

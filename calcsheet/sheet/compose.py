@@ -7,6 +7,9 @@ import sympy as sp
 from calcsheet.derive.derivation import Derivation
 from calcsheet.derive.numbers import APPROACHES_FINAL, MODEL_STOPS, MOVES_AWAY, OVERFLOWS, SETTLES_SHORT, \
     SOLUTION_ENDS, SEARCH_SCALES
+from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, NOT_FINITE_AT_START
+from calcsheet.derive.numbers import FINAL_GROWS, FINAL_LIMIT_OF_R_OVER_P, FINAL_LIMIT_OF_SOLUTION, \
+    FINAL_NOT_DECAYING, FINAL_OSCILLATES, FINAL_OUT_OF_TIME, FINAL_UNDETERMINED, FINAL_UNSETTLED, TAU_VARYING
 from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
@@ -17,6 +20,7 @@ from calcsheet.sheet.quantities import in_units, number, numeric_expression
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.record import build_record
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
+from calcsheet.subjects import SUBJECTS, UNKNOWN
 
 
 class _Notation:
@@ -249,7 +253,8 @@ def _integration(d: Derivation, n: _Notation) -> Section:
         n.eq(n.yx_latex, n.yx_text, s.general, label="general solution"),
     ]
     if not s.closed_form:
-        blocks.append(Note("method", f"No closed form for part of the integral: {s.fallback_reason}. That part is "
+        reasons = "; ".join(_FALLBACK_WORDS[code] for code in s.fallback_codes)
+        blocks.append(Note("method", f"No closed form for part of the integral: {reasons}. That part is "
                                      "kept as a definite integral from the initial point and evaluated numerically "
                                      "(step 8)."))
     if s.branches:
@@ -282,11 +287,11 @@ def _split(d: Derivation, n: _Notation) -> Section:
         n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", s.natural, label="natural"),
         n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
     ]
+    how = _FINAL_WORDS[num.final_value_note].format(x=m.variable.name)
     if num.final_value is not None:
-        blocks.append(Paragraph(f"Final value: {name} tends to {in_units(num.final_value, m.unknown)} "
-                                f"({num.final_value_note})."))
+        blocks.append(Paragraph(f"Final value: {name} tends to {in_units(num.final_value, m.unknown)} ({how})."))
     else:
-        blocks.append(Paragraph(f"Final value: {num.final_value_note}."))
+        blocks.append(Paragraph(f"Final value: {how}."))
     return Section("split", "Natural and forced response", tuple(blocks))
 
 
@@ -352,6 +357,8 @@ def reach_table(m, reaches) -> Table:
 def _reach_remark(r, m) -> str:
     """Why a level is not reached, in the sheet's words (the rule is in numbers.reach_for)."""
     code = getattr(r, "code", "")
+    if r.x is not None:
+        return ""
     searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
     if code == MODEL_STOPS:
         return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the model stops "
@@ -369,7 +376,7 @@ def _reach_remark(r, m) -> str:
     if code == MOVES_AWAY:
         return ("not reached after the initial point: the response starts on this level and leaves it without "
                 "coming back across it")
-    return r.note
+    return f"not reached {searched}"
 
 
 def criteria_table(m, verdicts) -> Table:
@@ -395,7 +402,10 @@ def checks_table(checks, caption: str = "") -> Table:
 def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
     num, m = d.numbers, d.model
     if num.time_constant is None:
-        return [Paragraph(f"{_constant_word(d).capitalize()}: none; {num.time_constant_note}.")]
+        word = _constant_word(d)
+        why = (f"p varies with {m.variable.name}, so there is no single {word}" if num.time_constant_note == TAU_VARYING
+               else f"p is not positive: the natural response does not decay, so there is no {word}")
+        return [Paragraph(f"{word.capitalize()}: none; {why}.")]
     shown = in_units(num.time_constant, m.variable)
     tau = sp.Symbol("tau")
     return [n.eq(latex(tau), "tau", (r"\frac{1}{p}", "1/p"), *_distinct(tau, num.time_constant_expr)[1:],
@@ -423,12 +433,29 @@ def _quantity_latex(shown: str) -> str:
     return rf"{value}\ \mathrm{{{unit}}}" if unit else value
 
 
+_FALLBACK_WORDS = {
+    NO_CLOSED_FORM: "sympy found no closed form for this integral",
+    BUDGET_EXCEEDED: f"symbolic integration did not finish within its budget of {INTEGRATE_SECONDS:g} s",
+    NOT_FINITE_AT_START: "the antiderivative found has no finite value at the initial point, so the constant of "
+                         "integration cannot be taken from it there",
+}
+_FINAL_WORDS = {
+    FINAL_LIMIT_OF_SOLUTION: "limit of the particular solution as {x} grows without bound",
+    FINAL_LIMIT_OF_R_OVER_P: "limit of r/p as {x} grows without bound, p being constant and positive",
+    FINAL_NOT_DECAYING: "none: the natural response does not decay (p is not positive)",
+    FINAL_UNDETERMINED: "not determined: varying coefficient and no closed form",
+    FINAL_OUT_OF_TIME: "not determined: the limit did not finish within its time budget",
+    FINAL_OSCILLATES: "none: the response keeps oscillating and does not settle",
+    FINAL_GROWS: "none: the response grows without bound",
+    FINAL_UNSETTLED: "none: the response keeps oscillating or does not settle",
+}
+
+
 def _found(v, m) -> str:
-    if v.criterion.subject in ("value", "final_value"):
-        return in_units(v.actual, m.unknown)
+    subject = SUBJECTS[v.criterion.subject]
     if v.actual is None:
-        return "not reached" if v.criterion.subject == "reach" else "does not exist"
-    return in_units(v.actual, m.variable)
+        return "not reached" if subject.absent_is_never else "does not exist"
+    return in_units(v.actual, m.unknown if subject.found == UNKNOWN else m.variable)
 
 
 def _also(point, declared) -> str:

@@ -5,6 +5,7 @@ from __future__ import annotations
 from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import Note
 from calcsheet.mathtext import plain
+from calcsheet.subjects import SUBJECTS, UNKNOWN
 from calcsheet.sheet.quantities import record_value, rounded
 
 RECORD_FORMAT = "calcsheet-record"
@@ -87,5 +88,5 @@ def verification_record(verification) -> dict:
 
 
 def _found(verdict, m):
-    like = m.unknown if verdict.criterion.subject in ("value", "final_value") else m.variable
+    like = m.unknown if SUBJECTS[verdict.criterion.subject].found == UNKNOWN else m.variable
     return record_value(verdict.actual, like)

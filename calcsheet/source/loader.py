@@ -21,6 +21,7 @@ from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetI
 from calcsheet.source import expressions as ex
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.source import sheet_keys, units
+from calcsheet.subjects import UNKNOWN, VARIABLE, reserved_words, spellings, written_subject
 from calcsheet.source.loader_support import declared_parts
 from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
 from calcsheet.source.singular import Values, check_equation_values
@@ -42,7 +43,7 @@ TABLES = {
     "switch": {"at", "text", "parameters", "forcing"},
 }
 LISTS = {"criteria", "revisions", "switch"}  # written as [[name]]
-RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | {"reach", "final_value", "time_constant"}
+RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | reserved_words()
 # Applied to stripped text: one optional group between single runs of spaces, so it is linear.
 _CHECK = re.compile(r"(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\((?P<argument>[^()]*)\)\s*)?(?P<op><=|>=|<|>)(?P<limit>.*)",
                     re.DOTALL)
@@ -495,15 +496,15 @@ class _Builder:
                              "\"v(2 min) <= 10 V\")", where)
         subject, argument = match.group("subject"), match.group("argument")
         argument = None if argument is None else argument.strip()
-        kinds = {unknown.name: ("value", variable, unknown), "reach": ("reach", unknown, variable),
-                 "time_constant": ("time_constant", None, variable), "final_value": ("final_value", None, unknown)}
-        if subject not in kinds:
-            raise InputError(f"'{subject}' is not {unknown.name}(...), reach(...), time_constant or final_value", where)
-        kind, argument_like, limit_like = kinds[subject]
+        found = written_subject(subject, unknown.name)
+        if found is None:
+            raise InputError(f"'{subject}' is not {spellings(unknown.name)}", where)
+        like = {UNKNOWN: unknown, VARIABLE: variable}
+        argument_like, limit_like = like.get(found.argument), like[found.found]
         if (argument_like is None) != (argument is None):
             raise InputError(f"'{subject}' {'takes no' if argument_like is None else 'needs an'} argument", where)
         return Criterion(
-            text=text, check=check, subject=kind,
+            text=text, check=check, subject=found.name,
             argument=None if argument is None else self.point(argument, argument_like, where),
             operator=match.group("op"), limit=self.point(match.group("limit").strip(), limit_like, where),
         )
