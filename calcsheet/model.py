@@ -96,13 +96,33 @@ class Criterion:
 
 
 @dataclass(frozen=True)
+class IntervalLaw:
+    """The equation and parameters in force from a switch on: the part of a Model a switch can change.
+
+    It holds no initial value: the value the unknown starts from is known only once the interval
+    before has been derived, so the interval's Model is built then (``derive.piecewise``).
+    """
+
+    equation_text: str
+    equation: ex.Equation
+    lhs: sp.Expr
+    rhs: sp.Expr
+    parameters: tuple["Parameter", ...]
+    kind: object = None  # a kinds.base.KindUse when the input named a model kind
+    unused_parameters: tuple[str, ...] = ()
+
+    def fields(self) -> dict:
+        """The Model fields this law sets, by name (for dataclasses.replace)."""
+        return {name: getattr(self, name) for name in self.__dataclass_fields__}
+
+
+@dataclass(frozen=True)
 class Switch:
-    """From ``at`` on, the model is ``model`` (new parameters or forcing); its initial value is
-    whatever the previous interval reaches at ``at`` (continuity of the unknown)."""
+    """From ``at`` on, ``law`` is in force; the unknown carries over the switch unchanged."""
 
     at: "Point"
     text: str
-    model: "Model"
+    law: IntervalLaw
     carried: tuple[tuple[str, str], ...] = ()  # states the kind's law carries over, as (name, value shown)
 
 

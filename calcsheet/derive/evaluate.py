@@ -29,13 +29,22 @@ QUAD_METHOD = ("adaptive Gauss–Kronrod quadrature (QUADPACK QAGS via scipy.int
                f"relative tolerance {QUAD_RTOL:.0e}, at most {QUAD_SUBINTERVALS} subintervals")
 
 
-@dataclass
+@dataclass(frozen=True)
 class QuadratureLog:
-    """The largest error estimate quadrature reported, over every evaluation made."""
+    """The largest error estimate quadrature reported, over the evaluations made so far.
+
+    Immutable: each evaluation gives a new log, so a Derivation keeps the log as it stood when its
+    evaluation was done, and nothing evaluated later changes what it holds.
+    """
 
     evaluations: int = 0
     largest_error: float = 0.0
     troubled: int = 0  # evaluations where QUADPACK warned (subdivision limit, round-off): the value may be off
+
+    def adding(self, error: float, troubled: bool) -> "QuadratureLog":
+        """This log with one more evaluation, whose error estimate is ``error``."""
+        return QuadratureLog(self.evaluations + 1, max(self.largest_error, abs(error)),
+                             self.troubled + (1 if troubled else 0))
 
 
 @dataclass
@@ -46,7 +55,7 @@ class ResponseEvaluator:
     closed_vector: callable  # the same closed form in double precision, for whole grids
     open_parts: list = field(default_factory=list)  # (P(x) numeric, r_i(x) numeric)
     x0: float = 0.0
-    log: QuadratureLog = field(default_factory=QuadratureLog)
+    log: QuadratureLog = field(default_factory=QuadratureLog)  # replaced by a new log at each quadrature
     closed_limit: object = None  # a SafeFunction of the closed form, for limits at 0/0 points
 
     def on_grid(self, grid: np.ndarray) -> np.ndarray:
@@ -119,10 +128,8 @@ class ResponseEvaluator:
             warnings.simplefilter("always")
             result, error = integrate.quad(lambda s: _growth(P(s) - Pb) * r(s), a, b,
                                            epsabs=0.0, epsrel=QUAD_RTOL, limit=QUAD_SUBINTERVALS)
-        self.log.evaluations += 1
-        self.log.largest_error = max(self.log.largest_error, abs(error))
-        if any(issubclass(w.category, (integrate.IntegrationWarning, RuntimeWarning)) for w in caught):
-            self.log.troubled += 1
+        troubled = any(issubclass(w.category, (integrate.IntegrationWarning, RuntimeWarning)) for w in caught)
+        self.log = self.log.adding(error, troubled)
         return result
 
 

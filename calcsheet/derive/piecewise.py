@@ -1,9 +1,9 @@
 """Switched models: one derivation per interval, joined by continuity of the unknown.
 
-Each interval is an ordinary Model (its own parameters or forcing) whose initial value is the
-value the previous interval reaches at the switch. Values, levels and criteria are then taken
-across the whole piecewise response, and an independent integration of the switched equations
-(scipy, interval after interval, carrying the state across each switch) checks it.
+The loader gives the law in force after each switch (``Switch.law``) but no start value: that is
+the value the previous interval reaches at the switch, so each interval's Model is built here, once
+the interval before it has been derived. Values, levels and criteria are then taken across the
+whole piecewise response, and ``switched_checks`` verifies it independently.
 """
 
 from __future__ import annotations
@@ -11,11 +11,10 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 
 import numpy as np
-from scipy.integrate import solve_ivp
 
 from calcsheet.derive.derivation import Derivation, derive
 from calcsheet.derive.numbers import SEARCH_SCALES, Numbers, ValueAt, reach_for, verdict_for
-from calcsheet.derive.verify import AGREEMENT, ODE_METHOD, RTOL, Check, Verification, slope_function, bound
+from calcsheet.derive.switched_checks import SwitchedVerification, verify_switched
 from calcsheet.model import Model, Point
 from calcsheet.source.units import from_si, registry
 
@@ -25,52 +24,63 @@ class Interval:
     start: float  # SI
     end: float | None  # SI; None for the last interval
     text: str  # what happens at its start
-    derivation: Derivation
+    derivation: Derivation  # of the interval's own Model: the law in force, started from the value carried over
+    carried: tuple[tuple[str, str], ...] = ()  # states of the kind's law carried over the switch, as shown
 
 
 @dataclass(frozen=True)
-class PiecewiseDerivation:
-    model: Model
+class SwitchedDerivation:
+    model: Model  # as loaded: the first interval's law, the input's initial condition, the switches
     intervals: tuple[Interval, ...]
-    numbers: Numbers  # across the whole response
-    verification: Verification  # the switched system integrated independently
+    numbers: Numbers  # across the whole response: values, levels and criteria; the last interval's tau and final value
+    verification: SwitchedVerification
     curve: tuple[tuple[float, float], ...]
 
     @property
     def passed(self) -> bool:
-        return (self.numbers.all_passed and self.verification.passed
-                and all(i.derivation.verification.passed for i in self.intervals))
+        return self.numbers.all_passed and self.verification.passed
 
 
-def derive_piecewise(model: Model) -> PiecewiseDerivation:
+def derive_piecewise(model: Model) -> SwitchedDerivation:
     intervals = _derive_intervals(model)
     grid, samples = _scan(intervals)
-    y = _Joined(intervals)
+    y = Joined(intervals)
     last = intervals[-1].derivation.numbers
     values = tuple(ValueAt(p, y(p.si)) for p in model.evaluate_at)
     reaches = tuple(reach_for(level, y, grid, samples, last.final_value, model) for level in model.reach)
-    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, model) for c in model.criteria)
+    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, model)
+                     for c in model.criteria)
     curve = tuple(point for i in intervals for point in i.derivation.curve)
     span = (model.initial_at.si, curve[-1][0])
     numbers = replace(last, values=values, reach=reaches, verdicts=verdicts, span=span, sine=None)
     checked = sorted({v.at.si for v in values} | {x for x, _ in curve[:: max(len(curve) // 16, 1)]})
-    return PiecewiseDerivation(model, intervals, numbers, _switched_integration(model, intervals, y, checked), curve)
+    verification = verify_switched(model, intervals, y, checked)
+    return SwitchedDerivation(model, _with_final_quadrature(intervals), numbers, verification, curve)
+
+
+def interval_model(model: Model, index: int, start_value: Point) -> Model:
+    """The Model of interval ``index`` (0 is the first): the law in force from its switch, started at the
+    switch from ``start_value``; the requests across the whole response stay with the switched model."""
+    if index == 0:
+        local = replace(model, initial_value=start_value)
+    else:
+        switch = model.switches[index - 1]
+        local = replace(model, **switch.law.fields(), initial_at=switch.at, initial_value=start_value)
+    return replace(local, evaluate_at=(), reach=(), criteria=(), switches=())
 
 
 def _derive_intervals(model: Model) -> tuple[Interval, ...]:
-    models = [model] + [s.model for s in model.switches]
     starts = [model.initial_at.si] + [s.at.si for s in model.switches]
     ends = starts[1:] + [None]
     texts = ["start"] + [s.text for s in model.switches]
+    carried = [()] + [s.carried for s in model.switches]
     unit = model.unknown.unit
     intervals, y_start = [], model.initial_value
-    for k, (local, start, end, text) in enumerate(zip(models, starts, ends, texts)):
+    for k, (start, end, text) in enumerate(zip(starts, ends, texts)):
         inside = tuple(p for p in model.evaluate_at if p.si >= start and (end is None or p.si < end))
         plot_to = _point(end, model.variable) if end is not None else model.plot_to
-        local = replace(local, initial_value=y_start, evaluate_at=inside, reach=(), criteria=(),
-                        plot_to=plot_to, switches=())
-        d = derive(local)
-        intervals.append(Interval(start, end, text, d))
+        d = derive(replace(interval_model(model, k, y_start), evaluate_at=inside, plot_to=plot_to))
+        intervals.append(Interval(start, end, text, d, carried[k]))
         if end is not None:
             value = d.response(end)
             shown = from_si(value, unit)
@@ -79,13 +89,21 @@ def _derive_intervals(model: Model) -> tuple[Interval, ...]:
     return tuple(intervals)
 
 
+def _with_final_quadrature(intervals) -> tuple[Interval, ...]:
+    """Each interval with its quadrature log as it stands once every evaluation across the switches is done."""
+    return tuple(i if i.derivation.quadrature is None
+                 else replace(i, derivation=replace(i.derivation, quadrature=i.derivation.response.log))
+                 for i in intervals)
+
+
 def _point(si: float, declared) -> Point:
     shown = from_si(si, declared.unit)
     return Point(f"{shown:.6g} {declared.unit_text}", registry().Quantity(shown, declared.unit), si)
 
 
-class _Joined:
-    """y(x) of the whole switched response: each x is answered by the interval it falls in."""
+class Joined:
+    """y(x) of the whole switched response: each x is answered by the interval it falls in (a switch
+    instant by the interval that starts there)."""
 
     def __init__(self, intervals):
         self.intervals = intervals
@@ -109,48 +127,3 @@ def _scan(intervals) -> tuple[np.ndarray, np.ndarray]:
         grids.append(grid[keep])
         samples.append(values[keep])
     return np.concatenate(grids), np.concatenate(samples)
-
-
-def _switched_integration(model: Model, intervals, y, points: list[float]) -> Verification:
-    """Integrate each interval's own equation with scipy, carrying the state across the switches."""
-    state, compared = model.initial_value.si, []
-    scale = max([abs(state)] + [abs(y(p)) for p in points] + [1e-300])  # for the absolute tolerance
-    for interval in intervals:
-        local = interval.derivation.model
-        inside = [p for p in points if p >= interval.start and (interval.end is None or p < interval.end)]
-        stop = interval.end if interval.end is not None else max(inside + [interval.start])
-        targets = sorted(set(inside) | {stop})
-        if stop > interval.start:
-            result = solve_ivp(slope_function(local), (interval.start, stop), [state], method=ODE_METHOD,
-                               t_eval=targets, rtol=RTOL, atol=RTOL * scale * 1e-2)
-            if not result.success:
-                failed = Check("switched integration", False, ODE_METHOD, f"the integrator failed: {result.message}")
-                return Verification(failed, failed, failed, ())
-            compared += [(float(x), y(float(x)), float(v)) for x, v in zip(result.t, result.y[0]) if x in inside]
-            state = float(result.y[0][-1])
-    size = max((abs(n) for _, _, n in compared), default=1.0)
-    worst = max((abs(d - n) / max(abs(n), 1e-9 * size) for _, d, n in compared), default=0.0)
-    method = (f"scipy solve_ivp, {ODE_METHOD}, rtol {RTOL:.0e}, on each interval's equation as stated, the state "
-              "carried across every switch")
-    check = Check("switched integration", worst <= AGREEMENT, method,
-                  f"largest relative difference {bound(worst)} over {len(compared)} points (limit {AGREEMENT:.0e})",
-                  worst)
-    return Verification(_per_interval(intervals), _continuity(intervals, size), check, tuple(compared))
-
-
-def _per_interval(intervals) -> Check:
-    passed = all(i.derivation.verification.passed for i in intervals)
-    return Check("each interval", passed, "substitution, initial condition and integration per interval",
-                 "all intervals verified (see each interval's verification step)" if passed
-                 else "an interval failed its own verification")
-
-
-def _continuity(intervals, size: float) -> Check:
-    """The unknown does not jump at a switch: the end of one interval is the start of the next."""
-    worst = 0.0
-    for before, after in zip(intervals, intervals[1:]):
-        left = before.derivation.response(before.end)
-        right = after.derivation.response(after.start)
-        worst = max(worst, abs(left - right) / max(abs(left), 1e-9 * size, 1e-300))
-    return Check("continuity at the switches", worst <= 1e-9, "numeric, both sides of every switch",
-                 f"largest relative jump {bound(worst)} (limit 1e-09)", worst)

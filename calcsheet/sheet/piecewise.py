@@ -8,11 +8,12 @@ from calcsheet.sheet import cautions
 from calcsheet.sheet.compose import checks_table, compose, criteria_table, reach_table, values_table, _outcome
 from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
-from calcsheet.sheet.quantities import in_units, record_value
-from calcsheet.sheet.record import results_record, verification_record
+from calcsheet.sheet.quantities import in_units
+from calcsheet.sheet.record import build_switched_record
 
 
 def compose_piecewise(pd) -> Sheet:
+    """The sheet of a SwitchedDerivation (derive/piecewise.py)."""
     parts = [compose(interval.derivation) for interval in pd.intervals]
     first = parts[0]
     sections = [Section("response", "Response at a glance", (response_figure(pd),)),
@@ -21,8 +22,7 @@ def compose_piecewise(pd) -> Sheet:
         sections += [Section(f"i{k}_{s.key}", f"Interval {k}, step {s.number}: {s.title}", s.blocks)
                      for s in part.sections if s.number]
     sections.append(_across(pd))
-    record = {**first.record, "intervals": [_interval_record(i, p) for i, p in zip(pd.intervals, parts)],
-              **_combined_record(pd)}
+    record = build_switched_record(pd, [part.record for part in parts])
     notes = cautions.hazard_notes(pd.model, tuple(y for _, y in pd.curve))
     return replace(first, outcome=_outcome(pd), sections=tuple(sections), record=record,
                    cautions=(cautions.GENERAL,) + notes)
@@ -31,18 +31,17 @@ def compose_piecewise(pd) -> Sheet:
 def _switch_list(pd) -> Section:
     m = pd.model
     rows = []
-    carried = [()] + [s.carried for s in m.switches]
-    for k, (interval, states) in enumerate(zip(pd.intervals, carried), start=1):
+    for k, interval in enumerate(pd.intervals, start=1):
         end = in_units(interval.end, m.variable) if interval.end is not None else "end"
         start_value = interval.derivation.model.initial_value
         rows.append((str(k), f"{in_units(interval.start, m.variable)} to {end}", interval.text,
                      in_units(start_value.si, m.unknown),
-                     "; ".join(f"{name} at the switch = {value}" for name, value in states) or "-"))
+                     "; ".join(f"{name} at the switch = {value}" for name, value in interval.carried) or "-"))
     return Section("switches", "Intervals and switches", (
         Paragraph(f"The model changes at each switch. Every interval is derived on its own below; its initial value "
-                  f"is the value the previous interval reaches at the switch, since {m.unknown.name} cannot jump. Parameters "
-                  "set at a switch stay in force until a later switch changes them, and any other state the law "
-                  "carries (a tank's volume) starts from the value reached at the switch."),
+                  f"is the value the previous interval reaches at the switch, since {m.unknown.name} cannot jump. "
+                  "Parameters set at a switch stay in force until a later switch changes them, and any other state "
+                  "the law carries (a tank's volume) starts from the value reached at the switch."),
         Table(("Interval", f"{m.variable.name}", "At its start", f"{m.unknown.name} at its start",
                "Other states carried over"), tuple(rows)),
     ))
@@ -59,17 +58,3 @@ def _across(pd) -> Section:
         blocks.append(criteria_table(m, num.verdicts))
     blocks.append(checks_table(pd.verification.checks, "Verification across the switches"))
     return Section("across", "Results across the switches", tuple(blocks))
-
-
-def _interval_record(interval, part) -> dict:
-    keep = ("classification", "solution", "time_constant", "final_value", "verification")
-    return {"start": record_value(interval.start, interval.derivation.model.variable),
-            "end": record_value(interval.end, interval.derivation.model.variable),
-            "switch": interval.text, **{k: part.record[k] for k in keep}}
-
-
-def _combined_record(pd) -> dict:
-    m, num = pd.model, pd.numbers
-    return {**results_record(m, num), "verification": verification_record(pd.verification), "passed": pd.passed,
-            "time_constant": record_value(num.time_constant, m.variable),
-            "final_value": record_value(num.final_value, m.unknown)}

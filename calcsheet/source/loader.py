@@ -17,7 +17,7 @@ from typing import Any
 import sympy as sp
 
 from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part, shortened
-from calcsheet.model import Criterion, Declared, Model, Parameter, Point, SheetInfo, Switch
+from calcsheet.model import Criterion, Declared, IntervalLaw, Model, Parameter, Point, SheetInfo, Switch
 from calcsheet.source import expressions as ex
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.source import sheet_keys, units
@@ -228,12 +228,13 @@ class _Builder:
             raw["initial"] = {"at": entry["at"], "value": self.original.get("initial", {}).get("value")}
             if forcing is not None:
                 raw["forcing"] = forcing
-            try:
+            try:  # checked as a whole Model, with the input's initial value; only its law is kept
                 model = _Builder(self.file, raw, start_source=f"switch {index + 1}").build()
             except CalcsheetError as error:
                 raise _prefixed(error, where)
             text = self.string(entry, "text", f"{where}.text") or f"switch {index + 1}"
-            result.append(Switch(at, text, model, tuple((name, shown) for name, (_, shown) in carried.items())))
+            states = tuple((name, shown) for name, (_, shown) in carried.items())
+            result.append(Switch(at, text, _law_of(model), states))
             previous = model
         return tuple(result)
 
@@ -571,6 +572,12 @@ def _prefixed(error, where: str):
         if not inner.key.startswith(where):
             inner.key = f"{where}.{inner.key}" if inner.key else where
     return error
+
+
+def _law_of(model: Model) -> IntervalLaw:
+    """What a switch puts in force: the equation and parameters, without the model's start value."""
+    return IntervalLaw(equation_text=model.equation_text, equation=model.equation, lhs=model.lhs, rhs=model.rhs,
+                       parameters=model.parameters, kind=model.kind, unused_parameters=model.unused_parameters)
 
 
 def _switchable(first: Model, stated: dict) -> set[str]:

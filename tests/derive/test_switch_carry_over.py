@@ -158,3 +158,35 @@ def test_a_carried_state_cannot_be_set_at_a_switch(tmp_path):
     with pytest.raises(CalcsheetError) as info:
         build_sheet(write(tmp_path, text))
     assert "switch[1].parameters.V_0" in str(info.value) and "carried over" in str(info.value)
+
+
+def test_record_v2_holds_the_parameters_in_force_in_each_of_three_intervals(tmp_path):
+    record = build_sheet(write(tmp_path, BODY)).sheet.record
+    assert record["version"] == 2
+    intervals = record["intervals"]
+    assert [(i["from"]["value"], i["to"] and i["to"]["value"]) for i in intervals] == [
+        (0.0, 300.0), (300.0, 600.0), (600.0, None)]
+    in_force = [{p["name"]: p for p in i["parameters"]} for i in intervals]
+    assert (in_force[1]["Q"]["value"], in_force[1]["Q"]["changed"]) == ("0 W", True)
+    assert (in_force[1]["h"]["si"], in_force[1]["h"]["changed"]) == (15.0, False)
+    # the heater stays off after the fan starts: Q = 0 W in force, unchanged, in the third interval
+    assert (in_force[2]["Q"]["value"], in_force[2]["Q"]["changed"]) == ("0 W", False)
+    assert (in_force[2]["h"]["si"], in_force[2]["h"]["changed"]) == (40.0, True)
+    assert not any(p["changed"] or p["carried"] for p in in_force[0].values())
+    # tau = rho c_p V / (h A) and the final value T_inf + Q / (h A) of a lumped body (Newton's law of
+    # cooling with a heat input; common practice, no source)
+    capacity = 2700 * 900 * 1e-4
+    taus = [capacity / (15 * 0.02), capacity / (15 * 0.02), capacity / (40 * 0.02)]
+    assert [i["time_constant"]["value"] for i in intervals] == pytest.approx(taus, rel=1e-3)
+    assert [i["final_value"]["value"] for i in intervals] == pytest.approx([20 + 20 / 0.3, 20, 20], rel=1e-3)
+    assert [v["at"]["value"] for v in record["across"]["values"]] == [200.0, 400.0, 700.0, 1200.0]
+    assert record["across"]["verification"]["passed"]
+
+
+def test_record_v2_marks_a_tank_volume_as_carried(tmp_path):
+    record = build_sheet(write(tmp_path, TANK.format(start="0 min"))).sheet.record
+    second = {p["name"]: p for p in record["intervals"][1]["parameters"]}
+    assert second["V_0"]["carried"] and second["V_0"]["changed"]
+    assert second["V_0"]["si"] == pytest.approx(12.0 + 0.4 * 10, rel=1e-9)  # 0.4 m^3/min net inflow for 10 min
+    assert second["q_in"]["changed"] and not second["q_in"]["carried"]
+    assert not second["q_out"]["changed"]

@@ -105,3 +105,30 @@ def test_switch_errors_name_the_switch(tmp_path, switches, key, fragment):
 def test_demo_with_an_economy_resistor_builds_and_passes():
     built = build_sheet(ROOT / "inputs" / "valve-coil-economiser.toml")
     assert built.derivation.passed and len(built.derivation.intervals) == 2
+
+
+def test_record_v2_gives_each_interval_with_the_parameters_in_force(tmp_path):
+    path = write(tmp_path, RAW.format(at='"0.02 s", "0.3 s"', switches=SWITCHES.format()))
+    record = build_sheet(path).sheet.record
+    assert record["format"] == "calcsheet-record" and record["version"] == 2
+    assert not {"solution", "classification", "time_constant", "final_value", "values"} & set(record)
+    intervals = record["intervals"]
+    assert [(i["from"]["value"], i["to"] and i["to"]["value"]) for i in intervals] == [
+        (0.0, 0.04), (0.04, 0.1), (0.1, None)]
+    assert [i["switch"] for i in intervals] == [None, "series resistor added", "supply removed"]
+    in_force = [{p["name"]: (p["si"], p["changed"]) for p in i["parameters"]} for i in intervals]
+    assert in_force[0] == {"L": (0.5, False), "R": (10.0, False), "V_s": (12.0, False)}
+    assert in_force[1] == {"L": (0.5, False), "R": (25.0, True), "V_s": (12.0, False)}
+    # the third switch restates R = 25 ohm: in force, not changed
+    assert in_force[2] == {"L": (0.5, False), "R": (25.0, False), "V_s": (0.0, True)}
+    # tau = L/R and the final value V_s/R of each interval (first-order RL circuit; common practice, no source)
+    assert [i["time_constant"]["value"] for i in intervals] == pytest.approx([0.05, 0.02, 0.02], rel=1e-9)
+    assert [i["final_value"]["value"] for i in intervals] == pytest.approx([1.2, 0.48, 0.0], abs=1e-12)
+    # each interval starts where the one before ends: 1.2 A (1 - exp(-10 x 0.04 / 0.5)) at the first switch
+    assert intervals[1]["initial"]["value"] == pytest.approx(1.2 * (1 - math.exp(-0.8)), rel=1e-3)
+    assert all(i["solution"]["closed_form"] and i["verification"]["passed"] for i in intervals)
+    across = record["across"]
+    assert [v["at"]["value"] for v in across["values"]] == [0.02, 0.3]
+    assert [c["name"] for c in across["verification"]["checks"]] == [
+        "each interval", "continuity at the switches", "switched integration"]
+    assert across["verification"]["passed"] and record["passed"]

@@ -61,17 +61,21 @@ def test_records_match_golden_files(built, demo, ext):
 def test_json_record_has_the_promised_fields(built, demo):
     first, _, _ = built
     record = json.loads((first / f"{demo.stem}.json").read_text(encoding="utf-8"))
-    assert record["format"] == "calcsheet-record" and record["version"] == 1
-    for key in ("classification", "solution", "time_constant", "final_value", "values", "reach", "criteria",
-                "verification"):
-        assert key in record
-    assert isinstance(record["solution"]["closed_form"], bool)
-    for value in record["values"]:
+    assert record["format"] == "calcsheet-record" and record["version"] == 2
+    # version 2: a switched model gives each interval's own results apart from those across the response
+    intervals, across = record.get("intervals", [record]), record.get("across", record)
+    for interval in intervals:
+        for key in ("classification", "solution", "time_constant", "final_value", "verification"):
+            assert key in interval
+        assert isinstance(interval["solution"]["closed_form"], bool)
+    for key in ("values", "reach", "criteria", "verification"):
+        assert key in across
+    for value in across["values"]:
         assert set(value["at"]) == {"value", "unit"} and set(value["value"]) == {"value", "unit"}
-    for reach in record["reach"]:
+    for reach in across["reach"]:
         assert reach["at"] is None or set(reach["at"]) == {"value", "unit"}
-    assert all(isinstance(c["passed"], bool) for c in record["criteria"])
-    assert record["verification"]["passed"] is True
+    assert all(isinstance(c["passed"], bool) for c in across["criteria"])
+    assert across["verification"]["passed"] is True
 
 
 @pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
