@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+
 from calcsheet.kinds import all_kinds, kind_named
 from calcsheet.kinds.base import Kind
 
@@ -36,7 +38,7 @@ def starter_text(name: str) -> str:
         f"# Starter input for the kind {kind.name}: {kind.title}.\n"
         f"# Governing law: {kind.law}.\n"
         f"# The example values are invented; replace them and the texts with your own.\n\n"
-        f"{kind.starter.strip()}\n\n"
+        f"{_sheet_header(kind)}\n\n{kind.starter.requests.strip()}\n\n"
         f"[model]\nkind = \"{kind.name}\"\n"
         f"unknown = \"{kind.unknown.name} [{kind.unknown.unit}]\"    # {kind.unknown.meaning}\n"
         f"variable = \"{kind.variable.name} [{kind.variable.unit}]\"   # {kind.variable.meaning}\n\n"
@@ -44,6 +46,18 @@ def starter_text(name: str) -> str:
         f"[initial]\nat = \"0 {kind.variable.unit}\"\nvalue = \"{kind.unknown.example}\"\n"
         + _forcing_hint(kind)
     )
+
+
+# The [sheet] entries every starter shares; the title, number and purpose are the kind's own.
+_SHARED_SHEET = (("revision", "A"), ("project", "Example project (edit)"), ("originator", "Your name"))
+
+
+def _sheet_header(kind: Kind) -> str:
+    """The starter's [sheet] table, from the kind's Starter and the entries every starter shares."""
+    starter = kind.starter
+    entries = (("title", starter.title), ("number", starter.number), *_SHARED_SHEET, ("purpose", starter.purpose))
+    # a JSON string is a TOML basic string for the texts we write here (our own text, quotes escaped)
+    return "[sheet]\n" + "\n".join(f"{key} = {json.dumps(value, ensure_ascii=False)}" for key, value in entries)
 
 
 def _forcing_hint(kind: Kind) -> str:

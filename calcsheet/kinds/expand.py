@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 from calcsheet.errors import InputError, key_part
 from calcsheet.kinds import kind_named
-from calcsheet.kinds.base import START_SLOT, Kind, KindUse, Note, check_slot_dimension
+from calcsheet.kinds.base import START_SLOT, Kind, KindUse, check_slot_dimension
 from calcsheet.kinds.forcing import forcing_from_table
 from calcsheet.source import units
 from calcsheet.source.loader_support import declared_parts
@@ -60,7 +60,8 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table, start=None, 
     if shifted:
         params[START_SLOT] = {"value": start, "source": start_source or "start of the interval"}
     table = {"equation": equation, "unknown": unknown, "variable": variable}
-    use = KindUse(kind.name, kind.title, kind.law, kind.law_steps, kind.assumptions, forcing=words,
+    use = KindUse(kind.name, kind.title, kind.law, kind.shifted_law_steps if shifted else kind.law_steps,
+                  kind.assumptions, findings=tuple(kind.findings.items()), forcing=words,
                   frequency=frequency, slot_names=tuple(s.name for s in kind.slots))
     return Expanded(table, params, use)
 
@@ -70,7 +71,7 @@ def kind_checks(use: KindUse, parameters) -> KindUse:
     kind = kind_named(use.name)
     values = {p.name: p.si for p in parameters}
     try:
-        return replace(use, notes=tuple(map(Note.of, kind.checks(values))), limit=kind.limit(values))
+        return replace(use, notes=tuple(kind.checks(values)), limit=kind.limit(values))
     except (ArithmeticError, ValueError):  # a check dividing by a parameter of zero, say
         zeros = [s.name for s in kind.slots if values.get(s.name) == 0]
         named = f": {', '.join(zeros)} = 0" if zeros else ""

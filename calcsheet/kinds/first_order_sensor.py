@@ -9,22 +9,18 @@ from __future__ import annotations
 
 import math
 
-from calcsheet.kinds.base import Kind, Slot, Note, info, invalid, warning
+from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid, warning
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     tau, gain = values["tau"], values["K"]
     if tau <= 0:
-        return (invalid("the time constant tau must be positive; with tau <= 0 the equation does not "
-                        "describe a sensor that settles.", "first_order_sensor.tau_not_positive"),)
+        return (invalid("first_order_sensor.tau_not_positive"),)
     # Response times of a first-order sensor to a step: t50 = ln(2)*tau, t90 = ln(10)*tau
     # (common practice, no source).
-    notes = [info(f"Step response times: t50 = ln 2 * tau = {math.log(2) * tau:.4g} s, "
-             f"t90 = ln 10 * tau = {math.log(10) * tau:.4g} s.")]
+    notes = [info("first_order_sensor.response_times", t50=math.log(2) * tau, t90=math.log(10) * tau)]
     if not math.isclose(gain, 1.0, rel_tol=1e-12):
-        notes.append(warning(f"K = {gain:.4g} multiplies the absolute temperature in kelvin; a probe that reads "
-                             "the medium's temperature has K = 1, and a calibration error is better stated as an "
-                             "offset.", "first_order_sensor.gain_not_one"))
+        notes.append(warning("first_order_sensor.gain_not_one", K=gain))
     return tuple(notes)
 
 
@@ -55,20 +51,25 @@ KIND = Kind(
     ),
     source="T_m",
     checks=_checks,
-    starter='''[sheet]
-title = "Probe plunged into a hot rinse bath (example, edit)"
-number = "IN-101"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Time for a probe at 20 degC, plunged into a bath at 80 degC, to read within 1 K of the bath."
-
-[evaluate]
+    findings={
+        "first_order_sensor.tau_not_positive": "the time constant tau must be positive; with tau <= 0 the equation "
+                                               "does not describe a sensor that settles.",
+        "first_order_sensor.response_times": "Step response times: t50 = ln 2 * tau = {t50} s, "
+                                             "t90 = ln 10 * tau = {t90} s.",
+        "first_order_sensor.gain_not_one": "K = {K} multiplies the absolute temperature in kelvin; a probe that "
+                                           "reads the medium's temperature has K = 1, and a calibration error is "
+                                           "better stated as an offset.",
+    },
+    starter=Starter(
+        title="Probe plunged into a hot rinse bath (example, edit)",
+        number="IN-101",
+        purpose="Time for a probe at 20 degC, plunged into a bath at 80 degC, to read within 1 K of the bath.",
+        requests='''[evaluate]
 at = ["5 s", "10 s", "30 s"]
 reach = ["79 degC"]
 
 [[criteria]]
 text = "Reading within 1 K of the bath within 30 s"
 check = "reach(79 degC) <= 30 s"
-''',
+'''),
 )

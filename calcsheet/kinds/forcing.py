@@ -38,14 +38,16 @@ FORMS = {form.name: form for form in (
     Form("ramp", "a ramp", (Role("start", "start", "source", "0"), Role("rate", "rate", "rate"),
                             Role("from", "from", "variable", "0")),
          "{start} + {rate}*({x} - {from})*step({x} - {from})"),
-    Form("sine", "a sinusoid", (Role("amplitude", "amp", "source", difference=True), Role("frequency", "freq", "frequency"),
+    Form("sine", "a sinusoid", (Role("amplitude", "amp", "source", difference=True),
+                                Role("frequency", "freq", "frequency"),
                                 Role("phase", "phase", "angle", "0"), Role("offset", "offset", "source", "0")),
          "{offset} + {amp}*sin(2*pi*{freq}*{x} + {phase})"),
     Form("exponential", "a decaying exponential",
          (Role("initial", "initial", "source"), Role("final", "final", "source", "0"),
           Role("time_constant", "tau", "variable")),
          "{final} + ({initial} - {final})*exp(-({x})/{tau})"),
-    Form("pulse", "a rectangular pulse", (Role("base", "base", "source", "0"), Role("height", "height", "source", difference=True),
+    Form("pulse", "a rectangular pulse", (Role("base", "base", "source", "0"),
+                                          Role("height", "height", "source", difference=True),
                                           Role("start", "start", "variable"), Role("width", "width", "variable")),
          "{base} + {height}*(step({x} - {start}) - step({x} - {start} - {width}))"),
 )}
@@ -102,7 +104,8 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
 
 def role_keys(table, source: str) -> dict[str, str]:
     """Each parameter a form generates, with the [forcing] key it comes from: V_s_tau -> forcing.time_constant."""
-    form = FORMS.get(table.get("form", "").strip()) if isinstance(table, dict) and isinstance(table.get("form"), str) else None
+    named = table.get("form") if isinstance(table, dict) else None
+    form = FORMS.get(named.strip()) if isinstance(named, str) else None
     return {f"{source}_{r.suffix}": f"forcing.{r.key}" for r in form.roles} if form and source else {}
 
 

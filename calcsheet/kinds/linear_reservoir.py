@@ -2,37 +2,20 @@
 
 import math
 
-from calcsheet.kinds.base import Kind, Slot, Note, info, invalid, warning
-
-
-def _number(value: float) -> str:
-    return f"{float(f'{value:.4g}'):.12g}"
-
-
-def _duration(seconds: float) -> str:
-    text = f"{_number(seconds)} s"
-    for limit, size, unit in ((2 * 86400, 86400, "d"), (2 * 3600, 3600, "h"), (120, 60, "min")):
-        if abs(seconds) >= limit:
-            return f"{text} ({_number(seconds / size)} {unit})"
-    return text
+from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid, warning
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     k = values["k"]
     if k <= 0:
-        return (invalid(f"the storage constant k = {_number(k)} s is not positive; a linear reservoir "
-                        "needs k > 0 (outflow S/k leaving a positive storage).", "linear_reservoir.k_not_positive"),)
-    notes = [info(f"Outflow Q_out = S/k with k = {_duration(k)}; with no inflow the storage and the outflow halve "
-             f"every k*ln 2 = {_duration(k * math.log(2))}.", "linear_reservoir.halving")]
+        return (invalid("linear_reservoir.k_not_positive", k=k),)
+    notes = [info("linear_reservoir.halving", k=k, halving=k * math.log(2))]
     q_in = values.get("Q_in")
     if q_in is not None:
         if q_in < 0:
-            notes.append(warning("the inflow Q_in is negative, i.e. a withdrawal; the storage may fall below "
-                                 "zero, where the outflow law S/k no longer means anything.",
-                                 "linear_reservoir.withdrawal"))
+            notes.append(warning("linear_reservoir.withdrawal", Q_in=q_in))
         else:
-            notes.append(info(f"With the inflow held at Q_in = {_number(q_in)} m^3/s the storage settles at "
-                         f"S = k*Q_in = {_number(k * q_in)} m^3, where the outflow equals the inflow.", "linear_reservoir.settles"))
+            notes.append(info("linear_reservoir.settles", Q_in=q_in, storage=k * q_in))
     return tuple(notes)
 
 
@@ -66,15 +49,21 @@ KIND = Kind(
     ),
     source="Q_in",
     checks=_checks,
-    starter='''[sheet]
-title = "Storage in the detention basin during a steady storm inflow"
-number = "HY-052"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Storage in the detention basin while a steady storm inflow lasts, against its usable volume."
-
-[evaluate]
+    findings={
+        "linear_reservoir.k_not_positive": "the storage constant k = {k} s is not positive; a linear reservoir "
+                                           "needs k > 0 (outflow S/k leaving a positive storage).",
+        "linear_reservoir.halving": "Outflow Q_out = S/k with k = {k:duration}; with no inflow the storage and the "
+                                    "outflow halve every k*ln 2 = {halving:duration}.",
+        "linear_reservoir.withdrawal": "the inflow Q_in is negative, i.e. a withdrawal; the storage may fall below "
+                                       "zero, where the outflow law S/k no longer means anything.",
+        "linear_reservoir.settles": "With the inflow held at Q_in = {Q_in} m^3/s the storage settles at "
+                                    "S = k*Q_in = {storage} m^3, where the outflow equals the inflow.",
+    },
+    starter=Starter(
+        title="Storage in the detention basin during a steady storm inflow",
+        number="HY-052",
+        purpose="Storage in the detention basin while a steady storm inflow lasts, against its usable volume.",
+        requests='''[evaluate]
 at = ["2 h", "6 h", "12 h"]
 reach = ["70000 m^3"]
 
@@ -85,5 +74,5 @@ check = "S(12 h) <= 90000 m^3"
 [[criteria]]
 text = "Storage reaches 70000 m^3 (the spillway alarm level) no sooner than 2 hours into the storm"
 check = "reach(70000 m^3) >= 2 h"
-''',
+'''),
 )

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from calcsheet.kinds.base import Kind, Slot, Note, info, invalid
+from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid
 
 # Lumped-capacitance analysis is accepted while the Biot number Bi = h*Lc/k, with Lc = V/A, stays at or
 # below 0.1 (standard heat-transfer texts, e.g. Incropera et al., Fundamentals of Heat and Mass Transfer,
@@ -14,17 +14,12 @@ BIOT_LIMIT = 0.1
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     volume, area, h, k = values["V"], values["A"], values["h"], values["k"]
     if volume <= 0 or area <= 0 or k <= 0:
-        return (invalid("V, A and k must be positive for the Biot number Bi = h*Lc/k, Lc = V/A; "
-                        "a body with them zero or negative is not a physical body, and the validity of the "
-                        "lumped model cannot be checked.", "lumped_body.properties_not_positive"),)
+        return (invalid("lumped_body.properties_not_positive"),)
     length = volume / area
     biot = h * length / k
-    notes = [info(f"Biot number Bi = h*Lc/k = {biot:.3g} with characteristic length Lc = V/A = {length:.4g} m; "
-             f"the lumped model holds for Bi <= {BIOT_LIMIT:g} (common practice in heat transfer).", "lumped_body.biot")]
+    notes = [info("lumped_body.biot", biot=biot, length=length, limit=BIOT_LIMIT)]
     if biot > BIOT_LIMIT:
-        notes.append(invalid(f"Bi = {biot:.3g} exceeds {BIOT_LIMIT:g}: the temperature inside the body is not "
-                             "uniform, so the lumped model is not valid; a transient conduction analysis is needed.",
-                             "lumped_body.biot_exceeded"))
+        notes.append(invalid("lumped_body.biot_exceeded", biot=biot, limit=BIOT_LIMIT))
     return tuple(notes)
 
 
@@ -63,15 +58,21 @@ KIND = Kind(
     ),
     source="T_inf",
     checks=_checks,
-    starter='''[sheet]
-title = "Warm-up of a steel mounting block carrying a 10 W heater (example, edit)"
-number = "TH-101"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Temperature of a 100 x 50 x 20 mm steel block with a 10 W heater pad, in still air at 20 degC."
-
-[evaluate]
+    findings={
+        "lumped_body.properties_not_positive":
+            "V, A and k must be positive for the Biot number Bi = h*Lc/k, Lc = V/A; a body with them zero or "
+            "negative is not a physical body, and the validity of the lumped model cannot be checked.",
+        "lumped_body.biot": "Biot number Bi = h*Lc/k = {biot} with characteristic length Lc = V/A = {length} m; "
+                            "the lumped model holds for Bi <= {limit:1} (common practice in heat transfer).",
+        "lumped_body.biot_exceeded": "Bi = {biot} exceeds {limit:1}: the temperature inside the body is not "
+                                     "uniform, so the lumped model is not valid; a transient conduction analysis "
+                                     "is needed.",
+    },
+    starter=Starter(
+        title="Warm-up of a steel mounting block carrying a 10 W heater (example, edit)",
+        number="TH-101",
+        purpose="Temperature of a 100 x 50 x 20 mm steel block with a 10 W heater pad, in still air at 20 degC.",
+        requests='''[evaluate]
 at = ["10 min", "30 min", "2 h"]
 reach = ["40 degC"]
 
@@ -82,5 +83,5 @@ check = "final_value <= 60 degC"
 [[criteria]]
 text = "Block below 40 degC for the first 15 min"
 check = "reach(40 degC) >= 15 min"
-''',
+'''),
 )

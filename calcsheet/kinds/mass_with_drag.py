@@ -1,22 +1,11 @@
 """Mass with linear drag: the speed of a body pushed along a line against a resistance proportional to speed."""
 
-from calcsheet.kinds.base import Kind, Note, Slot, invalid, warning
+from calcsheet.kinds.base import Kind, Note, Slot, Starter, positive
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     """Sign checks: a body has m > 0; a drag or damper force opposes the motion, c >= 0."""
-    notes = []
-    drag = values.get("c")
-    if drag is not None and drag == 0:
-        notes.append(warning("c = 0: without drag the body has no terminal speed and keeps "
-                             "accelerating under a steady force.", "mass_with_drag.c_zero"))
-    elif drag is not None and drag < 0:
-        notes.append(invalid("c is negative; drag opposes the motion, so c is positive "
-                             "(with c < 0 the speed grows instead of settling).", "mass_with_drag.c_negative"))
-    mass = values.get("m")
-    if mass is not None and mass < 0:
-        notes.append(invalid("m is negative; a mass is positive, so check the sign.", "mass_with_drag.m_negative"))
-    return tuple(notes)
+    return positive(values, "c", "mass_with_drag", zero_allowed=True) + positive(values, "m", "mass_with_drag")
 
 
 KIND = Kind(
@@ -47,15 +36,18 @@ KIND = Kind(
     ),
     source="F",
     checks=_checks,
-    starter='''[sheet]
-title = "Test-rig carriage pushed against an oil damper"
-number = "ME-401"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Speed of the carriage under the actuator's steady push, and the time to reach 90 % of it."
-
-[evaluate]
+    findings={
+        "mass_with_drag.c_zero": "c = 0: without drag the body has no terminal speed and keeps accelerating "
+                                 "under a steady force.",
+        "mass_with_drag.c_negative": "c is negative; drag opposes the motion, so c is positive (with c < 0 the "
+                                     "speed grows instead of settling).",
+        "mass_with_drag.m_negative": "m is negative; a mass is positive, so check the sign.",
+    },
+    starter=Starter(
+        title="Test-rig carriage pushed against an oil damper",
+        number="ME-401",
+        purpose="Speed of the carriage under the actuator's steady push, and the time to reach 90 % of it.",
+        requests='''[evaluate]
 at = ["0.1 s", "0.2 s", "0.5 s", "1 s"]
 reach = ["0.45 m/s"]
 
@@ -66,5 +58,5 @@ check = "reach(0.45 m/s) <= 1 s"
 [[criteria]]
 text = "Steady speed within the 0.6 m/s rating of the damper"
 check = "final_value <= 0.6 m/s"
-''',
+'''),
 )

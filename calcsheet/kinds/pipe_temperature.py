@@ -2,20 +2,17 @@
 
 from __future__ import annotations
 
-from calcsheet.kinds.base import Kind, Slot, Note, info, invalid
+from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     m_dot, c_p, u, perimeter = values["m_dot"], values["c_p"], values["U"], values["P"]
     if m_dot <= 0 or c_p <= 0:
-        return (invalid("m_dot and c_p must be positive: x runs in the direction of flow, from the inlet.",
-                        "pipe_temperature.flow_not_positive"),)
+        return (invalid("pipe_temperature.flow_not_positive"),)
     if u <= 0 or perimeter <= 0:
-        return (invalid("U and P must be positive for heat to flow from the warmer to the colder side.",
-                        "pipe_temperature.transfer_not_positive"),)
+        return (invalid("pipe_temperature.transfer_not_positive"),)
     per_length = u * perimeter
-    return (info(f"Heat loss per unit length and kelvin of difference U*P = {per_length:.4g} W/(m*K); over a length L "
-            f"the number of transfer units is NTU = U*P*L/(m_dot*c_p) = L/({m_dot * c_p / per_length:.4g} m).", "pipe_temperature.ntu"),)
+    return (info("pipe_temperature.ntu", per_length=per_length, length=m_dot * c_p / per_length),)
 
 
 KIND = Kind(
@@ -52,20 +49,24 @@ KIND = Kind(
     ),
     source="T_s",
     checks=_checks,
-    starter='''[sheet]
-title = "Hot-water line across an unheated hall (example, edit)"
-number = "TH-201"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Water temperature along a 250 m insulated line carrying 0.5 kg/s of water at 80 degC."
-
-[evaluate]
+    findings={
+        "pipe_temperature.flow_not_positive": "m_dot and c_p must be positive: x runs in the direction of flow, "
+                                              "from the inlet.",
+        "pipe_temperature.transfer_not_positive": "U and P must be positive for heat to flow from the warmer to the "
+                                                  "colder side.",
+        "pipe_temperature.ntu": "Heat loss per unit length and kelvin of difference U*P = {per_length} W/(m*K); over "
+                                "a length L the number of transfer units is NTU = U*P*L/(m_dot*c_p) = L/({length} m).",
+    },
+    starter=Starter(
+        title="Hot-water line across an unheated hall (example, edit)",
+        number="TH-201",
+        purpose="Water temperature along a 250 m insulated line carrying 0.5 kg/s of water at 80 degC.",
+        requests='''[evaluate]
 at = ["50 m", "100 m", "250 m"]
 reach = ["75 degC"]
 
 [[criteria]]
 text = "Water arrives at the far end (250 m) at 74 degC or above"
 check = "T(250 m) >= 74 degC"
-''',
+'''),
 )

@@ -1,22 +1,11 @@
 """Rotating inertia with viscous friction: the shaft speed when a torque drives it."""
 
-from calcsheet.kinds.base import Kind, Note, Slot, invalid, warning
+from calcsheet.kinds.base import Kind, Note, Slot, Starter, positive
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     """Sign checks: a rotating body has J > 0; viscous friction takes energy out, b >= 0."""
-    notes = []
-    friction = values.get("b")
-    if friction is not None and friction == 0:
-        notes.append(warning("b = 0: without friction the shaft has no steady speed and keeps "
-                             "accelerating under a steady torque; bearings, seals and windage always give some b.", "rotating_inertia.b_zero"))
-    elif friction is not None and friction < 0:
-        notes.append(invalid("b is negative; viscous friction opposes the motion, so b is positive "
-                             "(with b < 0 the speed grows instead of settling).", "rotating_inertia.b_negative"))
-    inertia = values.get("J")
-    if inertia is not None and inertia < 0:
-        notes.append(invalid("J is negative; a moment of inertia is positive, so check the sign.", "rotating_inertia.J_negative"))
-    return tuple(notes)
+    return positive(values, "b", "rotating_inertia", zero_allowed=True) + positive(values, "J", "rotating_inertia")
 
 
 KIND = Kind(
@@ -48,15 +37,18 @@ KIND = Kind(
     ),
     source="T_d",
     checks=_checks,
-    starter='''[sheet]
-title = "Run-up of a test-rig flywheel to working speed"
-number = "ME-301"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Time for the flywheel to reach its 250 rad/s (about 2400 rpm) working speed under the motor's steady torque."
-
-[evaluate]
+    findings={
+        "rotating_inertia.b_zero": "b = 0: without friction the shaft has no steady speed and keeps accelerating "
+                                   "under a steady torque; bearings, seals and windage always give some b.",
+        "rotating_inertia.b_negative": "b is negative; viscous friction opposes the motion, so b is positive "
+                                       "(with b < 0 the speed grows instead of settling).",
+        "rotating_inertia.J_negative": "J is negative; a moment of inertia is positive, so check the sign.",
+    },
+    starter=Starter(
+        title="Run-up of a test-rig flywheel to working speed",
+        number="ME-301",
+        purpose="Time for the flywheel to reach its 250 rad/s (about 2400 rpm) working speed under the motor's steady torque.",
+        requests='''[evaluate]
 at = ["10 s", "20 s", "60 s"]
 reach = ["250 rad/s"]
 
@@ -67,5 +59,5 @@ check = "reach(250 rad/s) <= 60 s"
 [[criteria]]
 text = "Steady speed below the 314 rad/s (3000 rpm) limit of the bearings"
 check = "final_value <= 314 rad/s"
-''',
+'''),
 )

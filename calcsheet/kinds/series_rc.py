@@ -1,6 +1,6 @@
 """Series RC circuit: the capacitor voltage when a source drives it through a resistor."""
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Slot, Starter
 
 KIND = Kind(
     name="series_rc",
@@ -25,20 +25,16 @@ KIND = Kind(
         "The source's internal resistance is included in R.",
     ),
     source="V_s",
-    starter='''[sheet]
-title = "Charging of the hold-up capacitor of a door controller"
-number = "EL-101"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Time for the hold-up capacitor to charge to 20 V after power-up."
-
-[evaluate]
+    starter=Starter(
+        title="Charging of the hold-up capacitor of a door controller",
+        number="EL-101",
+        purpose="Time for the hold-up capacitor to charge to 20 V after power-up.",
+        requests='''[evaluate]
 at = ["1 s", "5 s", "10 s"]
 reach = ["20 V"]
 
 [[criteria]]
 text = "Capacitor above 20 V within 15 s of power-up"
 check = "reach(20 V) <= 15 s"
-''',
+'''),
 )

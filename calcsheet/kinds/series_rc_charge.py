@@ -1,6 +1,6 @@
 """Series RC circuit written for the capacitor's charge rather than its voltage."""
 
-from calcsheet.kinds.base import Kind, Slot
+from calcsheet.kinds.base import Kind, Slot, Starter
 from calcsheet.kinds.series_rc import KIND as VOLTAGE_FORM
 
 KIND = Kind(
@@ -19,19 +19,15 @@ KIND = Kind(
     ),
     assumptions=VOLTAGE_FORM.assumptions,
     source="V_s",
-    starter='''[sheet]
-title = "Charge delivered to the hold-up capacitor of a door controller"
-number = "EL-102"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Charge stored in the hold-up capacitor ten seconds after power-up."
-
-[evaluate]
+    starter=Starter(
+        title="Charge delivered to the hold-up capacitor of a door controller",
+        number="EL-102",
+        purpose="Charge stored in the hold-up capacitor ten seconds after power-up.",
+        requests='''[evaluate]
 at = ["1 s", "5 s", "10 s"]
 
 [[criteria]]
 text = "At least 9 mC stored 10 s after power-up"
 check = "q(10 s) >= 9 mC"
-''',
+'''),
 )

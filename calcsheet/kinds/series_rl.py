@@ -1,23 +1,11 @@
 """Series RL circuit: the inductor current when a source drives it through a resistance."""
 
-from calcsheet.kinds.base import Kind, Note, Slot, invalid, warning
+from calcsheet.kinds.base import Kind, Note, Slot, Starter, positive
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
     """Sign checks a circuit engineer makes first: a passive coil has R > 0 and L > 0."""
-    notes = []
-    resistance = values.get("R")
-    if resistance is not None and resistance == 0:
-        notes.append(warning("R = 0: with no resistance in the loop the current never settles and "
-                             "rises without limit under a steady source; include the winding resistance of "
-                             "the coil and the internal resistance of the source in R.", "series_rl.R_zero"))
-    elif resistance is not None and resistance < 0:
-        notes.append(invalid("R is negative; a passive resistance is positive, so check the sign "
-                             "(with R < 0 the current grows instead of settling).", "series_rl.R_negative"))
-    inductance = values.get("L")
-    if inductance is not None and inductance < 0:
-        notes.append(invalid("L is negative; the inductance of a coil is positive, so check the sign.", "series_rl.L_negative"))
-    return tuple(notes)
+    return positive(values, "R", "series_rl", zero_allowed=True) + positive(values, "L", "series_rl")
 
 
 KIND = Kind(
@@ -47,15 +35,19 @@ KIND = Kind(
     ),
     source="V_s",
     checks=_checks,
-    starter='''[sheet]
-title = "Current rise in the coil of a 24 V solenoid valve"
-number = "EL-201"
-revision = "A"
-project = "Example project (edit)"
-originator = "Your name"
-purpose = "Time for the coil current to reach the 0.15 A pull-in current after the supply is switched on."
-
-[evaluate]
+    findings={
+        "series_rl.R_zero": "R = 0: with no resistance in the loop the current never settles and rises without "
+                            "limit under a steady source; include the winding resistance of the coil and the "
+                            "internal resistance of the source in R.",
+        "series_rl.R_negative": "R is negative; a passive resistance is positive, so check the sign (with R < 0 the "
+                                "current grows instead of settling).",
+        "series_rl.L_negative": "L is negative; the inductance of a coil is positive, so check the sign.",
+    },
+    starter=Starter(
+        title="Current rise in the coil of a 24 V solenoid valve",
+        number="EL-201",
+        purpose="Time for the coil current to reach the 0.15 A pull-in current after the supply is switched on.",
+        requests='''[evaluate]
 at = ["2 ms", "5 ms", "10 ms", "25 ms"]
 reach = ["0.15 A"]
 
@@ -66,5 +58,5 @@ check = "reach(0.15 A) <= 10 ms"
 [[criteria]]
 text = "Steady coil current within the 0.25 A rating of the driver"
 check = "final_value <= 0.25 A"
-''',
+'''),
 )

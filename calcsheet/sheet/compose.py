@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import string
+
 import sympy as sp
 
 from calcsheet.derive.derivation import Derivation
@@ -11,12 +13,12 @@ from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSE
 from calcsheet.derive.numbers import FINAL_GROWS, FINAL_LIMIT_OF_R_OVER_P, FINAL_LIMIT_OF_SOLUTION, \
     FINAL_NOT_DECAYING, FINAL_OSCILLATES, FINAL_OUT_OF_TIME, FINAL_UNDETERMINED, FINAL_UNSETTLED, TAU_VARYING
 from calcsheet.derive.verify import bound
-from calcsheet.kinds.base import INVALID, WARNING, Note as KindNote
+from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
 from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Section,
                                       Sheet, Table, TitleBlock)
-from calcsheet.sheet.quantities import in_units, number, numeric_expression
+from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.record import build_record
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
@@ -102,7 +104,7 @@ def _outcome(d: Derivation) -> Outcome:
     unassessed = [v for v in verdicts if _status(v) == "not assessed"]
     verified = d.verification.passed
     if not_valid:
-        head = ("The model is not valid for this case: " + " ".join(n.text for n in not_valid)
+        head = ("The model is not valid for this case: " + " ".join(finding_text(n, d.model.kind) for n in not_valid)
                 + (" The criteria are not assessed." if verdicts else ""))
     elif not verdicts:
         head = "No acceptance criteria stated."
@@ -173,16 +175,42 @@ def _kind_blocks(use) -> list:
     if use.forcing:
         blocks.append(Paragraph(f"Forcing: {use.forcing}."))
     blocks += [Paragraph("Assumptions of this kind:"), ItemList(use.assumptions)]
-    blocks += [_kind_note(note) for note in use.notes]
+    blocks += [_kind_note(note, use) for note in use.notes]
     return blocks
 
 
-def _kind_note(note) -> Note:
+def _kind_note(note: KindNote, use) -> Note:
     """A kind's finding on the sheet: a warning box for warnings and for a model not valid here."""
-    found = KindNote.of(note)
-    if found.severity == INVALID:
-        return Note("warning", f"Model not valid for this case: {found.text}")
-    return Note("warning" if found.severity == WARNING else "method", found.text)
+    text = finding_text(note, use)
+    if note.severity == INVALID:
+        return Note("warning", f"Model not valid for this case: {text}")
+    return Note("warning" if note.severity == WARNING else "method", text)
+
+
+def finding_text(note: KindNote, use) -> str:
+    """A kind's finding in words: the kind's template for its code, every number formatted the sheet's way."""
+    return _FindingWords(note.values).format(dict(use.findings)[note.code], **note.values)
+
+
+class _FindingWords(string.Formatter):
+    """Fills a finding template (our own text, never the input's). Format specs: none for a number to the
+    sheet's significant figures, a digit for that many, "duration" for a time in s, "clock" for a law's clock
+    started at the field's value (t, or t - t_V), "since" for a time with how long after t_V it is."""
+
+    def __init__(self, values: dict[str, float]):
+        super().__init__()
+        self.start = values.get(START_SLOT, 0.0)
+
+    def format_field(self, value, spec: str) -> str:
+        if spec == "duration":
+            return duration(value)
+        if spec == "clock":
+            return "t" if value == 0 else f"(t - {START_SLOT})"
+        if spec == "since":
+            if self.start == 0:
+                return f"t = {duration(value)} after the start"
+            return f"t = {duration(value)}, {duration(value - self.start)} after {START_SLOT} = {duration(self.start)}"
+        return number(value, int(spec)) if spec else number(value)
 
 
 def _si_text(p) -> str:

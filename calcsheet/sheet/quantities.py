@@ -28,6 +28,15 @@ def number(value: float | None, significant: int = SIGNIFICANT) -> str:
     return f"{mantissa}e{int(exponent)}"
 
 
+def duration(seconds: float) -> str:
+    """A time in s, with min, h or d beside it where those read more easily: '6000 s (100.0 min)'."""
+    text = f"{number(seconds)} s"
+    for limit, size, unit in ((2 * 86400, 86400, "d"), (2 * 3600, 3600, "h"), (120, 60, "min")):
+        if abs(seconds) >= limit:
+            return f"{text} ({number(seconds / size)} {unit})"
+    return text
+
+
 def in_units(si_value: float | None, declared: Declared) -> str:
     """An SI value shown in the unit the engineer declared, e.g. '196.6 degC'."""
     if si_value is None:

@@ -10,10 +10,11 @@ import math
 
 import pytest
 
-from calcsheet.errors import CalcsheetError
+from calcsheet.kinds.base import INFO, INVALID, WARNING
 from calcsheet.kinds.linear_reservoir import KIND
-from calcsheet.kinds.catalogue import starter_text  # what `calcsheet new` writes
 from calcsheet.pipeline import build_sheet, render
+
+from tests.kinds.helpers import findings
 
 HOUR = 3600.0
 
@@ -56,7 +57,8 @@ def test_steady_inflow_end_to_end(steady):
     assert record["verification"]["passed"] and record["passed"]
     assert record["kind"]["name"] == "linear_reservoir" and record["kind"]["law"] == KIND.law
     assert built.derivation.passed
-    assert any("S = k*Q_in = 90000 m^3" in n for n in built.derivation.model.kind.notes)
+    # steady state k*Q_in = 36000 s * 2.5 m^3/s (the law with dS/dt = 0; common practice, no source)
+    assert any("S = k*Q_in = 90000 m^3" in text for text in findings(built))
 
 
 def test_outflow_follows_the_linear_reservoir_routing_formula(steady):
@@ -90,39 +92,21 @@ value = "1200000 m^3"
 [evaluate]
 reach = ["600000 m^3"]
 """)
-    derivation = build_sheet(path).derivation
+    built = build_sheet(path)
+    derivation = built.derivation
     assert derivation.passed
     k = 2.5 * 86400
     assert derivation.numbers.reach[0].x == pytest.approx(k * math.log(2), rel=1e-7)
     assert derivation.numbers.final_value == pytest.approx(0.0, abs=1e-6)
-    assert any("halve every k*ln 2 = 149700 s (41.59 h)" in n for n in derivation.model.kind.notes)
+    assert any("halve every k*ln 2 = 149720 s (41.59 h)" in text for text in findings(built))
 
 
 def test_checks_without_a_stated_inflow_and_with_a_bad_storage_constant():
     # With [forcing], Q_in is replaced by the forcing's own parameters, so the checks see no Q_in.
-    notes = KIND.checks({"k": 1800.0})
-    assert len(notes) == 1 and "halve every k*ln 2 = 1248 s" in notes[0]
-    assert KIND.checks({"k": 0.0, "Q_in": 1.0})[0].startswith("WARNING: ")
-    assert any(n.startswith("WARNING: ") for n in KIND.checks({"k": 600.0, "Q_in": -1.0}))
-
-
-def test_storage_constant_in_the_wrong_dimension_names_file_slot_kind_and_unit(tmp_path):
-    path = write(tmp_path, "wrong", STEADY_INFLOW.replace('k = "10 h"', 'k = "10 m^3"'))
-    with pytest.raises(CalcsheetError) as caught:
-        build_sheet(path)
-    message = str(caught.value)
-    assert str(path) in message
-    assert "parameters.k" in message
-    assert "linear_reservoir" in message
-    assert "dimension of s " in message
-
-
-def test_starter_builds_with_all_criteria_passing(tmp_path):
-    built = build_sheet(write(tmp_path, "starter", starter_text(KIND.name)))
-    derivation = built.derivation
-    assert len(derivation.numbers.verdicts) == 2 and all(v.passed for v in derivation.numbers.verdicts)
-    assert derivation.passed
-    assert "All 2 criteria pass" in render(built.sheet, ("txt",))["txt"]
+    (halving,) = KIND.checks({"k": 1800.0})
+    assert halving.values["halving"] == pytest.approx(1800.0 * math.log(2), rel=1e-15)
+    assert [n.severity for n in KIND.checks({"k": 0.0, "Q_in": 1.0})] == [INVALID]
+    assert [n.severity for n in KIND.checks({"k": 600.0, "Q_in": -1.0})] == [INFO, WARNING]
 
 
 def test_step_inflow_given_as_forcing(tmp_path):
@@ -151,6 +135,7 @@ at = ["3 h"]
         return q_1 * math.exp(-dt / k) + inflow * (1 - math.exp(-dt / k))
 
     q_3h = routed(routed(10000 / k, 0.0, 1 * HOUR), 2.0, 2 * HOUR)
-    derivation = build_sheet(path).derivation
+    built = build_sheet(path)
+    derivation = built.derivation
     assert derivation.passed
     assert derivation.numbers.values[0].y / k == pytest.approx(q_3h, rel=1e-9)

@@ -2,31 +2,15 @@
 
 from __future__ import annotations
 
-import json
 import math
-import tomllib
 
 import numpy as np
 import pytest
 from scipy.integrate import solve_ivp
 
-from calcsheet.errors import CalcsheetError
-from calcsheet.kinds import kind_named
-from calcsheet.kinds.mass_with_drag import KIND
-from calcsheet.pipeline import build_sheet, render
+from calcsheet.pipeline import render
 
-
-def build(directory, name: str, text: str):
-    path = directory / f"{name}.toml"
-    path.write_text(text, encoding="utf-8")
-    return build_sheet(path)
-
-
-def starter_input(kind) -> str:
-    """What `calcsheet new` writes: the kind's starter plus [model], [parameters], [initial]."""
-    parameters = "\n".join(f'{slot.name} = "{slot.example}"' for slot in kind.slots)
-    return (f'{kind.starter}\n[model]\nkind = "{kind.name}"\n\n[parameters]\n{parameters}\n\n'
-            f'[initial]\nvalue = "{kind.unknown.example}"\n')
+from tests.kinds.helpers import build
 
 
 # A sled on a guide rail pulled by a constant 45 N against a viscous damper of 30 N*s/m, speed
@@ -54,27 +38,6 @@ def sled(tmp_path_factory):
     return build(tmp_path_factory.mktemp("sled"), "sled", SLED)
 
 
-def test_kind_is_found_by_its_module_name():
-    assert kind_named("mass_with_drag") is KIND
-    assert KIND.name == "mass_with_drag" and KIND.source == "F"
-    assert "\n" not in KIND.summary
-
-
-def test_end_to_end_sheet_states_the_law_and_passes(sled):
-    rendered = render(sled.sheet, ("txt", "json"))
-    text = rendered["txt"]
-    assert "Mass with linear drag (mass_with_drag)" in text
-    assert f"Governing law: {KIND.law}." in text
-    assert "Newton's second law" in text
-    assert "m*du/dt + c*u = F" in text
-    assert "Verification passed." in text
-    record = json.loads(rendered["json"])
-    assert record["passed"] is True
-    assert record["verification"]["passed"] is True
-    assert record["model"]["unknown"] == {"name": "u", "unit": "km/h"}
-    assert sled.derivation.passed
-
-
 def test_terminal_speed_is_force_over_drag_coefficient(sled):
     # Terminal speed of a mass with linear drag under a constant force: F/c, reached when the drag
     # balances the force (Newton's second law with du/dt = 0; common practice, no source).
@@ -89,32 +52,6 @@ def test_terminal_speed_is_force_over_drag_coefficient(sled):
     (ninety,) = numbers.reach
     assert ninety.x / 0.4 == pytest.approx(2.303, abs=0.0005)
     assert "5.400 km/h" in render(sled.sheet, ("txt",))["txt"]
-
-
-def test_checks_warn_of_a_missing_or_negative_drag():
-    assert KIND.checks({"m": 12.0, "c": 30.0, "F": 45.0}) == ()
-    (note,) = KIND.checks({"m": 12.0, "c": 0.0, "F_height": 45.0})
-    assert note.startswith("WARNING: c = 0")
-    (note,) = KIND.checks({"m": 12.0, "c": -30.0})
-    assert note.startswith("WARNING: c is negative")
-
-
-@pytest.mark.parametrize("slot, wrong, expected_unit", [
-    ("m", "117.7 N", "kg"),  # the weight given for the mass
-    ("c", "30 N*s", "N*s/m"),  # an impulse given for the drag coefficient
-    ("F", "45 kg", "N"),  # a mass given for the force
-])
-def test_wrong_dimension_names_file_slot_kind_and_unit(tmp_path, slot, wrong, expected_unit):
-    path = tmp_path / "wrong_unit.toml"
-    line = next(line for line in SLED.splitlines() if line.startswith(f"{slot} = "))
-    path.write_text(SLED.replace(line, f'{slot} = "{wrong}"'), encoding="utf-8")
-    with pytest.raises(CalcsheetError) as caught:
-        build_sheet(path)
-    message = str(caught.value)
-    assert str(path) in message
-    assert f"parameters.{slot}" in message
-    assert "mass_with_drag" in message
-    assert f"dimension of {expected_unit} " in message
 
 
 PULSE_START, PULSE_WIDTH = 0.1, 0.3
@@ -163,13 +100,3 @@ def test_force_pulse_agrees_with_scipy_lsoda(tmp_path):
     assert derived[4] == pytest.approx(end_of_push * math.exp(-(1.0 - 0.4) / 0.2), rel=1e-9)
 
 
-def test_starter_builds_with_all_criteria_passing(tmp_path):
-    starter = tomllib.loads(KIND.starter)
-    assert not {"model", "parameters", "initial"} & set(starter)
-    assert starter["criteria"]
-    built = build(tmp_path, "starter", starter_input(KIND))
-    verdicts = built.derivation.numbers.verdicts
-    assert len(verdicts) == len(starter["criteria"])
-    assert all(v.passed for v in verdicts)
-    assert built.derivation.passed
-    assert built.derivation.model.kind.notes == ()

@@ -11,10 +11,12 @@ import math
 import pytest
 from pathlib import Path
 
-from calcsheet.errors import CalcsheetError
+from calcsheet.kinds.base import INFO, INVALID, WARNING
 from calcsheet.kinds.mixing_tank import KIND
 from calcsheet.kinds.catalogue import starter_text  # what `calcsheet new` writes
 from calcsheet.pipeline import build_sheet, render
+
+from tests.kinds.helpers import worded
 
 MINUTE = 60.0
 
@@ -79,13 +81,12 @@ def test_draining_tank_end_to_end(draining):
 
 def test_draining_tank_warns_it_empties_and_the_solution_stops(draining):
     built, out = draining
-    notes = built.derivation.model.kind.notes
-    empty = [n for n in notes if "empties" in n]
-    assert len(empty) == 1 and empty[0].startswith("WARNING: ")
-    assert "t = 4500 s (75 min) after the start" in empty[0]
-    assert "the solution stops there" in empty[0]
-    assert "the tank empties at t = 4500 s (75 min)" in out["txt"]
+    (empty,) = [n for n in built.derivation.model.kind.notes if n.code == "tank_empties"]
+    assert empty.severity == WARNING
     # The model stops holding where V(t) = 0: 15 m^3 / (0.2 m^3/min) = 75 min (arithmetic of the inputs).
+    assert empty.values["at"] == pytest.approx(4500.0, rel=1e-12)
+    assert "WARNING: the tank empties at t = 4500 s (75.00 min) after the start, from V_0/(q_out - q_in); the " \
+           "solution stops there." in out["txt"]
     assert built.derivation.numbers.valid_until == (pytest.approx(4500.0, rel=1e-6), "the tank runs empty")
     assert built.derivation.numbers.span[1] <= 4500.0 * (1 + 1e-9)
 
@@ -93,25 +94,25 @@ def test_draining_tank_warns_it_empties_and_the_solution_stops(draining):
 def test_filling_tank_states_when_it_overflows():
     # 0.9 and 0.6 m^3/min into 12 m^3 of a 30 m^3 tank: (30 - 12)/(0.3/60) = 3600 s (arithmetic of the inputs).
     notes = KIND.checks({"q_in": 0.015, "q_out": 0.01, "c_in": 0.5, "V_0": 12.0, "V_max": 30.0})
-    overflow = [n for n in notes if "overflows" in n]
-    assert len(overflow) == 1 and not overflow[0].startswith("WARNING")
-    assert "overflows at t = 3600 s (60 min) after the start" in overflow[0]
-    assert "(V_max - V_0)/(q_in - q_out)" in overflow[0]
-    assert any(n.startswith("Volume law: V(t) = V_0 + (q_in - q_out)*t") for n in notes)
+    assert [n.code for n in notes] == ["tank_fills", "tank_overflows"]
+    assert notes[1].severity == INFO and notes[1].values["at"] == pytest.approx(3600.0, rel=1e-12)
+    law, overflow = worded(KIND.name, notes)
+    assert law == ("Volume law: V(t) = V_0 + (q_in - q_out)*t = 12.00 m^3 + 0.005000 m^3/s * t; the tank fills, "
+                   "so the coefficient of m varies with t.")
+    assert "overflows at t = 3600 s (60.00 min) after the start, from (V_max - V_0)/(q_in - q_out)" in overflow
     # Hours where hours read better: 1 m^3/h net into 10 m^3 of space takes 10 h.
     notes = KIND.checks({"q_in": 2 / 3600, "q_out": 1 / 3600, "c_in": 0.5, "V_0": 5.0, "V_max": 15.0})
-    assert any("overflows at t = 36000 s (10 h) after the start" in n for n in notes)
+    assert "overflows at t = 36000 s (10.00 h) after the start" in worded(KIND.name, notes)[1]
 
 
 def test_capacity_not_stated_or_steady_tank_gives_no_overflow_time():
     filling = KIND.checks({"q_in": 0.015, "q_out": 0.01, "c_in": 0.5, "V_0": 12.0, "V_max": 0.0})
-    assert not any("overflows at" in n for n in filling)
-    assert any("No capacity V_max was stated" in n for n in filling)
+    assert [n.code for n in filling] == ["tank_fills", "tank_capacity_not_stated"]
     steady = KIND.checks({"q_in": 0.05, "q_out": 0.05, "c_in": 0.5, "V_0": 12.0, "V_max": 30.0})
-    assert not any("overflows" in n or "empties" in n for n in steady)
-    assert any("the volume stays V_0 = 12 m^3" in n for n in steady)
+    assert [n.code for n in steady] == ["tank_volume_constant"]
+    assert "the volume stays V_0 = 12.00 m^3" in worded(KIND.name, steady)[0]
     overfull = KIND.checks({"q_in": 0.05, "q_out": 0.01, "c_in": 0.5, "V_0": 40.0, "V_max": 30.0})
-    assert any(n.startswith("WARNING: ") and "exceeds the capacity" in n for n in overfull)
+    assert [n.code for n in overfull if n.severity == INVALID] == ["tank_over_capacity"]
 
 
 def test_constant_volume_reaches_two_percent_of_its_limit_at_130_4_min(tmp_path):
@@ -140,26 +141,6 @@ at = ["1000 min"]  # 33 time constants: at the limit to 1e-12
     assert derivation.numbers.values[0].y == pytest.approx(25.0, rel=1e-9)  # the limit
     assert derivation.numbers.reach[0].x / MINUTE == pytest.approx(130.4, abs=0.05)
     assert derivation.numbers.reach[0].x / MINUTE == pytest.approx(100 / 3 * math.log(50), rel=1e-6)
-
-
-def test_flow_in_the_wrong_dimension_names_file_slot_kind_and_unit(tmp_path):
-    path = write(tmp_path, "wrong", DRAINING.replace('q_in = "0.4 m^3/min"', 'q_in = "0.4 kg/min"'))
-    with pytest.raises(CalcsheetError) as caught:
-        build_sheet(path)
-    message = str(caught.value)
-    assert str(path) in message
-    assert "parameters.q_in" in message
-    assert "mixing_tank" in message
-    assert "m^3/s" in message
-
-
-def test_starter_builds_with_all_criteria_passing(starter):
-    built, out = starter
-    derivation = built.derivation
-    assert derivation.numbers.verdicts and all(v.passed for v in derivation.numbers.verdicts)
-    assert derivation.passed
-    assert "All 2 criteria pass" in out["txt"]
-    assert any("overflows at t = 3600 s (60 min) after the start" in n for n in derivation.model.kind.notes)
 
 
 def test_capacity_used_by_the_checks_is_not_called_unused(starter):
@@ -220,3 +201,46 @@ def test_overflow_inside_the_plotted_range_stops_plot_and_search(tmp_path):
     assert numbers.span[1] == pytest.approx(6000.0)
     record = render(built.sheet, ("txt",))["txt"]
     assert "The tank overflows at t = 100.0 min" in record and "Values past it (120 min) do not apply" in record
+
+
+SWITCHED = """
+[sheet]
+title = "Tank whose inflow is cut back at 10 min (demo)"
+[model]
+kind = "mixing_tank"
+variable = "t [min]"
+[parameters]
+q_in = "1 m^3/min"
+q_out = "0.6 m^3/min"
+c_in = "2 kg/m^3"
+V_0 = "12 m^3"
+[initial]
+value = "3 kg"
+[evaluate]
+at = ["8 min", "15 min", "25 min"]
+[[switch]]
+at = "10 min"
+text = "inflow cut back"
+parameters = { q_in = "0.2 m^3/min" }
+"""
+
+
+def _governing_step(text: str, interval: int) -> str:
+    start = text.index(f"== Interval {interval}, step 1: Governing equation and data ==")
+    return text[start:text.index("== Interval", start + 1)]
+
+
+def test_a_later_interval_writes_its_law_on_the_clock_started_at_the_switch(tmp_path):
+    # After the switch the volume law runs from t_V = 10 min, where the volume is 12 + (1 - 0.6)*10 = 16 m^3;
+    # it then drains at 0.4 m^3/min and empties 16/0.4 = 40 min later, at 50 min (arithmetic of the inputs).
+    text = render(build_sheet(write(tmp_path, "switched", SWITCHED)).sheet, ("txt",))["txt"]
+    first, second = _governing_step(text, 1), _governing_step(text, 2)
+    assert "so V = V_0 + (q_in - q_out)*t   (volume balance)" in first
+    assert "dm/dt = q_in*c_in - q_out*m/(V_0 + (q_in - q_out)*t)" in first
+    assert "t_V" not in first
+    assert "so V = V_0 + (q_in - q_out)*(t - t_V)   (volume balance)" in second
+    assert "dm/dt = q_in*c_in - q_out*m/(V_0 + (q_in - q_out)*(t - t_V))" in second
+    assert "*t)" not in second.replace("*(t - t_V))", "")  # every step of the later interval on the shifted clock
+    assert ("Volume law: V(t) = V_0 + (q_in - q_out)*(t - t_V) = 16.00 m^3 - 0.006667 m^3/s * (t - t_V); "
+            "the tank drains") in second
+    assert "the tank empties at t = 3000 s (50.00 min), 2400 s (40.00 min) after t_V = 600.0 s (10.00 min)" in second

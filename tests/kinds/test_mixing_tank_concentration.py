@@ -10,10 +10,11 @@ import math
 
 import pytest
 
-from calcsheet.errors import CalcsheetError
+from calcsheet.kinds.base import INFO, WARNING
 from calcsheet.kinds.mixing_tank_concentration import KIND
-from calcsheet.kinds.catalogue import starter_text  # what `calcsheet new` writes
 from calcsheet.pipeline import build_sheet, render
+
+from tests.kinds.helpers import findings, worded
 
 MINUTE = 60.0
 
@@ -89,19 +90,23 @@ def test_mass_equals_concentration_times_volume(filling, tmp_path):
 
 def test_notes_give_the_volume_law_and_the_overflow_time(filling):
     notes = filling[0].derivation.model.kind.notes
-    assert any(n.startswith("Volume law: V(t) = V_0 + (q_in - q_out)*t = 6 m^3 + 0.005 m^3/s * t") for n in notes)
+    assert [n.code for n in notes] == ["tank_fills", "tank_overflows"]
+    assert all(n.severity == INFO for n in notes)
     # (25 - 6) m^3 / (0.3 m^3/min) = 63.33 min = 3800 s (arithmetic of the inputs).
-    assert any("overflows at t = 3800 s (63.33 min) after the start" in n for n in notes)
-    assert not any(n.startswith("WARNING") for n in notes)
+    assert notes[1].values["at"] == pytest.approx(3800.0, rel=1e-12)
+    law, overflow = findings(filling[0])
+    assert law.startswith("Volume law: V(t) = V_0 + (q_in - q_out)*t = 6.000 m^3 + 0.005000 m^3/s * t")
+    assert "overflows at t = 3800 s (63.33 min) after the start" in overflow
 
 
 def test_draining_tank_warns_when_it_empties():
     # 2 m^3 left, 0.5 m^3/h net outflow: empty after 4 h = 14400 s (arithmetic of the inputs).
     notes = KIND.checks({"q_in": 0.5 / 3600, "q_out": 1.0 / 3600, "c_in": 0.1, "V_0": 2.0, "V_max": 0.0})
-    empty = [n for n in notes if "empties" in n]
-    assert len(empty) == 1 and empty[0].startswith("WARNING: ")
-    assert "the tank empties at t = 14400 s (4 h) after the start" in empty[0]
-    assert "coefficient of c varies" in " ".join(notes)
+    (empty,) = [n for n in notes if n.code == "tank_empties"]
+    assert empty.severity == WARNING and empty.values["at"] == pytest.approx(14400.0, rel=1e-12)
+    words = worded(KIND.name, notes)
+    assert "the tank empties at t = 14400 s (4.000 h) after the start" in words[-1]
+    assert "coefficient of c varies" in words[0]
 
 
 def test_constant_volume_reaches_two_percent_of_its_limit_at_130_4_min(tmp_path):
@@ -131,27 +136,6 @@ at = ["1000 min"]  # 33 time constants: at the limit to 1e-12
     assert derivation.numbers.values[0].y == pytest.approx(0.25, rel=1e-9)  # the limit
     assert derivation.numbers.reach[0].x / MINUTE == pytest.approx(130.4, abs=0.05)
     assert derivation.numbers.reach[0].x / MINUTE == pytest.approx(100 / 3 * math.log(50), rel=1e-6)
-
-
-def test_volume_in_the_wrong_dimension_names_file_slot_kind_and_unit(tmp_path):
-    text = filling_input("mixing_tank_concentration", "c [kg/m^3]", "0.5 kg/m^3").replace('V_0 = "6 m^3"',
-                                                                                           'V_0 = "6 m^2"')
-    path = write(tmp_path, "wrong", text)
-    with pytest.raises(CalcsheetError) as caught:
-        build_sheet(path)
-    message = str(caught.value)
-    assert str(path) in message
-    assert "parameters.V_0" in message
-    assert "mixing_tank_concentration" in message
-    assert "m^3" in message
-
-
-def test_starter_builds_with_all_criteria_passing(tmp_path):
-    built = build_sheet(write(tmp_path, "starter", starter_text(KIND.name)))
-    derivation = built.derivation
-    assert derivation.numbers.verdicts and all(v.passed for v in derivation.numbers.verdicts)
-    assert derivation.passed
-    assert "PASS: Tank at 0.6 kg/m^3 or more within 40 minutes" in render(built.sheet, ("txt",))["txt"]
 
 
 def step_forced_concentration(at_min: float) -> float:

@@ -3,33 +3,18 @@ torque, its starter."""
 
 from __future__ import annotations
 
-import json
 import math
-import tomllib
 
 import numpy as np
 import pytest
 from scipy.integrate import solve_ivp
 
 from calcsheet.errors import CalcsheetError
-from calcsheet.kinds import kind_named
-from calcsheet.kinds.rotating_inertia import KIND
-from calcsheet.pipeline import build_sheet, render
+from calcsheet.pipeline import render
+
+from tests.kinds.helpers import build
 
 RPM = 2 * math.pi / 60  # rad/s per rpm (one revolution is 2 pi rad; fact of units)
-
-
-def build(directory, name: str, text: str):
-    path = directory / f"{name}.toml"
-    path.write_text(text, encoding="utf-8")
-    return build_sheet(path)
-
-
-def starter_input(kind) -> str:
-    """What `calcsheet new` writes: the kind's starter plus [model], [parameters], [initial]."""
-    parameters = "\n".join(f'{slot.name} = "{slot.example}"' for slot in kind.slots)
-    return (f'{kind.starter}\n[model]\nkind = "{kind.name}"\n\n[parameters]\n{parameters}\n\n'
-            f'[initial]\nvalue = "{kind.unknown.example}"\n')
 
 
 # A spindle spun up from rest by a steady torque, speed declared in rpm: J/b = 0.5/0.025 = 20 s,
@@ -54,27 +39,6 @@ at = ["20 s", "40 s", "60 s", "100 s"]
 @pytest.fixture(scope="module")
 def spindle(tmp_path_factory):
     return build(tmp_path_factory.mktemp("spindle"), "spindle", SPINDLE)
-
-
-def test_kind_is_found_by_its_module_name():
-    assert kind_named("rotating_inertia") is KIND
-    assert KIND.name == "rotating_inertia" and KIND.source == "T_d"
-    assert "\n" not in KIND.summary
-
-
-def test_end_to_end_sheet_states_the_law_and_passes(spindle):
-    rendered = render(spindle.sheet, ("txt", "json"))
-    text = rendered["txt"]
-    assert "Rotating inertia with viscous friction (rotating_inertia)" in text
-    assert f"Governing law: {KIND.law}." in text
-    assert "Newton's second law for rotation" in text
-    assert "J*domega/dt + b*omega = T_d" in text
-    assert "Verification passed." in text
-    record = json.loads(rendered["json"])
-    assert record["passed"] is True
-    assert record["verification"]["passed"] is True
-    assert record["model"]["unknown"] == {"name": "omega", "unit": "rpm"}
-    assert spindle.derivation.passed
 
 
 def test_spin_up_reaches_63_percent_of_final_speed_after_one_time_constant(spindle):
@@ -141,32 +105,6 @@ at = {times}
     assert rotating.derivation.passed and electrical.derivation.passed
 
 
-def test_checks_warn_of_a_missing_or_negative_friction():
-    assert KIND.checks({"J": 0.5, "b": 0.025, "T_d": 5.0}) == ()
-    (note,) = KIND.checks({"J": 0.5, "b": 0.0, "T_d_amp": 5.0})
-    assert note.startswith("WARNING: b = 0")
-    (note,) = KIND.checks({"J": 0.5, "b": -0.025})
-    assert note.startswith("WARNING: b is negative")
-
-
-@pytest.mark.parametrize("slot, wrong, expected_unit", [
-    ("J", "0.5 kg*m", "kg*m^2"),  # square of the radius of gyration forgotten
-    ("b", "0.025 N*m", "N*m*s/rad"),  # a torque given for the friction coefficient
-    ("T_d", "5 W", "N*m"),  # power given for the torque
-])
-def test_wrong_dimension_names_file_slot_kind_and_unit(tmp_path, slot, wrong, expected_unit):
-    path = tmp_path / "wrong_unit.toml"
-    line = next(line for line in SPINDLE.splitlines() if line.startswith(f"{slot} = "))
-    path.write_text(SPINDLE.replace(line, f'{slot} = "{wrong}"'), encoding="utf-8")
-    with pytest.raises(CalcsheetError) as caught:
-        build_sheet(path)
-    message = str(caught.value)
-    assert str(path) in message
-    assert f"parameters.{slot}" in message
-    assert "rotating_inertia" in message
-    assert f"dimension of {expected_unit} " in message
-
-
 SINE_INPUT = """
 [sheet]
 title = "Spindle under a pulsating drive torque"
@@ -206,13 +144,3 @@ def test_sinusoidal_torque_agrees_with_scipy_lsoda(tmp_path):
     assert derived == pytest.approx(reference.y[0], rel=1e-5)
 
 
-def test_starter_builds_with_all_criteria_passing(tmp_path):
-    starter = tomllib.loads(KIND.starter)
-    assert not {"model", "parameters", "initial"} & set(starter)
-    assert starter["criteria"]
-    built = build(tmp_path, "starter", starter_input(KIND))
-    verdicts = built.derivation.numbers.verdicts
-    assert len(verdicts) == len(starter["criteria"])
-    assert all(v.passed for v in verdicts)
-    assert built.derivation.passed
-    assert built.derivation.model.kind.notes == ()

@@ -2,31 +2,16 @@
 
 from __future__ import annotations
 
-import json
 import math
-import tomllib
 
 import numpy as np
 import pytest
 from scipy.integrate import solve_ivp
 
 from calcsheet.errors import CalcsheetError
-from calcsheet.kinds import kind_named
-from calcsheet.kinds.series_rl import KIND
-from calcsheet.pipeline import build_sheet, render
+from calcsheet.pipeline import render
 
-
-def build(directory, name: str, text: str):
-    path = directory / f"{name}.toml"
-    path.write_text(text, encoding="utf-8")
-    return build_sheet(path)
-
-
-def starter_input(kind) -> str:
-    """What `calcsheet new` writes: the kind's starter plus [model], [parameters], [initial]."""
-    parameters = "\n".join(f'{slot.name} = "{slot.example}"' for slot in kind.slots)
-    return (f'{kind.starter}\n[model]\nkind = "{kind.name}"\n\n[parameters]\n{parameters}\n\n'
-            f'[initial]\nvalue = "{kind.unknown.example}"\n')
+from tests.kinds.helpers import build
 
 
 # A coil switched onto a battery; the figures are those of the published solution cited below.
@@ -51,27 +36,6 @@ def coil(tmp_path_factory):
     return build(tmp_path_factory.mktemp("rl"), "coil", COIL)
 
 
-def test_kind_is_found_by_its_module_name():
-    assert kind_named("series_rl") is KIND
-    assert KIND.name == "series_rl" and KIND.source == "V_s"
-    assert "\n" not in KIND.summary
-
-
-def test_end_to_end_sheet_states_the_law_and_passes(coil):
-    rendered = render(coil.sheet, ("txt", "json"))
-    text = rendered["txt"]
-    assert "Series RL circuit (series_rl)" in text
-    assert f"Governing law: {KIND.law}." in text
-    assert "Kirchhoff's voltage law" in text
-    assert "L*di/dt + R*i = V_s" in text
-    assert "Verification passed." in text
-    record = json.loads(rendered["json"])
-    assert record["passed"] is True
-    assert record["verification"]["passed"] is True
-    assert record["model"]["equation"] == "L*di/dt + R*i = V_s"
-    assert coil.derivation.passed
-
-
 def test_coil_on_a_battery_matches_the_published_solution(coil):
     # Source: a physics exercise collection, chapter on inductance, solution published online
     # (read in a published solution): L = 2.0 H, R = 20 ohm, E = 4.0 V; tau = 0.1 s, i(0.2 s) = 0.1729 A.
@@ -94,34 +58,9 @@ def test_no_resistance_gives_a_ramp_and_a_warning(tmp_path):
     assert "WARNING: R = 0: with no resistance" in text
 
 
-def test_checks_are_quiet_for_an_ordinary_coil():
-    assert KIND.checks({"R": 120.0, "L": 0.6, "V_s": 24.0}) == ()
-    assert KIND.checks({"R": 120.0, "L": 0.6, "V_s_amp": 24.0}) == ()  # V_s replaced by a forcing
-    (note,) = KIND.checks({"R": -5.0, "L": 0.6})
-    assert note.startswith("WARNING: R is negative")
-
-
-
 def test_zero_inductance_is_refused_as_an_input_error(tmp_path):
     with pytest.raises(CalcsheetError):
         build(tmp_path, "no_l", COIL.replace('L = "2.0 H"', 'L = "0 H"'))
-
-@pytest.mark.parametrize("slot, wrong, expected_unit", [
-    ("L", "2 F", "H"),  # capacitance given for the inductance
-    ("R", "20 S", "ohm"),  # a conductance given for the resistance
-])
-def test_wrong_dimension_names_file_slot_kind_and_unit(tmp_path, slot, wrong, expected_unit):
-    path = tmp_path / "wrong_unit.toml"
-    line = next(line for line in COIL.splitlines() if line.startswith(f"{slot} = "))
-    path.write_text(COIL.replace(line, f'{slot} = "{wrong}"'), encoding="utf-8")
-    with pytest.raises(CalcsheetError) as caught:
-        build_sheet(path)
-    message = str(caught.value)
-    assert str(path) in message
-    assert f"parameters.{slot}" in message
-    assert "series_rl" in message
-    assert f"dimension of {expected_unit} " in message
-
 
 STEP_AT = 0.05
 STEP_INPUT = """
@@ -165,13 +104,3 @@ def test_step_source_agrees_with_scipy_lsoda(tmp_path):
     assert derived[1] == pytest.approx(0.2 * (1 - math.exp(-(0.1 - STEP_AT) / 0.1)), rel=1e-9)
 
 
-def test_starter_builds_with_all_criteria_passing(tmp_path):
-    starter = tomllib.loads(KIND.starter)
-    assert not {"model", "parameters", "initial"} & set(starter)
-    assert starter["criteria"]
-    built = build(tmp_path, "starter", starter_input(KIND))
-    verdicts = built.derivation.numbers.verdicts
-    assert len(verdicts) == len(starter["criteria"])
-    assert all(v.passed for v in verdicts)
-    assert built.derivation.passed
-    assert built.derivation.model.kind.notes == ()
