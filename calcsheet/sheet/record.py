@@ -1,4 +1,8 @@
-"""The structured record behind the JSON output (format version 1)."""
+"""The structured record behind the JSON output (format version 2, described in README.md).
+
+Version 2: an ordinary model's record is as in version 1; a switched model's record gives each
+interval on its own (``intervals``) and the results over the whole response apart (``across``).
+"""
 
 from __future__ import annotations
 
@@ -8,7 +12,9 @@ from calcsheet.subjects import SUBJECTS, UNKNOWN
 from calcsheet.sheet.quantities import record_value, rounded
 
 RECORD_FORMAT = "calcsheet-record"
-RECORD_VERSION = 1
+RECORD_VERSION = 2
+INTERVAL_KEYS = ("kind", "classification", "solution", "time_constant", "final_value",
+                 "sinusoidal_steady_state", "verification")  # taken from each interval's own record
 
 
 def build_record(d, n) -> dict:
@@ -89,3 +95,42 @@ def verification_record(verification) -> dict:
 def _found(verdict, m):
     like = m.unknown if SUBJECTS[verdict.criterion.subject].found == UNKNOWN else m.variable
     return record_value(verdict.actual, like)
+
+
+def build_switched_record(sd, interval_records: list[dict]) -> dict:
+    """The record of a switched model: ``interval_records`` are the intervals' own records (build_record)."""
+    m, first = sd.model, interval_records[0]
+    before = [None] + list(sd.intervals[:-1])
+    return {
+        "format": RECORD_FORMAT,
+        "version": RECORD_VERSION,
+        "sheet": first["sheet"],
+        "model": {key: first["model"][key] for key in ("unknown", "variable", "initial")},
+        "intervals": [_interval_record(interval, record, previous)
+                      for interval, record, previous in zip(sd.intervals, interval_records, before)],
+        "across": {**results_record(m, sd.numbers), "verification": verification_record(sd.verification)},
+        "passed": sd.passed,
+    }
+
+
+def _interval_record(interval, record: dict, previous) -> dict:
+    variable = interval.derivation.model.variable
+    return {
+        "from": record_value(interval.start, variable),
+        "to": record_value(interval.end, variable),
+        "switch": None if previous is None else interval.text,
+        "equation": record["model"]["equation"],
+        "initial": record["model"]["initial"]["value"],
+        "parameters": _parameters_in_force(interval, record["model"]["parameters"], previous),
+        **{key: record[key] for key in INTERVAL_KEYS},
+    }
+
+
+def _parameters_in_force(interval, parameters: list[dict], previous) -> list[dict]:
+    """Every parameter in force over the interval; ``changed`` where its value is not the one in force just
+    before the switch (set by the switch, or by a new forcing), ``carried`` where the law carried it over."""
+    before = {} if previous is None else {p.name: (p.text, p.si) for p in previous.derivation.model.parameters}
+    now = {p.name: (p.text, p.si) for p in interval.derivation.model.parameters}
+    carried = {name for name, _ in interval.carried}
+    return [{**entry, "changed": previous is not None and before.get(entry["name"]) != now[entry["name"]],
+             "carried": entry["name"] in carried} for entry in parameters]
