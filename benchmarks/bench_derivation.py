@@ -142,7 +142,8 @@ def main(argv: list[str] | None = None) -> int:
     print("-" * len(header))
     bound = ">" if totals["sympy_bound"] else ""
     total_ratio = totals["calcsheet"] / totals["sympy"] if totals["sympy"] else float("nan")
-    print(f"{'total (' + str(len(names)) + ' cases)':28} {totals['calcsheet']:11.2f} {bound + format(totals['sympy'], '.2f'):>8}"
+    label = f"total ({len(names)} cases)"
+    print(f"{label:28} {totals['calcsheet']:11.2f} {bound + format(totals['sympy'], '.2f'):>8}"
           f"  calcsheet/sympy {'<' if bound else ''}{total_ratio:.2f}, "
           f"calcsheet/interpreter start {totals['calcsheet'] / bare:.1f}")
     if bound:

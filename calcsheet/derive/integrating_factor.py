@@ -123,7 +123,8 @@ def _refuse_unless_finite_at_start(integrand: sp.Expr, x: sp.Symbol, start, mode
         SafeFunction(integrand.subs(start), x, scale=scale, side=1).limit(x0)
     except NotFinite:
         raise ModelRefused("the forcing has no finite limit at the initial point, so the response cannot start "
-                           "there: the integral of mu*r from the initial point does not exist", "model.equation") from None
+                           "there: the integral of mu*r from the initial point does not exist",
+                           "model.equation") from None
 
 
 def _finite_at(antiderivative: sp.Expr, x: sp.Symbol, x0: sp.Expr, values) -> bool:

@@ -137,7 +137,6 @@ def _integration(model: Model, y, points: list[float]) -> dict:
     targets = sorted({p for p in points if p >= x0})
     if not targets or targets[-1] == x0:
         targets = sorted(set(targets) | {x0})
-    scale = max([abs(y0)] + [abs(v) for v in (y(p) for p in targets) if math.isfinite(v)] + [1e-300])
     span = targets[-1] - x0
     slope = slope_function(model, scale=max(span, 1e-300))
     ratio = _stiffness(model, slope, targets, span)

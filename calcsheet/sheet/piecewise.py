@@ -18,7 +18,7 @@ def compose_piecewise(pd) -> Sheet:
     first = parts[0]
     sections = [Section("response", "Response at a glance", (response_figure(pd),)),
                 next(s for s in first.sections if s.key == "basis"), _switch_list(pd)]
-    for k, (interval, part) in enumerate(zip(pd.intervals, parts), start=1):
+    for k, part in enumerate(parts, start=1):
         sections += [Section(f"i{k}_{s.key}", f"Interval {k}, step {s.number}: {s.title}", s.blocks)
                      for s in part.sections if s.number]
     sections.append(_across(pd))

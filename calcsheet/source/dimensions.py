@@ -13,7 +13,8 @@ from calcsheet.source.units import dimension_text, registry
 UnitOf = Callable[[str], pint.Unit]
 
 
-def check_equation(equation: ex.Equation, unit_of: UnitOf, derivative_unit: Callable[[ex.Derivative], pint.Unit]) -> pint.Unit:
+def check_equation(equation: ex.Equation, unit_of: UnitOf,
+                   derivative_unit: Callable[[ex.Derivative], pint.Unit]) -> pint.Unit:
     """Check that every additive term on both sides has one dimension; return it."""
     terms = ex.additive_terms(equation.left) + ex.additive_terms(equation.right)
     return _common_dimension([node for _, node in terms], _Analyser(unit_of, derivative_unit))

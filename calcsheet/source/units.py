@@ -27,7 +27,8 @@ _UNIT_CHARS = re.compile(r"^[A-Za-z0-9_µμΩ°% */^().·-]+$")
 _UNIT_TOKEN = re.compile(r"[A-Za-z_µΩ°%][A-Za-z0-9_µΩ°%]*|\d+(?:\.\d*)?(?:[eE][+-]?\d+)?|\.\d+|\*\*|[*/^()+-]|\s+|.")
 _SMALL_EXPONENT = re.compile(r"\d{1,2}(?:\.\d{1,3})?")
 _SINGLE_NAME = re.compile(r"^[A-Za-z_°][A-Za-z0-9_]*$")
-_OFFSET_NAMES = re.compile(r"(?<![A-Za-z_])(degC|degF|celsius|fahrenheit|degree_Celsius|degree_Fahrenheit)(?![A-Za-z0-9_])")
+_OFFSET_NAMES = re.compile(
+    r"(?<![A-Za-z_])(degC|degF|celsius|fahrenheit|degree_Celsius|degree_Fahrenheit)(?![A-Za-z0-9_])")
 MAX_QUANTITY = 200  # characters in a value such as "47 kohm"
 MAX_UNIT = 100  # characters in a unit
 # Magnitudes the numerics accept, in SI base units: zero, or between these (QUADPACK and the
@@ -85,7 +86,8 @@ class ConstantAsUnit(InputError):
     """A unit that pint reads as a physical constant: "47 k" is 47 times Boltzmann's constant."""
 
     def __init__(self, text: str, root: str):
-        super().__init__(f"'{shortened(text)}' is read as the {root.replace('_', ' ')}, a physical constant, not a unit")
+        super().__init__(f"'{shortened(text)}' is read as the {root.replace('_', ' ')}, a physical constant, "
+                         "not a unit")
         self.text, self.root = text, root
 
     def for_value(self, number: str) -> InputError:
@@ -158,7 +160,8 @@ def _exponent_end(tokens: list[str], index: int, text: str) -> int:
         parts = tokens[index:end]
     numbers = [p for p in parts if p not in ("+", "-", "/")]
     if not numbers or len(numbers) > 2 or not all(_SMALL_EXPONENT.fullmatch(p) for p in numbers):
-        raise InputError(f"unit '{shortened(text)}': an exponent is a small whole number or fraction (m^2, s^-1, m^(1/2))")
+        raise InputError(f"unit '{shortened(text)}': an exponent is a small whole number or fraction "
+                         "(m^2, s^-1, m^(1/2))")
     return end
 
 
@@ -268,7 +271,8 @@ def _power(name: str, exp: float) -> str:
 def _reason(exc: Exception) -> str:
     """pint's complaint in our words: an unknown name, or text that is not a unit expression."""
     if isinstance(exc, pint.UndefinedUnitError):
-        names = ", ".join(f"'{n}'" for n in (exc.unit_names if isinstance(exc.unit_names, (list, tuple)) else [exc.unit_names]))
+        listed = exc.unit_names if isinstance(exc.unit_names, (list, tuple)) else [exc.unit_names]
+        names = ", ".join(f"'{n}'" for n in listed)
         return f"{names} is not a unit name known here; names are case-sensitive: ohm, kohm, uF, degC, m^3/s"
     return "write a unit as names joined by *, / and ^, e.g. W/(m^2*K)"
 

@@ -303,8 +303,10 @@ class _Placer:
             return
         anchor = self._frac(x, y)
         d = self.GAP + 2.5  # clear of the dot
-        quadrants = {"below right": ((d, -d), "left", "top", anchor), "above left": ((-d, d), "right", "bottom", anchor),
-                     "above right": ((d, d), "left", "bottom", anchor), "below left": ((-d, -d), "right", "top", anchor)}
+        quadrants = {"below right": ((d, -d), "left", "top", anchor),
+                     "above left": ((-d, d), "right", "bottom", anchor),
+                     "above right": ((d, d), "left", "bottom", anchor),
+                     "below left": ((-d, -d), "right", "top", anchor)}
         # a rising curve leaves the lower right and upper left free, a falling one the other two
         before, after = _height_near(self.curve, anchor[0] - 0.01), _height_near(self.curve, anchor[0] + 0.01)
         rising = before is None or after >= before

@@ -68,7 +68,8 @@ def _list(block: ItemList) -> list[str]:
 
 def _table(block: Table) -> list[str]:
     caption = [f"{block.caption}:"] if block.caption else []
-    return caption + ["  " + " | ".join(block.header)] + ["  " + " | ".join(_cell(c) for c in row) for row in block.rows]
+    rows = ["  " + " | ".join(_cell(c) for c in row) for row in block.rows]
+    return caption + ["  " + " | ".join(block.header)] + rows
 
 
 def _figure(block: Figure, words: Labels) -> list[str]:

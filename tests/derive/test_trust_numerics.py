@@ -109,7 +109,8 @@ def test_sinc_forcing_at_its_removable_point(tmp_path):
     # tau y' + y = sin(w t)/(w t), y(0) = 0: y(t) = integral_0^t exp(-(t - s)/tau) sinc(s)/tau ds, by scipy
     # quad with numpy's sinc (defined at 0), independently of calcsheet.
     tau, w = 2.0, 3.0
-    d = derived(tmp_path, free("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"', "0", '"0 s", "1 s", "5 s"'))
+    d = derived(tmp_path, free("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"', "0",
+                               '"0 s", "1 s", "5 s"'))
     assert d.verification.passed
     for value in d.numbers.values:
         t = value.at.si
@@ -304,7 +305,8 @@ def test_a_model_that_fails_its_validity_check_cannot_pass(tmp_path):
     assert record["passed"] is False and record["kind"]["valid"] is False
     assert record["criteria"][0]["status"] == "not assessed"
     assert record["criteria"][0]["not_assessed_because"] == "model_not_valid"
-    assert any(f["severity"] == "invalid" and f["code"] == "lumped_body.biot_exceeded" for f in record["kind"]["findings"])
+    assert any(f["severity"] == "invalid" and f["code"] == "lumped_body.biot_exceeded"
+               for f in record["kind"]["findings"])
     text = render(built.sheet, ("txt",))["txt"]
     assert "The model is not valid for this case" in text and "The criterion passes" not in text
     assert "not assessed (model not valid)" in text

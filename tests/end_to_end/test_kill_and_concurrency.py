@@ -39,7 +39,8 @@ def test_a_killed_build_leaves_every_output_whole(tmp_path):
     subprocess.run(_command(out, inputs), check=False, capture_output=True, timeout=600)
     old = _contents(out)
     for copy in inputs:
-        copy.write_text(copy.read_text(encoding="utf-8").replace('title = "', 'title = "Revised: ', 1), encoding="utf-8")
+        revised = copy.read_text(encoding="utf-8").replace('title = "', 'title = "Revised: ', 1)
+        copy.write_text(revised, encoding="utf-8")
     subprocess.run(_command(fresh, inputs), check=False, capture_output=True, timeout=600)
     new = _contents(fresh)
     assert len(old) == len(new) == len(DEMOS) * 3 and all(old[name] != new[name] for name in old)

@@ -31,7 +31,8 @@ SECRET = "FORBIDDEN-CONTENT-5521"
 def small_sheet() -> Sheet:
     return Sheet(
         title_block=TitleBlock("Style isolation check", number=Field("Calculation", "SEC-1"),
-                               revision=Field("Revision", "A"), project=Field("Project"), originator=Field("Originator")),
+                               revision=Field("Revision", "A"), project=Field("Project"),
+                               originator=Field("Originator")),
         labels=sheet_labels(),
         outcome=Outcome(True, "All 1 criteria pass."),
         sections=(Section("basis", "Basis of the calculation", (Paragraph("A paragraph of the sheet."),)),),
@@ -89,8 +90,9 @@ HOSTILE_CSS = {
     "image over http": 'body {{ background-image: url("http://127.0.0.1:{port}/logo.png"); }}',
     "system font by local()": ('@font-face {{ font-family: "Any"; src: local("DejaVu Sans"); }} '
                                'body {{ font-family: "Any"; }}'),
-    "our font scheme walking out": '@font-face {{ font-family: "Any"; src: url("calcsheet-font:../../../../etc/hostname"); }}'
-                                   ' body {{ font-family: "Any"; }}',
+    "our font scheme walking out": ('@font-face {{ font-family: "Any"; '
+                                    'src: url("calcsheet-font:../../../../etc/hostname"); }}'
+                                    ' body {{ font-family: "Any"; }}'),
     "symbolic link out of the style folder": 'body {{ background-image: url("link.png"); }}',
 }
 HOSTILE_TEMPLATE = {

@@ -259,7 +259,8 @@ def test_si_unit_is_coherent_base_unit(ref):
 ])
 def test_same_dimension(ref, a, b, same):
     assert u.same_dimension(u.parse_unit(a), u.parse_unit(b)) is same
-    reference = ref.Quantity(1, a or "dimensionless").dimensionality == ref.Quantity(1, b or "dimensionless").dimensionality
+    left, right = ref.Quantity(1, a or "dimensionless"), ref.Quantity(1, b or "dimensionless")
+    reference = left.dimensionality == right.dimensionality
     assert reference is same
 
 

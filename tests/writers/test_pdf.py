@@ -99,7 +99,8 @@ def test_metadata_and_embedded_fonts(pdfs, sheets, demo):
             if descriptor is None:
                 for child in font.get_object().get("/DescendantFonts", []):
                     descriptor = child.get_object().get("/FontDescriptor")
-            fonts.append(descriptor is not None and any(k in descriptor for k in ("/FontFile", "/FontFile2", "/FontFile3")))
+            embedded = ("/FontFile", "/FontFile2", "/FontFile3")
+            fonts.append(descriptor is not None and any(k in descriptor for k in embedded))
     assert fonts and all(fonts), "every font is embedded"
 
 
@@ -107,7 +108,8 @@ def test_no_pdf_or_plot_libraries_for_records_only(tmp_path):
     """Start-up stays light: json and txt never import WeasyPrint or matplotlib."""
     code = (
         "import sys; from click.testing import CliRunner; from calcsheet.cli import main; "
-        f"r = CliRunner().invoke(main, ['build', {str(DEMOS[0])!r}, '--format', 'json,txt', '--out', {str(tmp_path)!r}]); "
+        f"r = CliRunner().invoke(main, ['build', {str(DEMOS[0])!r}, '--format', 'json,txt', "
+        f"'--out', {str(tmp_path)!r}]); "
         "assert r.exit_code == 0, r.output; "
         "print(sorted(m for m in ('weasyprint', 'matplotlib', 'ziamath') if m in sys.modules))"
     )
