@@ -14,8 +14,8 @@ def _law_steps(clock: Clock) -> tuple[tuple[str, str], ...]:
         (r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",
          "dm/dt = q_in*c_in - q_out*c   (mass balance: accumulation = in - out)"),
         tank.volume_balance_step(clock, r"c = \frac{m}{V}, \quad ", "c = m/V (well mixed); "),
-        (r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - \frac{q_{\mathrm{out}}\,m}{" + tank.volume_tex(clock) + "}",
-         _equation(clock)),
+        (r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - "
+         r"\frac{q_{\mathrm{out}}\,m}{" + tank.volume_tex(clock) + "}", _equation(clock)),
     )
 
 

@@ -17,8 +17,8 @@ def _law_steps(clock: Clock) -> tuple[tuple[str, str], ...]:
         (r"V \frac{dc}{dt} + c \left(q_{\mathrm{in}} - q_{\mathrm{out}}\right) = "
          r"q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",
          "V*dc/dt + c*(q_in - q_out) = q_in*c_in - q_out*c   (product rule)"),
-        (r"\left(" + tank.volume_tex(clock) + r"\right) \frac{dc}{dt} = q_{\mathrm{in}} \left(c_{\mathrm{in}} - c\right)",
-         _equation(clock)),
+        (r"\left(" + tank.volume_tex(clock) + r"\right) \frac{dc}{dt} = "
+         r"q_{\mathrm{in}} \left(c_{\mathrm{in}} - c\right)", _equation(clock)),
     )
 
 

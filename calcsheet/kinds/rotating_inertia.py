@@ -47,7 +47,8 @@ KIND = Kind(
     starter=Starter(
         title="Run-up of a test-rig flywheel to working speed",
         number="ME-301",
-        purpose="Time for the flywheel to reach its 250 rad/s (about 2400 rpm) working speed under the motor's steady torque.",
+        purpose="Time for the flywheel to reach its 250 rad/s (about 2400 rpm) working speed under the motor's "
+                "steady torque.",
         requests='''[evaluate]
 at = ["10 s", "20 s", "60 s"]
 reach = ["250 rad/s"]

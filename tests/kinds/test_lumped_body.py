@@ -77,7 +77,8 @@ def test_biot_note_and_limit():
     base = {"V": 1e-3, "A": 0.1, "k": 10.0}  # Lc = 0.01 m
     (note,) = KIND.checks({**base, "h": 99.0})  # Bi = 0.099
     assert note.severity == INFO and note.values["biot"] == pytest.approx(0.099, rel=1e-12)
-    assert "Bi = h*Lc/k = 0.09900" in worded(KIND.name, (note,))[0] and "Lc = V/A = 0.01000 m" in worded(KIND.name, (note,))[0]
+    (words,) = worded(KIND.name, (note,))
+    assert "Bi = h*Lc/k = 0.09900" in words and "Lc = V/A = 0.01000 m" in words
     notes = KIND.checks({**base, "h": 101.0})  # Bi = 0.101
     assert [n.severity for n in notes] == [INFO, INVALID]
     words = worded(KIND.name, notes)
