@@ -16,9 +16,9 @@ import mpmath
 import sympy as sp
 
 from calcsheet.derive.safe_numeric import NotFinite, real_float
-from calcsheet.derive.verify import (AGREEMENT, ATOL_SHARE, MEASURE_WORDS, METHOD_WORDS, ODE_METHOD, RTOL,
-                                     STIFF_METHOD, STIFF_RATIO, Check, IntegrationFailed, bound, difference_measure,
-                                     integrate_pieces, slope_function)
+from calcsheet.derive.verify import (AGREEMENT, ATOL_SHARE, CONTINUITY, EACH_INTERVAL, ODE, ODE_METHOD, RTOL,
+                                     STIFF_METHOD, STIFF_RATIO, SWITCHED_INTEGRATION, Check, IntegrationFailed,
+                                     difference_measure, integrate_pieces, slope_function)
 from calcsheet.model import Model
 
 CONTINUITY_LIMIT = 1e-9  # both sides are the same closed form to about 1e-12 (QUADPACK's rtol for integral terms)
@@ -49,10 +49,8 @@ def verify_switched(model: Model, intervals, y, points: list[float]) -> Switched
 
 
 def check_each_interval(intervals) -> Check:
-    passed = all(i.derivation.verification.passed for i in intervals)
-    return Check("each interval", passed, "substitution, initial condition and integration per interval",
-                 "all intervals verified (see each interval's verification step)" if passed
-                 else "an interval failed its own verification")
+    failed = tuple(k for k, i in enumerate(intervals, start=1) if not i.derivation.verification.passed)
+    return Check(EACH_INTERVAL, not failed, "per_interval", points=len(intervals), facts=(("failed", failed),))
 
 
 # ----------------------------------------------------------------------------- continuity
@@ -67,11 +65,8 @@ def check_continuity(model: Model, intervals) -> Check:
         compared.append((before.end, right, left))
         sizes.append(max(size, abs(left) if math.isfinite(left) else 0.0))
     worst = difference_measure(compared, sizes)
-    method = (f"each interval's particular solution evaluated at its end with its own values (sympy, "
-              f"{DIGITS} digits; integral terms by mpmath quadrature), against the next interval's initial value")
-    return Check("continuity at the switches", worst <= CONTINUITY_LIMIT, method,
-                 f"largest difference {bound(worst)} at {len(compared)} switch{'es' if len(compared) > 1 else ''} "
-                 f"(limit {CONTINUITY_LIMIT:.0e}), {MEASURE_WORDS}", worst)
+    return Check(CONTINUITY, worst <= CONTINUITY_LIMIT, "closed_form_at_switch", worst, CONTINUITY_LIMIT,
+                 len(compared), (("digits", DIGITS), ("atol_share", ATOL_SHARE)))
 
 
 def particular_at(model: Model, solution, x: float) -> float:
@@ -133,7 +128,8 @@ def check_switched_integration(model: Model, intervals, y, points: list[float]):
         try:
             found = integrate_pieces(local, slope, interval.start, state, targets, y, method)
         except IntegrationFailed as failure:
-            return Check("switched integration", False, _described(methods), f"interval {k}: {failure}"), ()
+            return Check(SWITCHED_INTEGRATION, False, ODE, limit=AGREEMENT,
+                         facts=_facts(methods) + failure.facts + (("interval", k),)), ()
         for x, integrated, reached in found:
             size = max(size, reached)
             if x in inside:
@@ -141,9 +137,8 @@ def check_switched_integration(model: Model, intervals, y, points: list[float]):
                 sizes.append(size)
         state = found[-1][1]
     worst = difference_measure(compared, sizes)
-    return Check("switched integration", worst <= AGREEMENT, _described(methods),
-                 f"largest difference {bound(worst)} over {len(compared)} points (limit {AGREEMENT:.0e}), "
-                 f"{MEASURE_WORDS}", worst), tuple(compared)
+    return Check(SWITCHED_INTEGRATION, worst <= AGREEMENT, ODE, worst, AGREEMENT, len(compared),
+                 _facts(methods)), tuple(compared)
 
 
 def _method(slope, targets: list[float], span: float) -> str:
@@ -158,10 +153,8 @@ def _method(slope, targets: list[float], span: float) -> str:
     return STIFF_METHOD if ratio > STIFF_RATIO else ODE_METHOD
 
 
-def _described(methods: list[tuple[int, str]]) -> str:
-    used = sorted({m for _, m in methods}, key=[ODE_METHOD, STIFF_METHOD].index)
-    stiff = [str(k) for k, m in methods if m == STIFF_METHOD]
-    words = " or ".join(METHOD_WORDS[m] for m in used) or METHOD_WORDS[ODE_METHOD]
-    return (f"scipy solve_ivp, {words}, rtol {RTOL:.0e}, atol {RTOL * ATOL_SHARE:.0e} × the response's size so far, "
-            "on each interval's equation as stated, restarted at every switch and at every jump of the forcing, "
-            "the state carried across" + (f" (stiff method on interval {', '.join(stiff)})" if stiff else ""))
+def _facts(methods: list[tuple[int, str]]) -> tuple[tuple[str, object], ...]:
+    """The integrators used (explicit first), the intervals given the stiff one, and the tolerances."""
+    used = tuple(sorted({m for _, m in methods}, key=[ODE_METHOD, STIFF_METHOD].index)) or (ODE_METHOD,)
+    stiff = tuple(k for k, m in methods if m == STIFF_METHOD)
+    return (("integrators", used), ("stiff_intervals", stiff), ("rtol", RTOL), ("atol_share", ATOL_SHARE))

@@ -31,19 +31,33 @@ ODE_METHOD = "DOP853"
 STIFF_METHOD = "Radau"
 STIFF_RATIO = 1e4  # span over the shortest natural scale beyond which an explicit method is not used
 MAX_SLOPE_CALLS = 2_000_000  # the bound on the integrator's work
-METHOD_WORDS = {ODE_METHOD: "DOP853 (explicit Runge–Kutta of order 8)",
-                STIFF_METHOD: "Radau (implicit Runge–Kutta of order 5, for stiff equations)"}
-MEASURE_WORDS = ("each difference measured as the integrator measures its error: against |y| + "
-                 f"{ATOL_SHARE:g} × the largest |y| so far")
+
+# What a check is (Check.code) and how it was made (Check.how); sheet/checks_words.py words each.
+SUBSTITUTION, INITIAL_CONDITION, INTEGRATION = "substitution", "initial_condition", "integration"
+EACH_INTERVAL, CONTINUITY, SWITCHED_INTEGRATION = "each_interval", "continuity", "switched_integration"
+SYMBOLIC, NUMERIC_POINTS, SYMBOLIC_AND_NUMERIC, NUMERIC, ODE = (
+    "symbolic", "numeric_points", "symbolic_and_numeric", "numeric", "ode")
+# Why the independent integration could not be completed (fact "failure").
+NOT_FINITE_START, TOO_MUCH_WORK, SLOPE_NOT_FINITE, SOLVER_STOPPED, VALUES_NOT_FINITE, OVERFLOW = (
+    "initial_value_not_finite", "too_much_work", "slope_not_finite", "solver_stopped", "values_not_finite",
+    "overflow")
 
 
 @dataclass(frozen=True)
 class Check:
-    name: str
+    """One independent check, as facts: what it is, whether it passed, how it was made, what it measured
+    against which limit, over how many points, and the other facts its words need (``facts``)."""
+
+    code: str
     passed: bool
-    method: str
-    detail: str
+    how: str
     measure: float | None = None  # the residual or difference found, where one is measured
+    limit: float | None = None
+    points: int = 0
+    facts: tuple[tuple[str, object], ...] = ()
+
+    def fact(self, name: str, default=None):
+        return dict(self.facts).get(name, default)
 
 
 @dataclass(frozen=True)
@@ -77,7 +91,7 @@ def check_substitution(model: Model, solution: Solution, points: list[float]) ->
     residual = model.residual.subs({model.derivative: sp.diff(y, x), model.unknown.symbol: y})
     zero, done = vanishes(residual)
     if zero:
-        return Check("substitution", True, "symbolic", "lhs - rhs simplifies to exactly 0")
+        return Check(SUBSTITUTION, True, SYMBOLIC)
     values = {**model.numeric_values(), **solution.initial_values(model)}
     terms = sp.Add.make_args(sp.expand(model.residual))
     worst = 0.0
@@ -93,11 +107,8 @@ def check_substitution(model: Model, solution: Solution, points: list[float]) ->
             if math.isfinite(relative):
                 break
         worst = max(worst, relative) if math.isfinite(relative) else math.inf
-    passed = worst <= RESIDUAL_TOLERANCE
-    reason = "symbolic simplification did not finish in time" if not done else "symbolic simplification did not reach 0"
-    return Check("substitution", passed, "numeric at sample points",
-                 f"{reason}; largest relative residual {bound(worst)} at {len(_sample_points(points))} points "
-                 f"(limit {RESIDUAL_TOLERANCE:.0e})", worst)
+    return Check(SUBSTITUTION, worst <= RESIDUAL_TOLERANCE, NUMERIC_POINTS, worst, RESIDUAL_TOLERANCE,
+                 len(_sample_points(points)), (("simplify_finished", done),))
 
 
 def check_initial_condition(model: Model, solution: Solution, y, points: list[float]) -> Check:
@@ -109,12 +120,9 @@ def check_initial_condition(model: Model, solution: Solution, y, points: list[fl
     target = model.initial_value.si
     size = max([abs(target)] + [abs(v) for v in map(y, _sample_points(points)) if math.isfinite(v)])
     numeric_gap = abs(value - target) / max(size, 1e-300)
-    if zero:
-        return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "symbolic and numeric",
-                     f"{model.unknown.name}({solution.x0}) - {solution.y0} simplifies to 0; numerical relative gap "
-                     f"{bound(numeric_gap)}", numeric_gap)
-    return Check("initial condition", numeric_gap <= RESIDUAL_TOLERANCE, "numeric",
-                 f"relative gap {bound(numeric_gap)} (limit {RESIDUAL_TOLERANCE:.0e})", numeric_gap)
+    names = (("unknown", model.unknown.name), ("x0", str(solution.x0)), ("y0", str(solution.y0)))
+    return Check(INITIAL_CONDITION, numeric_gap <= RESIDUAL_TOLERANCE, SYMBOLIC_AND_NUMERIC if zero else NUMERIC,
+                 numeric_gap, RESIDUAL_TOLERANCE, 1, names)
 
 
 def vanishes(expr: sp.Expr) -> tuple[bool, bool]:
@@ -141,19 +149,16 @@ def _integration(model: Model, y, points: list[float]) -> dict:
     slope = slope_function(model, scale=max(span, 1e-300))
     ratio = _stiffness(model, slope, targets, span)
     method = STIFF_METHOD if ratio > STIFF_RATIO else ODE_METHOD
-    described = (f"scipy solve_ivp, {METHOD_WORDS[method]}, rtol {RTOL:.0e}, atol {RTOL * ATOL_SHARE:.0e} × the "
-                 "response's size so far, on the equation as stated" + (", restarted at each jump of the forcing"
-                                                                  if _jumps(model, x0, targets[-1]) else "")
-                 + (f" (stiff method: the span is {ratio:.1e} natural scales)" if method == STIFF_METHOD else ""))
+    facts = (("integrator", method), ("rtol", RTOL), ("atol_share", ATOL_SHARE),
+             ("restarted", bool(_jumps(model, x0, targets[-1]))), ("stiff_ratio", ratio))
     try:
         integrated = integrate_pieces(model, slope, x0, y0, targets, y, method)
     except IntegrationFailed as failure:
-        return {"integration": Check("numerical integration", False, described, str(failure)), "compared": ()}
+        return {"integration": Check(INTEGRATION, False, ODE, limit=AGREEMENT,
+                                     facts=facts + failure.facts), "compared": ()}
     compared = tuple((xi, y(xi), yi) for xi, yi, _ in integrated)
     worst = difference_measure(compared, [size for _, _, size in integrated])
-    return {"integration": Check("numerical integration", worst <= AGREEMENT, described,
-                                 f"largest difference {bound(worst)} over {len(compared)} points (limit "
-                                 f"{AGREEMENT:.0e}), {MEASURE_WORDS}", worst),
+    return {"integration": Check(INTEGRATION, worst <= AGREEMENT, ODE, worst, AGREEMENT, len(compared), facts),
             "compared": compared}
 
 
@@ -175,7 +180,11 @@ def difference_measure(compared, sizes) -> float:
 
 
 class IntegrationFailed(Exception):
-    """The independent integration could not be completed; the message says why, in our words."""
+    """The independent integration could not be completed; ``facts`` say why (a "failure" code)."""
+
+    def __init__(self, failure: str, **more):
+        super().__init__(failure)
+        self.facts = (("failure", failure),) + tuple(more.items())
 
 
 def integrate_pieces(model: Model, slope, x0: float, y0: float, targets: list[float], size_hint=None,
@@ -189,7 +198,7 @@ def integrate_pieces(model: Model, slope, x0: float, y0: float, targets: list[fl
     start.
     """
     if not math.isfinite(y0):
-        raise IntegrationFailed("the initial value is not finite")
+        raise IntegrationFailed(NOT_FINITE_START)
     end = targets[-1]
     edges = sorted({x0, end} | set(_jumps(model, x0, end)) | {t for t in targets if t > x0})
     wanted = set(targets)
@@ -207,15 +216,13 @@ def integrate_pieces(model: Model, slope, x0: float, y0: float, targets: list[fl
                 result = solve_ivp(counted, (a, b), [state], method=method, t_eval=[b],
                                    rtol=RTOL, atol=RTOL * ATOL_SHARE * size)
             except _TooMuchWork:
-                raise IntegrationFailed(f"not completed: the integration needed more than {MAX_SLOPE_CALLS:.0e} "
-                                        "evaluations of the slope") from None
+                raise IntegrationFailed(TOO_MUCH_WORK, calls=MAX_SLOPE_CALLS) from None
             except (ValueError, ArithmeticError):  # an implicit method met a slope that is not finite
-                raise IntegrationFailed("the integrator met a slope that is not finite") from None
+                raise IntegrationFailed(SLOPE_NOT_FINITE) from None
         if not result.success:
-            raise IntegrationFailed(f"the integrator stopped: {result.message}")
+            raise IntegrationFailed(SOLVER_STOPPED)
         if not np.all(np.isfinite(result.y[0])):
-            raise IntegrationFailed("the integrated values are not finite"
-                                    + (" (the integrator met an overflow)" if caught else ""))
+            raise IntegrationFailed(OVERFLOW if caught else VALUES_NOT_FINITE)
         state = float(result.y[0][-1])
         size = max(size, abs(state))
         if b in wanted:

@@ -16,6 +16,7 @@ from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
+from calcsheet.sheet.check_words import check_row, checks_lead
 from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Section,
                                       Sheet, Table, TitleBlock)
 from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression
@@ -35,6 +36,7 @@ class _Notation:
         self.dy = Math(self.names[m.derivative], f"d{m.unknown.name}/d{m.variable.name}")
         self.yx_latex = rf"{latex(self.y)}\left({latex(self.x)}\right)"
         self.yx_text = f"{m.unknown.name}({m.variable.name})"
+        self.step_numbers: dict[str, int] = {}  # section key -> step number, set by compose before any step is built
 
     def tex(self, expr) -> str:
         return latex(expr, self.names)
@@ -57,20 +59,24 @@ class _Notation:
 
 def compose(d: Derivation) -> Sheet:
     n = _Notation(d)
-    steps = [_governing(d, n), _classification(d, n), _standard_form(d, n), _integrating_factor(d, n),
-             _integration(d, n), _initial_condition(d, n), _split(d, n), _numbers(d, n), _verification(d)]
-    numbered = tuple(Section(s.key, s.title, s.blocks, i + 1) for i, s in enumerate(steps))
+    n.step_numbers = {key: k for k, (key, _) in enumerate(STEPS, start=1)}  # for cross-references between steps
+    steps = [build(d, n) for _, build in STEPS]
+    if [s.key for s in steps] != [key for key, _ in STEPS]:
+        raise AssertionError("a step builder's section key differs from its place in STEPS")
+    numbered = tuple(Section(s.key, s.title, s.blocks, n.step_numbers[s.key]) for s in steps)
     response = Section("response", "Response at a glance", (response_figure(d),))
     return Sheet(title_block=title_block(d.model.sheet), labels=sheet_labels(), outcome=_outcome(d),
                  sections=(response, _basis(d)) + numbered,
-                 cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)), signoff=d.model.sheet.signoff,
+                 cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)),
+                 signoff=d.model.sheet.signoff,
                  revisions=d.model.sheet.revisions, metadata=_metadata(d), record=build_record(d, n),
                  source_name=d.model.path, style=d.model.sheet.style)
 
 
 def _metadata(d: Derivation) -> tuple[tuple[str, str], ...]:
     info = d.model.sheet
-    subject = f"Calculation {info.number}" + (f", revision {info.revision}" if info.revision else "") if info.number else ""
+    revision = f", revision {info.revision}" if info.revision else ""
+    subject = f"Calculation {info.number}{revision}" if info.number else ""
     date = info.date or max((r.date for r in info.revisions if r.date), default="")
     pairs = (("title", info.title), ("author", info.originator), ("subject", subject),
              ("keywords", info.number), ("date", date))
@@ -156,8 +162,9 @@ def _governing(d: Derivation, n: _Notation) -> Section:
                   f"{m.variable.unit_text or 'no unit'} as the variable:"),
         Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "from the law" if m.kind else "as stated"),
         Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
-        Table(("Condition", "Value"), ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
-                                         f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}"),),
+        Table(("Condition", "Value"),
+              ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
+                f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}"),),
               "Initial condition"),
         Paragraph("Units were checked on every additive term of the equation and on every function argument; "
                   "all terms share one dimension."),
@@ -231,7 +238,8 @@ def _classification(d: Derivation, n: _Notation) -> Section:
     )
     return Section("classification", "Classification", (
         Table(("Property", "Finding", "Reason"), rows),
-        Paragraph("A first-order linear ordinary differential equation: it is solved by the integrating-factor method."),
+        Paragraph("A first-order linear ordinary differential equation: it is solved by the integrating-factor "
+                  "method."),
     ))
 
 
@@ -284,7 +292,7 @@ def _integration(d: Derivation, n: _Notation) -> Section:
         reasons = "; ".join(_FALLBACK_WORDS[code] for code in s.fallback_codes)
         blocks.append(Note("method", f"No closed form for part of the integral: {reasons}. That part is "
                                      "kept as a definite integral from the initial point and evaluated numerically "
-                                     "(step 8)."))
+                                     f"(step {n.step_numbers['numbers']})."))
     if s.branches:
         blocks.append(Note("method", "sympy split the integral into cases; the stated values select the case "
                                      + "; ".join(s.branches) + "."))
@@ -310,8 +318,8 @@ def _split(d: Derivation, n: _Notation) -> Section:
     s, m, num = d.solution, d.model, d.numbers
     name = m.unknown.name
     blocks = [
-        Paragraph(f"Natural response: the part of the form {s.constant}/μ, fixed by the initial condition, that the system "
-                  "produces on its own. Forced response: the part sustained by the forcing r."),
+        Paragraph(f"Natural response: the part of the form {s.constant}/μ, fixed by the initial condition, that the "
+                  "system produces on its own. Forced response: the part sustained by the forcing r."),
         n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", s.natural, label="natural"),
         n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
     ]
@@ -422,8 +430,7 @@ def _result(verdict) -> str:
 
 
 def checks_table(checks, caption: str = "") -> Table:
-    return Table(("Check", "Method", "Result", "Detail"),
-                 tuple((c.name, c.method, "passed" if c.passed else "FAILED", c.detail) for c in checks), caption,
+    return Table(("Check", "Method", "Result", "Detail"), tuple(check_row(c) for c in checks), caption,
                  row_status=tuple("pass" if c.passed else "fail" for c in checks), status_column=2)
 
 
@@ -511,8 +518,15 @@ def _si_unit_text(declared) -> str:
     return unit_label(coherent_si(declared.unit))
 
 
-def _verification(d: Derivation) -> Section:
+def _verification(d: Derivation, n: _Notation) -> Section:
     return Section("verification", "Verification", (
-        Paragraph("Three independent checks; none reuses the arithmetic of the derivation."),
+        Paragraph(checks_lead(len(d.verification.checks))),
         checks_table(d.verification.checks),
     ))
+
+
+# The numbered steps in their order: (section key, builder). Cross-references use the numbers this gives.
+STEPS = (("governing", _governing), ("classification", _classification), ("standard_form", _standard_form),
+         ("integrating_factor", _integrating_factor), ("integration", _integration),
+         ("initial_condition", _initial_condition), ("split", _split), ("numbers", _numbers),
+         ("verification", _verification))

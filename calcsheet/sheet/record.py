@@ -8,11 +8,13 @@ from __future__ import annotations
 
 from calcsheet.derive.verify import bound
 from calcsheet.mathtext import plain
+from calcsheet.sheet.check_words import check_row
 from calcsheet.subjects import SUBJECTS, UNKNOWN
 from calcsheet.sheet.quantities import record_value, rounded
 
 RECORD_FORMAT = "calcsheet-record"
 RECORD_VERSION = 2
+SHEET_KEYS = ("title", "number", "revision", "project", "originator", "purpose", "references", "assumptions")
 INTERVAL_KEYS = ("kind", "classification", "solution", "time_constant", "final_value",
                  "sinusoidal_steady_state", "verification")  # taken from each interval's own record
 
@@ -23,14 +25,15 @@ def build_record(d, n) -> dict:
         "format": RECORD_FORMAT,
         "version": RECORD_VERSION,
         "sheet": {k: getattr(m.sheet, k) if not isinstance(getattr(m.sheet, k), tuple) else list(getattr(m.sheet, k))
-                  for k in ("title", "number", "revision", "project", "originator", "purpose", "references", "assumptions")},
+                  for k in SHEET_KEYS},
         "model": {
             "equation": m.equation_text,
             "unknown": {"name": m.unknown.name, "unit": m.unknown.unit_text},
             "variable": {"name": m.variable.name, "unit": m.variable.unit_text},
             "parameters": [{"name": p.name, "value": p.text, "si": rounded(p.si), "source": p.source, "note": p.note}
                            for p in m.parameters],
-            "initial": {"at": record_value(m.initial_at.si, m.variable), "value": record_value(m.initial_value.si, m.unknown)},
+            "initial": {"at": record_value(m.initial_at.si, m.variable),
+                        "value": record_value(m.initial_value.si, m.unknown)},
         },
         "kind": None if m.kind is None else {
             "name": m.kind.name, "title": m.kind.title, "law": m.kind.law, "forcing": m.kind.forcing,
@@ -88,8 +91,12 @@ def _finding(note, use) -> dict:
 
 def verification_record(verification) -> dict:
     return {"passed": verification.passed,
-            "checks": [{"name": ch.name, "passed": ch.passed, "method": ch.method, "detail": ch.detail}
-                       for ch in verification.checks]}
+            "checks": [_check_record(ch) for ch in verification.checks]}
+
+
+def _check_record(check) -> dict:
+    name, method, _, detail = check_row(check)
+    return {"name": name, "code": check.code, "passed": check.passed, "method": method, "detail": detail}
 
 
 def _found(verdict, m):

@@ -23,6 +23,7 @@ from calcsheet.derive.verify import AGREEMENT, ATOL_SHARE, difference_measure
 from calcsheet.errors import ModelRefused
 from calcsheet.pipeline import build_sheet, render
 from calcsheet.source.loader import load_model
+from calcsheet.sheet.check_words import detail_words, method_words
 
 ROOT = Path(__file__).resolve().parents[2]
 COMMAND = str(Path(sys.executable).parent / "calcsheet")  # the installed command line
@@ -101,7 +102,7 @@ def test_singular_point_at_the_validity_limit_is_found_and_not_checked(tmp_path)
     assert d.numbers.valid_until[0] == pytest.approx(4500.0, rel=1e-9)
     assert all(x < 4500.0 for x, _, _ in d.verification.compared)
     assert d.verification.passed and d.passed
-    assert "against |y| + 0.01" in d.verification.integration.detail
+    assert "against |y| + 0.01" in detail_words(d.verification.integration)
 
 
 # --------------------------------------------------------------- class: removable singularities (0/0)
@@ -203,7 +204,8 @@ def test_nanosecond_time_constant_seen_over_an_hour_uses_a_stiff_method(tmp_path
     # source: the first-order lag of a ramp). The span is 3.6e12 time constants.
     tau, T, t = 1e-9, 10.0, 3600.0
     d = derived(tmp_path, free("tau*dy/dt + y = 1 + t/T", 'tau = "1 ns"\nT = "10 s"', "0", '"1 h"'))
-    assert "Radau" in d.verification.integration.method and "e+12 natural scales" in d.verification.integration.method
+    method = method_words(d.verification.integration)
+    assert "Radau" in method and "e+12 natural scales" in method
     assert d.verification.passed
     assert d.numbers.values[0].y == pytest.approx(1 + (t - tau) / T, rel=1e-12)
 
@@ -214,7 +216,7 @@ def test_integration_restarts_at_the_edges_of_a_pulse(tmp_path):
     tau, t1, t2 = 2.0, 1.0, 1.7
     d = derived(tmp_path, free("tau*dy/dt + y = A*step(t - t1) - A*step(t - t2)",
                                'tau = "2 s"\nA = "1"\nt1 = "1 s"\nt2 = "1.7 s"', "0", '"1.5 s", "3 s", "60 s"'))
-    assert "restarted at each jump of the forcing" in d.verification.integration.method
+    assert "restarted at each jump of the forcing" in method_words(d.verification.integration)
     assert d.verification.passed
 
     def exact(t):

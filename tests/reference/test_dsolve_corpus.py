@@ -27,6 +27,7 @@ from calcsheet.derive.derivation import Derivation, derive
 from calcsheet.derive.integrating_factor import Solution, solve
 from calcsheet.model import Model
 from calcsheet.source.loader import load_model
+from calcsheet.sheet.check_words import check_row
 from corpus import CASES, Case, toml_text
 
 DSOLVE_SECONDS = 20.0  # a case whose dsolve runs longer is skipped, with the reason
@@ -265,5 +266,5 @@ def test_self_verification_agrees_with_the_oracles(result):
     """The oracles above accept every solution, so calcsheet's own checks must pass too."""
     derivation = result.derivation
     assert derivation is not None, repr(result.error)
-    failed = [f"{c.name}: {c.detail}" for c in derivation.verification.checks if not c.passed]
+    failed = [" | ".join(check_row(c)) for c in derivation.verification.checks if not c.passed]
     assert not failed, failed
