@@ -20,8 +20,8 @@ from calcsheet.model import Model
 
 @dataclass(frozen=True)
 class Classification:
-    order: int
-    linear: bool
+    """A model classify accepts is first-order and linear by construction (anything else is refused)."""
+
     homogeneous: bool
     constant_coefficients: bool
     a: sp.Expr  # coefficient of y'
@@ -48,7 +48,7 @@ def classify(model: Model) -> Classification:
     p = tidy(b / a)
     _refuse_bad_coefficient(p, model)
     r = sp.Add(*(tidy(term) for term in sp.Add.make_args(sp.expand(-c / a, deep=False))))
-    return Classification(order=1, linear=True, homogeneous=_is_zero(r),
+    return Classification(homogeneous=_is_zero(r),
                           constant_coefficients=x not in p.free_symbols, a=a, b=b, c=c, p=p, r=r)
 
 

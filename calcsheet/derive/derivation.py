@@ -9,7 +9,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from calcsheet.derive.classify import Classification, classify
-from calcsheet.derive.evaluate import QUAD_METHOD, QuadratureLog, make_evaluator
+from calcsheet.derive.evaluate import QuadratureLog, make_evaluator
 from calcsheet.derive.integrating_factor import Solution, solve
 from calcsheet.derive.numbers import Numbers, compute_numbers
 from calcsheet.derive.safe_numeric import NotFinite
@@ -29,7 +29,6 @@ class Derivation:
     verification: Verification
     curve: tuple[tuple[float, float], ...]  # (x, y) in SI over numbers.span, for plots
     quadrature: QuadratureLog | None
-    quadrature_method: str = QUAD_METHOD
     response: object = None  # the ResponseEvaluator: y(x) in SI, for intervals that follow this one
 
     @property

@@ -25,8 +25,6 @@ from calcsheet.model import Model
 QUAD_RTOL = 1e-12
 FLOAT_RANGE = 1.7e308  # just inside the largest double (about 1.797e308)
 QUAD_SUBINTERVALS = 400  # QUADPACK's bound on its work: at most this many subdivisions per integral
-QUAD_METHOD = ("adaptive Gauss–Kronrod quadrature (QUADPACK QAGS via scipy.integrate.quad), "
-               f"relative tolerance {QUAD_RTOL:.0e}, at most {QUAD_SUBINTERVALS} subintervals")
 
 
 @dataclass(frozen=True)

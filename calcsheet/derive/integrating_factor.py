@@ -23,7 +23,6 @@ from calcsheet.model import Model
 class Solution:
     x0: sp.Expr  # the initial abscissa: 0 or a symbol such as t_0
     y0: sp.Symbol  # the initial value, e.g. v_0
-    dummy: sp.Symbol  # integration variable of the definite-integral form
     P: sp.Expr  # ∫ p dx (no constant)
     mu: sp.Expr
     mu_r: sp.Expr
@@ -98,7 +97,7 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         sp.Integral(compact(mu.subs(x, s) * term.subs(x, s) / mu), (s, x0, x)) for term in open_terms))
     antiderivative = F + sp.Add(*(sp.Integral(sp.powsimp(mu * term), x) for term in open_terms))
     return Solution(
-        x0=x0, y0=y0, dummy=s, P=P, mu=mu, mu_r=sp.powsimp(mu * r), antiderivative=antiderivative,
+        x0=x0, y0=y0, P=P, mu=mu, mu_r=sp.powsimp(mu * r), antiderivative=antiderivative,
         open_terms=tuple(open_terms), constant=K, general=(antiderivative + K) / mu,
         constant_value=k_value, particular=natural + forced, natural=natural, forced=forced,
         forced_closed=forced_closed, branches=tuple(notes),

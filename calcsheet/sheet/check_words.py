@@ -4,6 +4,7 @@ this module alone says them, for the sheet's tables and the record alike."""
 from __future__ import annotations
 
 from calcsheet.derive import verify as v
+from calcsheet.derive.evaluate import QUAD_RTOL, QUAD_SUBINTERVALS
 
 NAMES = {v.SUBSTITUTION: "substitution", v.INITIAL_CONDITION: "initial condition",
          v.INTEGRATION: "numerical integration", v.EACH_INTERVAL: "each interval",
@@ -19,6 +20,12 @@ FAILURE_WORDS = {
     v.OVERFLOW: "the integrated values are not finite (the integrator met an overflow)",
 }
 COUNT_WORDS = {1: "One", 2: "Two", 3: "Three", 4: "Four", 5: "Five", 6: "Six"}
+
+
+def quadrature_words() -> str:
+    """How an integral term is evaluated (derive/evaluate.py), with its tolerance and its bound on work."""
+    return (f"adaptive Gauss–Kronrod quadrature (QUADPACK QAGS via scipy.integrate.quad), relative tolerance "
+            f"{QUAD_RTOL:.0e}, at most {QUAD_SUBINTERVALS} subintervals")
 
 
 def check_row(check: v.Check) -> tuple[str, str, str, str]:

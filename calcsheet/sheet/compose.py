@@ -16,7 +16,7 @@ from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
-from calcsheet.sheet.check_words import check_row, checks_lead
+from calcsheet.sheet.check_words import check_row, checks_lead, quadrature_words
 from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Section,
                                       Sheet, Table, TitleBlock)
 from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression
@@ -53,8 +53,6 @@ class _Notation:
                 text_parts.append(plain(right))
         return Equation(Math(" = ".join(tex_parts), " = ".join(text_parts)), label)
 
-    def sym(self, expr) -> Math:
-        return Math(self.tex(expr), plain(expr))
 
 
 def compose(d: Derivation) -> Sheet:
@@ -344,7 +342,7 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     if num.sine is not None:
         blocks.append(_steady_sine_table(d))
     if d.quadrature is not None:
-        blocks.append(Note("method", f"The integral term is evaluated by {d.quadrature_method}. Largest error "
+        blocks.append(Note("method", f"The integral term is evaluated by {quadrature_words()}. Largest error "
                                      "estimate over every evaluation made for this sheet: "
                                      f"{bound(d.quadrature.largest_error)} {si_y}".rstrip() + "."))
         if getattr(d.quadrature, "troubled", 0):

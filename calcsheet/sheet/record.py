@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from calcsheet.derive.verify import bound
 from calcsheet.mathtext import plain
-from calcsheet.sheet.check_words import check_row
+from calcsheet.sheet.check_words import check_row, quadrature_words
 from calcsheet.subjects import SUBJECTS, UNKNOWN
 from calcsheet.sheet.quantities import record_value, rounded
 
@@ -41,7 +41,7 @@ def build_record(d, n) -> dict:
             "valid": not m.kind.not_valid,
         },
         "classification": {
-            "order": c.order, "linear": c.linear, "homogeneous": c.homogeneous,
+            "order": 1, "linear": True, "homogeneous": c.homogeneous,  # refused otherwise
             "constant_coefficients": c.constant_coefficients, "p": plain(c.p), "r": plain(c.r),
         },
         "solution": {
@@ -53,7 +53,7 @@ def build_record(d, n) -> dict:
             "natural": {"latex": n.tex(s.natural), "text": plain(s.natural)},
             "forced": {"latex": n.tex(s.forced), "text": plain(s.forced)},
             "quadrature": None if d.quadrature is None else {
-                "method": d.quadrature_method, "largest_error_estimate": bound(d.quadrature.largest_error),
+                "method": quadrature_words(), "largest_error_estimate": bound(d.quadrature.largest_error),
                 "evaluations_with_warnings": getattr(d.quadrature, "troubled", 0)},
         },
         "time_constant": record_value(num.time_constant, m.variable),

@@ -8,7 +8,7 @@ import pint
 
 from calcsheet.errors import InputError
 from calcsheet.source import expressions as ex
-from calcsheet.source.units import dimension_text, registry
+from calcsheet.source.units import dimension_text, registry, same_dimension
 
 UnitOf = Callable[[str], pint.Unit]
 
@@ -18,11 +18,6 @@ def check_equation(equation: ex.Equation, unit_of: UnitOf,
     """Check that every additive term on both sides has one dimension; return it."""
     terms = ex.additive_terms(equation.left) + ex.additive_terms(equation.right)
     return _common_dimension([node for _, node in terms], _Analyser(unit_of, derivative_unit))
-
-
-def dimension_of(node: ex.Node, unit_of: UnitOf, derivative_unit=None) -> pint.Unit:
-    """The unit of an expression, after checking everything inside it."""
-    return _Analyser(unit_of, derivative_unit).unit(node)
 
 
 class _Analyser:
@@ -89,7 +84,7 @@ def _common_dimension(nodes: list[ex.Node], analyser: _Analyser) -> pint.Unit:
         unit = analyser.unit(node)
         if first_unit is None:
             first_unit, first_node = unit, node
-        elif not _same(unit, first_unit):
+        elif not same_dimension(unit, first_unit):
             raise InputError(
                 f"term '{ex.render(node)}' has dimension {dimension_text(unit)} but term "
                 f"'{ex.render(first_node)}' has dimension {dimension_text(first_unit)}"
@@ -118,10 +113,6 @@ def _product(a: pint.Unit, b: pint.Unit) -> pint.Unit:
 
 def _dimensionless(unit: pint.Unit) -> bool:
     return not registry().Quantity(1, unit).dimensionality
-
-
-def _same(a: pint.Unit, b: pint.Unit) -> bool:
-    return registry().Quantity(1, a).dimensionality == registry().Quantity(1, b).dimensionality
 
 
 def _is_zero(node: ex.Node) -> bool:

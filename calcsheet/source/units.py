@@ -108,7 +108,7 @@ def _constant_hint(root: str, number: str) -> str:
 
 
 def _refuse_constants(unit: pint.Unit, text: str) -> None:
-    for name in unit._units:
+    for name in _factors(unit):
         _, root, _ = registry().parse_unit_name(name)[0]
         if root in physical_constants():
             raise ConstantAsUnit(text.strip(), root)
@@ -221,15 +221,23 @@ def check_magnitude(si_value: float, text: str) -> None:
 def is_angular(unit: pint.Unit) -> bool:
     """True for units of angle or of angle per something (deg, rev, rpm, rad/s), asked of pint:
     angles are dimensionless in pint, but their root units keep the radian."""
-    root = registry().Quantity(1, unit)
-    if not root._is_multiplicative:
+    if is_offset(unit):
         return False  # an absolute temperature scale, never an angle
-    return any(name == "radian" and power != 0 for name, power in root.to_root_units().units._units.items())
+    root = registry().Quantity(1, unit).to_root_units().units
+    return any(name == "radian" and power != 0 for name, power in _factors(root).items())
 
 
 def is_offset(unit: pint.Unit) -> bool:
     """True for absolute temperature scales with an offset (degC, degF)."""
-    return not registry().Quantity(1, unit)._is_multiplicative
+    try:  # zero of the scale is not zero of its base unit: 0 degC is 273.15 K
+        return registry().Quantity(0.0, unit).to_base_units().magnitude != 0
+    except pint.errors.OffsetUnitCalculusError:
+        return True
+
+
+def _factors(unit: pint.Unit):
+    """The unit's names with their exponents ({'meter': 1, 'second': -2}), through pint's public helper."""
+    return pint.util.to_units_container(unit)
 
 
 def si_unit(unit: pint.Unit) -> pint.Unit:
@@ -291,7 +299,7 @@ def coherent_si(unit: pint.Unit) -> pint.Unit:
     units kept (J/(kg*K) stays), anything else (min, L, degC, rpm) in base units."""
     ureg = registry()
     result = ureg.dimensionless
-    for name, exponent in unit._units.items():
+    for name, exponent in _factors(unit).items():
         _, root, _ = ureg.parse_unit_name(name)[0]
         root = "kilogram" if root == "gram" else root
         if root in COHERENT:
@@ -306,7 +314,7 @@ def unit_label(unit: pint.Unit) -> str:
     """A compact label: numerator*numerator/(denominator*denominator), powers with ^."""
     ureg = registry()
     up, down = [], []
-    for name, exponent in unit._units.items():
+    for name, exponent in _factors(unit).items():
         symbol = f"{ureg.Unit(name):~}"
         target = up if exponent > 0 else down
         power = abs(exponent)
