@@ -11,6 +11,8 @@ from dataclasses import dataclass, field
 import pint
 import sympy as sp
 
+from calcsheet.formatting import number
+from calcsheet.kinds.base import KindUse
 from calcsheet.source import expressions as ex
 
 
@@ -50,12 +52,27 @@ class SheetInfo:
 
 @dataclass(frozen=True)
 class Declared:
-    """The unknown or the independent variable: a name, the unit to report in, a symbol."""
+    """The unknown or the independent variable: a name, the unit to report in, a symbol.
+
+    ``shown`` converts an SI value to the declared unit (a scale and, for degC and degF, an offset) and
+    ``is_time`` says whether the unit is a time; the loader, which owns pint, sets them, so the stages
+    after it need no unit registry.
+    """
 
     name: str
     unit: pint.Unit
     unit_text: str
     symbol: sp.Symbol
+    scale: float = 1.0  # declared units per SI unit
+    offset: float = 0.0  # the declared value of SI zero (-273.15 for degC)
+    is_time: bool = False
+
+    def shown(self, si: float) -> float:
+        return si * self.scale + self.offset
+
+    def text_of(self, si: float | None) -> str:
+        """An SI value in the declared unit, e.g. '196.6 degC'."""
+        return "n/a" if si is None else f"{number(self.shown(si))} {self.unit_text}".rstrip()
 
 
 @dataclass(frozen=True)
@@ -108,7 +125,7 @@ class IntervalLaw:
     lhs: sp.Expr
     rhs: sp.Expr
     parameters: tuple["Parameter", ...]
-    kind: object = None  # a kinds.base.KindUse when the input named a model kind
+    kind: KindUse | None = None  # when the input named a model kind
     unused_parameters: tuple[str, ...] = ()
 
     def fields(self) -> dict:
@@ -144,7 +161,7 @@ class Model:
     reach: tuple[Point, ...] = ()
     criteria: tuple[Criterion, ...] = ()
     plot_to: Point | None = None  # end of the plotted range, when the input sets it
-    kind: object = None  # a kinds.base.KindUse when the input named a model kind
+    kind: KindUse | None = None  # when the input named a model kind
     switches: tuple[Switch, ...] = ()  # later intervals, in order
     unused_parameters: tuple[str, ...] = field(default=())
 

@@ -71,9 +71,7 @@ def _numeric(model: Model, cls: Classification, solution: Solution) -> Derivatio
 
 
 def _not_finite_message(model: Model, failure: NotFinite) -> str:
-    from calcsheet.sheet.quantities import in_units
-
-    where = in_units(failure.x, model.variable)
+    where = model.variable.text_of(failure.x)
     why = failure.what or "a term of it is infinite there and has no finite limit"
     return (f"the equation is not finite at {model.variable.name} = {where} ({why}); the response cannot be "
             "computed through that point")

@@ -178,11 +178,9 @@ def _refuse_overflow_before(farthest: float, at: float, model: Model) -> None:
     number to give there: refused, naming where, rather than shown as a value that is not finite."""
     if farthest < at:
         return
-    from calcsheet.sheet.quantities import in_units
-
+    x = model.variable
     raise ModelRefused(f"the response grows without bound and passes the floating-point range (about 1e308) near "
-                       f"{model.variable.name} = {in_units(at, model.variable)}, before "
-                       f"{model.variable.name} = {in_units(farthest, model.variable)}, the farthest point asked "
+                       f"{x.name} = {x.text_of(at)}, before {x.name} = {x.text_of(farthest)}, the farthest point asked "
                        "about; check the signs of the parameters (a negative loss coefficient makes the response "
                        "grow) or ask about earlier points", "evaluate")
 
@@ -245,8 +243,7 @@ def _si_unit(model: Model) -> str:
 
 
 def _is_time(model: Model) -> bool:
-    from calcsheet.source.units import registry
-    return registry().Quantity(1, model.variable.unit).dimensionality == registry().Quantity(1, "s").dimensionality
+    return model.variable.is_time
 
 
 def _natural_scale(p_value: sp.Expr, x: sp.Symbol, x0: float, model: Model) -> float:

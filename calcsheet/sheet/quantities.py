@@ -6,26 +6,11 @@ import math
 
 import sympy as sp
 
+from calcsheet.formatting import SIGNIFICANT, number  # noqa: F401  (the sheet's formatter, re-exported)
 from calcsheet.model import Declared
 from calcsheet.source.units import from_si
 
-SIGNIFICANT = 4
 RECORD_DIGITS = 10  # significant digits kept in the JSON record: stable across runs, ample for checks
-
-
-def number(value: float | None, significant: int = SIGNIFICANT) -> str:
-    """Fixed-point between 0.001 and 10^6, scientific outside; never '-0'."""
-    if value is None or not math.isfinite(value):
-        return "n/a"
-    if value == 0:
-        return "0"
-    magnitude = abs(value)
-    if 1e-3 <= magnitude < 1e6:
-        decimals = max(significant - 1 - math.floor(math.log10(magnitude)), 0)
-        text = f"{value:.{decimals}f}"
-        return "0" if float(text) == 0 else text
-    mantissa, exponent = f"{value:.{significant - 1}e}".split("e")
-    return f"{mantissa}e{int(exponent)}"
 
 
 def duration(seconds: float) -> str:
@@ -41,8 +26,7 @@ def in_units(si_value: float | None, declared: Declared) -> str:
     """An SI value shown in the unit the engineer declared, e.g. '196.6 degC'."""
     if si_value is None:
         return "n/a"
-    shown = from_si(si_value, declared.unit)
-    return f"{number(shown)} {declared.unit_text}".rstrip()
+    return declared.text_of(si_value)
 
 
 def record_value(si_value: float | None, declared: Declared) -> dict | None:

@@ -394,7 +394,9 @@ class _Builder:
         if name in RESERVED or "__" in name:
             raise InputError(f"'{name}' is a reserved name", where)
         unit = _wrap_key(lambda: units.parse_unit(unit_text), where)
-        return Declared(name, unit, unit_text, sp.Symbol(name, real=True))
+        scale, offset = units.scale_and_offset(unit)
+        return Declared(name, unit, unit_text, sp.Symbol(name, real=True), scale, offset,
+                        is_time=units.same_dimension(unit, units.parse_unit("s")))
 
     def parameters(self, taken: set[str]) -> tuple[Parameter, ...]:
         """Every parameter, each checked on its own; ``taken``: the names of the unknown and the variable."""

@@ -256,6 +256,13 @@ def from_si(value: float, unit: pint.Unit) -> float:
     return float(ureg.Quantity(value, si_unit(unit)).to(unit).magnitude)
 
 
+def scale_and_offset(unit: pint.Unit) -> tuple[float, float]:
+    """(scale, offset) with value in ``unit`` = SI value × scale + offset, so the stages after loading
+    convert by plain arithmetic, without a unit registry."""
+    offset = from_si(0.0, unit)
+    return from_si(1.0, unit) - offset, offset
+
+
 def same_dimension(a: pint.Unit, b: pint.Unit) -> bool:
     return registry().Quantity(1, a).dimensionality == registry().Quantity(1, b).dimensionality
 
