@@ -97,11 +97,34 @@ class Point:
 
 
 @dataclass(frozen=True)
+class Window:
+    """A stretch of the variable an extreme is taken over: from ``start`` to ``end``.
+
+    ``start`` None: from the initial point; ``end`` None: to the end of the analysed range. ``open_ended``:
+    written "for t >= a" (or "from a"), a claim about every later point, which the tail of the response decides.
+    """
+
+    start: Point | None = None
+    end: Point | None = None
+    open_ended: bool = False
+
+
+@dataclass(frozen=True)
+class ExtremeRequest:
+    """``[evaluate] extremes``: the largest ("max") or smallest ("min") value of the unknown over a window."""
+
+    kind: str
+    window: Window
+    text: str  # as written, e.g. "max 0 s .. 60 s"
+
+
+@dataclass(frozen=True)
 class Criterion:
     """An acceptance check such as ``v(60 s) <= 50 V`` or ``reach(50 V) <= 60 s``.
 
     ``subject`` is one of ``value`` (the unknown at ``argument``), ``reach`` (where the unknown
-    first reaches ``argument``), ``time_constant`` or ``final_value`` (no argument).
+    first reaches ``argument``), ``time_constant`` or ``final_value`` (no argument), ``max`` or ``min``
+    (the extreme of the unknown over ``window``; also written as a condition, "T <= 90 degC for t in a .. b").
     """
 
     text: str
@@ -110,6 +133,7 @@ class Criterion:
     argument: Point | None
     operator: str
     limit: Point
+    window: Window | None = None  # for max and min
 
 
 @dataclass(frozen=True)
@@ -159,6 +183,7 @@ class Model:
     initial_value: Point
     evaluate_at: tuple[Point, ...] = ()
     reach: tuple[Point, ...] = ()
+    extremes: tuple[ExtremeRequest, ...] = ()
     criteria: tuple[Criterion, ...] = ()
     plot_to: Point | None = None  # end of the plotted range, when the input sets it
     kind: KindUse | None = None  # when the input named a model kind

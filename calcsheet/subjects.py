@@ -11,13 +11,15 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 UNKNOWN, VARIABLE = "unknown", "variable"  # what a number is measured like: the unknown or the variable
+# An argument that is the unknown's name, optionally followed by a window on the variable: max(T) or max(T, 0 s, 60 s)
+WINDOW = "window"
 
 
 @dataclass(frozen=True)
 class Subject:
     name: str  # the code in the model and the record
     written: str  # how a check writes it; "" for the unknown's own name, as in v(60 s)
-    argument: str | None  # what its argument is measured like (UNKNOWN or VARIABLE), None: it takes none
+    argument: str | None  # what its argument is measured like (UNKNOWN, VARIABLE or WINDOW), None: it takes none
     found: str  # what the found quantity, and so the limit, is measured like
     guide: str  # the plot's guide for the limit: "level" (horizontal, on the unknown) or "limit_x" (vertical)
     absent_is_never: bool = False  # a quantity that does not exist counts as never happening (a level not reached)
@@ -29,7 +31,12 @@ SUBJECTS: dict[str, Subject] = {s.name: s for s in (
     Subject("reach", "reach", UNKNOWN, VARIABLE, "limit_x", absent_is_never=True),
     Subject("time_constant", "time_constant", None, VARIABLE, "limit_x"),
     Subject("final_value", "final_value", None, UNKNOWN, "level", depends_on_whole_response=True),
+    Subject("max", "max", WINDOW, UNKNOWN, "level"),
+    Subject("min", "min", WINDOW, UNKNOWN, "level"),
 )}
+# A condition over a window, "T <= 90 degC for t in 0 s .. 10 min", is the extreme that decides it: the largest
+# value for an upper limit, the smallest for a lower one.
+CONDITION_SUBJECT = {"<=": "max", "<": "max", ">=": "min", ">": "min"}
 
 
 def written_subject(written: str, unknown_name: str) -> Subject | None:
@@ -40,7 +47,7 @@ def written_subject(written: str, unknown_name: str) -> Subject | None:
 
 
 def spellings(unknown_name: str) -> str:
-    """The subjects as a check writes them, for messages: 'v(...), reach(...), time_constant or final_value'."""
+    """The subjects as a check writes them, for messages: 'v(...), reach(...), time_constant, ... or min(...)'."""
     words = [f"{s.written or unknown_name}{'(...)' if s.argument else ''}" for s in SUBJECTS.values()]
     return ", ".join(words[:-1]) + " or " + words[-1]
 

@@ -13,11 +13,12 @@ from scipy import optimize
 from calcsheet.derive.budget import LIMIT_SECONDS, within
 from calcsheet.derive.classify import Classification
 from calcsheet.derive.evaluate import ResponseEvaluator
+from calcsheet.derive.extremes import Extreme, ExtremeSearch, Piece
 from calcsheet.derive.integrating_factor import Solution
 from calcsheet.derive.readable import compact
 from calcsheet.errors import ModelRefused
 from calcsheet.model import Criterion, Model, Point
-from calcsheet.subjects import SUBJECTS, VARIABLE
+from calcsheet.subjects import SUBJECTS, VARIABLE, WINDOW
 
 SEARCH_SCALES = 60  # how many natural scales past the initial point a level is searched for
 SEARCH_POINTS = 2001
@@ -56,6 +57,7 @@ class Verdict:
     passed: bool  # False also when the criterion could not be assessed
     assessed: bool = True  # False: the model is not valid for the case, or the criterion needs points past its limit
     code: str = ""  # why not assessed: "model_not_valid" or "past_validity_limit"
+    extreme: Extreme | None = None  # for max and min: the extreme that decides it, and how it was found
 
     @property
     def status(self) -> str:
@@ -91,6 +93,7 @@ class Numbers:
     sine: SteadySine | None = None
     valid_until: tuple[float, str] | None = None  # (SI, what happens) where a kind's model stops holding
     not_valid: tuple[str, ...] = ()  # the kind's findings that the model does not hold for this case
+    extremes: tuple[Extreme, ...] = ()  # those asked for in [evaluate], then those criteria compare, each once
 
     @property
     def all_passed(self) -> bool:
@@ -142,12 +145,24 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     searched = grid[: len(samples)]
     stop = (OVERFLOWS, domain_end) if overflow else _stop(limit, domain_end, searched_to)
     reaches = tuple(reach_for(level, y, searched, samples, final, model, stop=stop) for level in model.reach)
-    verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, model, valid_until=limit, not_valid=not_valid)
-                     for c in model.criteria)
+    analysed = (x0, float(searched[-1]) if len(searched) else x0 + scale)
+    search = ExtremeSearch([Piece(model, solution, cls, y, x0, None, scale=scale)], y, analysed, final)
+    asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
+    verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, model, valid_until=limit, not_valid=not_valid,
+                                 search=search) for c in model.criteria)
     return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
                    final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
                    domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
-                   sine=_steady_sine(model, tau), valid_until=limit, not_valid=not_valid)
+                   sine=_steady_sine(model, tau), valid_until=limit, not_valid=not_valid,
+                   extremes=extremes_shown(asked, verdicts))
+
+
+def extremes_shown(asked, verdicts) -> tuple[Extreme, ...]:
+    """The extremes asked for, then those the criteria compare, each window and kind once."""
+    shown = {}
+    for extreme in list(asked) + [v.extreme for v in verdicts if v.extreme is not None]:
+        shown.setdefault(extreme.key, extreme)
+    return tuple(shown.values())
 
 
 OVERFLOW_SIZE = 1e200  # a response this large (SI) just before it stops being finite has overflowed
@@ -259,6 +274,8 @@ def _natural_scale(p_value: sp.Expr, x: sp.Symbol, x0: float, model: Model) -> f
 
 def _abscissae(model: Model) -> list[Point]:
     points = list(model.evaluate_at)
+    windows = [e.window for e in model.extremes] + [c.window for c in model.criteria if c.window is not None]
+    points += [end for w in windows for end in (w.start, w.end) if end is not None]
     for c in model.criteria:
         subject = SUBJECTS[c.subject]
         if subject.argument == VARIABLE:
@@ -410,10 +427,11 @@ def _root(g, a: float, b: float, ga_scan: float, gb_scan: float) -> float:
 
 
 def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model,
-                valid_until: tuple[float, str] | None = None, not_valid: tuple[str, ...] = ()) -> Verdict:
+                valid_until: tuple[float, str] | None = None, not_valid: tuple[str, ...] = (),
+                search: ExtremeSearch | None = None) -> Verdict:
     """PASS or FAIL, or not assessed: when the model is not valid for the case, or the criterion needs
     the response past the kind's validity limit (a tank that has overflowed)."""
-    verdict = _verdict(criterion, y, grid, samples, tau, final)
+    verdict = _verdict(criterion, Response(y, grid, samples, tau, final, search))
     if not_valid:
         return replace(verdict, passed=False, assessed=False, code=MODEL_NOT_VALID)
     if valid_until is not None and _needs_past(criterion, verdict, valid_until[0]):
@@ -430,26 +448,33 @@ class Response:
     samples: np.ndarray
     tau: float | None
     final: float | None
+    search: ExtremeSearch | None = None  # extremes over windows
 
 
-# One function per subject of calcsheet/subjects.py: the quantity a criterion compares, in SI, or None.
+# One function per subject of calcsheet/subjects.py: the quantity a criterion compares, in SI, or None; or an
+# Extreme, whose value is the quantity and which the sheet shows as what decided the criterion.
 QUANTITIES = {
     "value": lambda c, r: r.y(c.argument.si),
     "reach": lambda c, r: first_crossing(c.argument.si, r.y, r.grid, r.samples),
     "time_constant": lambda c, r: r.tau,
     "final_value": lambda c, r: r.final,
+    "max": lambda c, r: r.search.find("max", c.window, c.check),
+    "min": lambda c, r: r.search.find("min", c.window, c.check),
 }
 
 
-def _verdict(criterion: Criterion, y, grid, samples, tau, final) -> Verdict:
+def _verdict(criterion: Criterion, response: Response) -> Verdict:
     subject = SUBJECTS[criterion.subject]
-    actual = QUANTITIES[subject.name](criterion, Response(y, grid, samples, tau, final))
+    found = QUANTITIES[subject.name](criterion, response)
+    extreme = found if isinstance(found, Extreme) else None
+    actual = found.value if extreme is not None else found
     if actual is not None and not math.isfinite(actual):
         actual = None
     if actual is None and not subject.absent_is_never:  # the quantity does not exist for this response
-        return Verdict(criterion, None, False)
+        return Verdict(criterion, None, False, extreme=extreme)
     compared = math.inf if actual is None else actual  # a level never reached is reached at infinity
-    return Verdict(criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)))
+    return Verdict(criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)),
+                   extreme=extreme)
 
 
 def _needs_past(criterion: Criterion, verdict: Verdict, limit: float) -> bool:
@@ -462,6 +487,9 @@ def _needs_past(criterion: Criterion, verdict: Verdict, limit: float) -> bool:
     subject = SUBJECTS[criterion.subject]
     if subject.depends_on_whole_response:
         return True
+    if subject.argument == WINDOW:  # an extreme over a window that runs past the limit
+        window = criterion.window
+        return window.open_ended or (window.end is not None and window.end.si > limit)
     if subject.argument == VARIABLE:  # a quantity at a point: past the limit or not
         return criterion.argument.si > limit
     if subject.absent_is_never and verdict.actual is None:

@@ -13,7 +13,8 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from calcsheet.derive.derivation import Derivation, derive
-from calcsheet.derive.numbers import SEARCH_SCALES, Numbers, ValueAt, reach_for, verdict_for
+from calcsheet.derive.extremes import ExtremeSearch, Piece
+from calcsheet.derive.numbers import SEARCH_SCALES, Numbers, ValueAt, extremes_shown, reach_for, verdict_for
 from calcsheet.derive.switched_checks import SwitchedVerification, verify_switched
 from calcsheet.model import Model, Point
 from calcsheet.source.units import from_si, registry
@@ -48,11 +49,14 @@ def derive_piecewise(model: Model) -> SwitchedDerivation:
     last = intervals[-1].derivation.numbers
     values = tuple(ValueAt(p, y(p.si)) for p in model.evaluate_at)
     reaches = tuple(reach_for(level, y, grid, samples, last.final_value, model) for level in model.reach)
-    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, model)
+    search = _extreme_search(model, intervals, y, grid, last.final_value)
+    asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
+    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, model, search=search)
                      for c in model.criteria)
     curve = tuple(point for i in intervals for point in i.derivation.curve)
     span = (model.initial_at.si, curve[-1][0])
-    numbers = replace(last, values=values, reach=reaches, verdicts=verdicts, span=span, sine=None)
+    numbers = replace(last, values=values, reach=reaches, verdicts=verdicts, span=span, sine=None,
+                      extremes=extremes_shown(asked, verdicts))
     checked = sorted({v.at.si for v in values} | {x for x, _ in curve[:: max(len(curve) // 16, 1)]})
     verification = verify_switched(model, intervals, y, checked)
     return SwitchedDerivation(model, _with_final_quadrature(intervals), numbers, verification, curve)
@@ -66,7 +70,7 @@ def interval_model(model: Model, index: int, start_value: Point) -> Model:
     else:
         switch = model.switches[index - 1]
         local = replace(model, **switch.law.fields(), initial_at=switch.at, initial_value=start_value)
-    return replace(local, evaluate_at=(), reach=(), criteria=(), switches=())
+    return replace(local, evaluate_at=(), reach=(), extremes=(), criteria=(), switches=())
 
 
 def _derive_intervals(model: Model) -> tuple[Interval, ...]:
@@ -87,6 +91,14 @@ def _derive_intervals(model: Model) -> tuple[Interval, ...]:
             y_start = Point(f"{shown:.6g} {model.unknown.unit_text} (end of interval {k + 1})",
                             registry().Quantity(shown, unit), value)
     return tuple(intervals)
+
+
+def _extreme_search(model: Model, intervals, y, grid, final) -> ExtremeSearch:
+    """Extremes across the switches: each interval searched with its own law, the switch instants compared too."""
+    pieces = [Piece(i.derivation.model, i.derivation.solution, i.derivation.classification, i.derivation.response,
+                    i.start, i.end, scale=i.derivation.numbers.scale) for i in intervals]
+    return ExtremeSearch(pieces, y, (model.initial_at.si, float(grid[-1])), final,
+                         switches=tuple(s.at.si for s in model.switches))
 
 
 def _with_final_quadrature(intervals) -> tuple[Interval, ...]:

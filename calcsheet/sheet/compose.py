@@ -12,6 +12,7 @@ from calcsheet.derive.numbers import APPROACHES_FINAL, MODEL_STOPS, MOVES_AWAY, 
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, NOT_FINITE_AT_START
 from calcsheet.derive.numbers import FINAL_GROWS, FINAL_LIMIT_OF_R_OVER_P, FINAL_LIMIT_OF_SOLUTION, \
     FINAL_NOT_DECAYING, FINAL_OSCILLATES, FINAL_OUT_OF_TIME, FINAL_UNDETERMINED, FINAL_UNSETTLED, TAU_VARYING
+from calcsheet.derive.extremes import FINAL_VALUE, FORCING_JUMP, STATIONARY, SWITCH, WINDOW_END
 from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
@@ -57,9 +58,10 @@ class _Notation:
 
 def compose(d: Derivation) -> Sheet:
     n = _Notation(d)
-    n.step_numbers = {key: k for k, (key, _) in enumerate(STEPS, start=1)}  # for cross-references between steps
-    steps = [build(d, n) for _, build in STEPS]
-    if [s.key for s in steps] != [key for key, _ in STEPS]:
+    shown = [(key, build) for key, build in STEPS if key not in OPTIONAL_STEPS or OPTIONAL_STEPS[key](d)]
+    n.step_numbers = {key: k for k, (key, _) in enumerate(shown, start=1)}  # for cross-references between steps
+    steps = [build(d, n) for _, build in shown]
+    if [s.key for s in steps] != [key for key, _ in shown]:
         raise AssertionError("a step builder's section key differs from its place in STEPS")
     numbered = tuple(Section(s.key, s.title, s.blocks, n.step_numbers[s.key]) for s in steps)
     response = Section("response", "Response at a glance", (response_figure(d),))
@@ -488,7 +490,108 @@ def _found(v, m) -> str:
     subject = SUBJECTS[v.criterion.subject]
     if v.actual is None:
         return "not reached" if subject.absent_is_never else "does not exist"
-    return in_units(v.actual, m.unknown if subject.found == UNKNOWN else m.variable)
+    found = in_units(v.actual, m.unknown if subject.found == UNKNOWN else m.variable)
+    extreme = getattr(v, "extreme", None)
+    if extreme is None:
+        return found
+    margin = v.criterion.limit.si - v.actual if v.criterion.operator in ("<=", "<") else v.actual - v.criterion.limit.si
+    return f"{found} {_extreme_where(extreme, m)}; margin {difference(margin, m.unknown)}"
+
+
+def difference(si: float, declared) -> str:
+    """A difference of two values of ``declared`` (for degC, in K: an offset cancels in a difference)."""
+    shown = si * declared.scale  # the offset of degC or degF cancels in a difference
+    unit = "K" if declared.offset and declared.scale == 1 else declared.unit_text
+    return f"{number(shown)} {unit}".rstrip()
+
+
+# How an extreme was found (derive/extremes.py codes), in the sheet's and the record's words.
+EXTREME_METHOD_WORDS = {STATIONARY: "stationary point", FORCING_JUMP: "jump in the forcing", SWITCH: "switch",
+                        WINDOW_END: "end of window", FINAL_VALUE: "final value"}
+_EXTREME_KIND_WORDS = {"max": "largest", "min": "smallest"}
+
+
+def _extreme_where(e, m) -> str:
+    """'at t = 23.30 s (stationary point)', or for a final value that decides, that it is approached."""
+    if e.method == FINAL_VALUE:
+        return "(the final value: approached, never reached)"
+    return f"at {m.variable.name} = {in_units(e.at, m.variable)} ({EXTREME_METHOD_WORDS[e.method]})"
+
+
+def extreme_window(e, m) -> str:
+    """The window as the sheet writes it: '0 s to 60.00 s', or 'from 5 s on' for an open window."""
+    start = in_units(e.start, m.variable)
+    if e.open_ended:
+        return f"{m.variable.name} >= {start}"
+    return f"{start} to {in_units(e.end, m.variable)}"
+
+
+def extremes_blocks(m, extremes, slope_equations=()) -> list:
+    """The Extremes step's content: the derivative, the stationary points, each extreme with how it was found."""
+    y, x = m.unknown.name, m.variable.name
+    blocks = [Paragraph(f"Over a window, {y} is largest or smallest where d{y}/d{x} = 0 (a stationary point), where "
+                        f"d{y}/d{x} jumps (a step or pulse edge in the forcing, a switch), or at an end of the window. "
+                        f"The derivative of the particular solution:"), *slope_equations]
+    corners = sorted({(c, how) for e in extremes for c, how in e.corners})
+    if corners:
+        blocks.append(Paragraph(f"d{y}/d{x} jumps at " + ", ".join(
+            f"{x} = {in_units(c, m.variable)} ({EXTREME_METHOD_WORDS[how]})" for c, how in corners)
+            + "; the response is compared there too."))
+    points = sorted({(s.at, s.value, s.root) for e in extremes for s in e.stationary}, key=lambda p: p[0])
+    solved = all(e.solved for e in extremes)
+    how = ("sympy solved d{y}/d{x} = 0 between the jumps" if solved else
+           "the sign changes of d{y}/d{x} were bracketed on a grid between the jumps and each refined by Brent's "
+           "method (scipy brentq)").format(y=y, x=x)
+    if points:
+        rows = tuple((in_units(at, m.variable), in_units(value, m.unknown),
+                      plain(root) if root is not None else "bracketed and refined") for at, value, root in points)
+        blocks.append(Table((f"{x}", f"{y}", f"Root of d{y}/d{x} = 0 (SI)"), rows,
+                            f"Stationary points: {how}"))
+    else:
+        blocks.append(Paragraph(f"No stationary point inside the windows: {how}, and found none."))
+    rows = []
+    for e in extremes:
+        value = in_units(e.value, m.unknown) if e.value is not None else "does not exist (grows without bound)"
+        at = in_units(e.at, m.variable) if e.at is not None else "-"
+        rows.append((f"{_EXTREME_KIND_WORDS[e.kind]} {y}", extreme_window(e, m), value, at,
+                     EXTREME_METHOD_WORDS[e.method]))
+    blocks.append(Table(("Extreme", f"Over {x}", "Value", f"At {x} =", "Given by"), tuple(rows), f"Extremes of {y}"))
+    for e in extremes:
+        if e.open_ended:
+            blocks.append(_tail_note(e, m))
+    return blocks
+
+
+def _tail_note(e, m) -> Note:
+    """Why an open window is settled by the analysed range: past the last stationary point and jump, the
+    response is monotone, so it lies between its value there and its final value."""
+    y, x = m.unknown.name, m.variable.name
+    tail = in_units(e.tail_from, m.variable)
+    lead = (f"For {x} >= {in_units(e.start, m.variable)}: past {x} = {tail} (the last stationary point, jump or the "
+            f"window's start) d{y}/d{x} keeps one sign, so {y} is monotone there and lies between its value at "
+            f"{x} = {tail} and its limit.")
+    if e.method == FINAL_VALUE and e.value is not None:
+        return Note("method", f"{lead} It moves towards its final value, {in_units(e.value, m.unknown)}, up to the end "
+                              f"of the analysed range ({x} = {in_units(e.end, m.variable)}): the final value decides "
+                              f"the {_EXTREME_KIND_WORDS[e.kind]} value, approached but never reached.")
+    if e.method == FINAL_VALUE:
+        return Note("warning", f"{lead} It has no final value: the {_EXTREME_KIND_WORDS[e.kind]} value does not exist.")
+    return Note("method", f"{lead} The {_EXTREME_KIND_WORDS[e.kind]} value is taken before the tail, at {x} = "
+                          f"{in_units(e.at, m.variable)}.")
+
+
+def _extremes(d: Derivation, n: _Notation) -> Section:
+    m, s, c = d.model, d.solution, d.classification
+    values = {**m.numeric_values(), **s.initial_values(m)}
+    if s.closed_form:
+        slope = sp.diff(s.particular, n.x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
+        equations = [n.eq(n.dy.latex, n.dy.text, numeric_expression(slope, values),
+                          label="derivative" + (" away from the jumps" if s.particular.has(sp.Heaviside) else ""))]
+    else:
+        p, r = (s.p if s.p is not None else c.p), (s.r if s.r is not None else c.r)
+        equations = [n.eq(n.dy.latex, n.dy.text, (rf"r - p\,{latex(n.y)}", f"r - p*{n.y}"),
+                          numeric_expression(r - p * n.y, values), label="from the standard form")]
+    return Section("extremes", "Extremes", tuple(extremes_blocks(m, d.numbers.extremes, equations)))
 
 
 def _also(point, declared) -> str:
@@ -527,4 +630,5 @@ def _verification(d: Derivation, n: _Notation) -> Section:
 STEPS = (("governing", _governing), ("classification", _classification), ("standard_form", _standard_form),
          ("integrating_factor", _integrating_factor), ("integration", _integration),
          ("initial_condition", _initial_condition), ("split", _split), ("numbers", _numbers),
-         ("verification", _verification))
+         ("extremes", _extremes), ("verification", _verification))
+OPTIONAL_STEPS = {"extremes": lambda d: bool(d.numbers.extremes)}  # shown only when the input asks for them

@@ -77,6 +77,7 @@ class Figure:
     levels: tuple[Guide, ...] = ()  # horizontal: reach levels and limits on the unknown
     limits: tuple[Guide, ...] = ()  # vertical: limits on the variable
     caption: str = ""
+    extremes: tuple[tuple[float, float, str], ...] = ()  # extremes found (x, y, label), marked apart from points
 
 
 Block = Union[Paragraph, Equation, Table, Note, ItemList, Figure]

@@ -16,6 +16,7 @@ def response_figure(d) -> Figure:
     independent = tuple((x_of(x), y_of(yi)) for x, _, yi in d.verification.compared if start <= x <= end)
     points = tuple((x_of(v.at.si), y_of(v.y), f"{m.unknown.name}({v.at.text})") for v in num.values
                    if start <= v.at.si <= end)  # a point past the plotted range stays in the tables only
+    extremes = _extreme_marks(m, num, start, end, x_of, y_of)
     levels = [Guide(y_of(r.level.si), f"level {r.level.text}", "") for r in num.reach]
     limits = []
     for v in num.verdicts:
@@ -31,11 +32,25 @@ def response_figure(d) -> Figure:
         title=f"Response of {m.unknown.name}",
         x_label=_axis(m.variable), y_label=_axis(m.unknown),
         curve=curve, independent=independent, points=points, levels=tuple(levels), limits=tuple(limits),
+        extremes=extremes,
         caption=(f"Line: the particular solution; open circles: the independent numerical integration; "
-                 f"filled dots: the values asked for. Horizontal lines mark levels and limits on "
+                 f"filled dots: the values asked for{'; triangles: the extremes found' if extremes else ''}. "
+                 f"Horizontal lines mark levels and limits on "
                  f"{m.unknown.name}, vertical lines limits on {m.variable.name}: dotted grey for a level, "
                  "solid green for a limit that passes, dashed red for one that fails."),
     )
+
+
+def _extreme_marks(m, num, start, end, x_of, y_of) -> tuple[tuple[float, float, str], ...]:
+    """Each extreme taken at a point inside the plotted range, once: 'max 88.71 degC'. An extreme past the
+    plotted range, or a final value never reached, stays in the tables only."""
+    from calcsheet.sheet.quantities import in_units
+
+    marks = {}
+    for e in getattr(num, "extremes", ()):
+        if e.at is not None and e.value is not None and start <= e.at <= end:
+            marks.setdefault((e.kind, e.at), (x_of(e.at), y_of(e.value), f"{e.kind} {in_units(e.value, m.unknown)}"))
+    return tuple(marks[k] for k in sorted(marks, key=lambda k: (k[1], k[0])))
 
 
 def _axis(declared) -> str:

@@ -80,7 +80,18 @@ def results_record(m, num) -> dict:
                       "status": getattr(v, "status", "pass" if v.passed else "fail"),
                       "not_assessed_because": getattr(v, "code", "") or None,
                       "found": _found(v, m)} for v in num.verdicts],
+        "extremes": [_extreme(e, m) for e in getattr(num, "extremes", ())],
     }
+
+
+def _extreme(e, m) -> dict:
+    """One extreme: its kind, window and value in declared units, and what gave it (compose's words)."""
+    from calcsheet.sheet.compose import EXTREME_METHOD_WORDS  # compose words every code; it imports this module
+
+    return {"type": e.kind, "of": m.unknown.name, "from": record_value(e.start, m.variable),
+            "to": record_value(e.end, m.variable), "open_ended": e.open_ended,
+            "value": record_value(e.value, m.unknown), "at": record_value(e.at, m.variable),
+            "method": EXTREME_METHOD_WORDS[e.method]}
 
 
 def _finding(note, use) -> dict:

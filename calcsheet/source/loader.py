@@ -17,11 +17,13 @@ from typing import Any
 import sympy as sp
 
 from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part, shortened
-from calcsheet.model import Criterion, Declared, IntervalLaw, Model, Parameter, Point, SheetInfo, Switch
+from calcsheet.model import (Criterion, Declared, ExtremeRequest, IntervalLaw, Model, Parameter, Point, SheetInfo,
+                             Switch, Window)
 from calcsheet.source import expressions as ex
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.source import sheet_keys, units
-from calcsheet.subjects import UNKNOWN, VARIABLE, reserved_words, spellings, written_subject
+from calcsheet.subjects import CONDITION_SUBJECT, UNKNOWN, VARIABLE, WINDOW, reserved_words, spellings, \
+    written_subject
 from calcsheet.source.loader_support import declared_parts
 from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
 from calcsheet.source.singular import Values, check_equation_values
@@ -35,7 +37,7 @@ TABLES = {
     "forcing": None,  # keys depend on the form; checked in kinds/forcing.py
     "parameters": None,  # any parameter name
     "initial": {"at", "value"},
-    "evaluate": {"at", "reach"},
+    "evaluate": {"at", "reach", "extremes"},
     "criteria": {"text", "check"},
     "plot": {"to"},
     "signoff": set(sheet_keys.ROLES),
@@ -48,6 +50,13 @@ RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | reserved_words()
 _CHECK = re.compile(r"(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\((?P<argument>[^()]*)\)\s*)?(?P<op><=|>=|<|>)(?P<limit>.*)",
                     re.DOTALL)
 _SECOND_COMPARISON = re.compile(r"[<>=]|\b(?:and|or)\b")
+# A condition over a window: "T <= 90 degC for t in 0 s .. 10 min" or, to the end of the range, "for t >= 5 s".
+_FOR = re.compile(r"\s+for\s+")
+_FOR_CLAUSE = re.compile(r"(?P<name>[A-Za-z][A-Za-z0-9_]*)\s*(?:in\s+(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)"
+                         r"|>=\s*(?P<open>.+))", re.DOTALL)
+# [evaluate] extremes: "max", "min 0 s .. 60 s", "max from 5 s"
+_EXTREME = re.compile(r"(?P<kind>max|min)(?:\s+(?:from\s+(?P<open>.+)|(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)))?",
+                      re.DOTALL)
 _TOML_POSITION = re.compile(r"\(at line (\d+), column (\d+)\)$")
 MAX_STYLE_NAME = 200
 
@@ -181,7 +190,9 @@ class _Builder:
                 errors.add(InputError(f"'{point.text}' lies before the initial point {initial_at.text}; the "
                                       "sheet solves forward from the initial condition", f"evaluate.at[{index + 1}]"))
         reach = errors.attempt(lambda: self.points(evaluate, "reach", unknown), ()) if unknown else ()
-        criteria = errors.attempt(lambda: self.criteria(unknown, variable), ()) if unknown and variable else ()
+        extremes = errors.attempt(lambda: self.extremes(evaluate, variable, initial_at), ()) if variable else ()
+        criteria = errors.attempt(lambda: self.criteria(unknown, variable, initial_at), ()) \
+            if unknown and variable else ()
         plot_to = errors.attempt(lambda: self.plot_end(initial_at, variable)) if variable else None
         kind = None
         if kind_use is not None and parameters is not None:
@@ -196,7 +207,7 @@ class _Builder:
             path=self.file, sheet=sheet, equation_text=equation_text, equation=equation,
             unknown=unknown, variable=variable, derivative=derivative, lhs=lhs, rhs=rhs,
             parameters=parameters, initial_at=initial_at, initial_value=initial_value,
-            evaluate_at=evaluate_at, reach=reach, criteria=criteria, unused_parameters=unused,
+            evaluate_at=evaluate_at, reach=reach, extremes=extremes, criteria=criteria, unused_parameters=unused,
             plot_to=plot_to, kind=kind,
         )
         return replace(model, switches=self.switches(model)) if self.original.get("switch") else model
@@ -475,7 +486,44 @@ class _Builder:
             raise InputError(f"'{end.text}' must lie after the initial point {initial_at.text}", "plot.to")
         return end
 
-    def criteria(self, unknown: Declared, variable: Declared) -> tuple[Criterion, ...]:
+    def extremes(self, table: dict, variable: Declared, initial_at: Point | None) -> tuple[ExtremeRequest, ...]:
+        """``evaluate.extremes``: "max", "min", "max 0 s .. 60 s" (a window) or "max from 5 s" (to the end)."""
+        raw = table.get("extremes", [])
+        if not isinstance(raw, list):
+            raw = [raw]
+        errors, result = _Errors(), []
+        for index, item in enumerate(raw):
+            where = f"evaluate.extremes[{index + 1}]"
+            result.append(errors.attempt(lambda: self.extreme_request(item, variable, initial_at, where)))
+        errors.raise_any()
+        return tuple(result)
+
+    def extreme_request(self, item: Any, variable: Declared, initial_at: Point | None, where: str) -> ExtremeRequest:
+        match = _EXTREME.fullmatch(item.strip()) if isinstance(item, str) else None
+        if match is None:
+            raise InputError(f"'{shortened(item)}' must read \"max\" or \"min\", over a window \"max 0 s .. 60 s\", "
+                             "or to the end of the range \"max from 5 s\"", where)
+        window = self.window(match.group("start"), match.group("end"), match.group("open"), variable, initial_at,
+                             where)
+        return ExtremeRequest(match.group("kind"), window, item.strip())
+
+    def window(self, start: str | None, end: str | None, open_from: str | None, variable: Declared,
+               initial_at: Point | None, where: str) -> Window:
+        """A window on the variable: its ends in the variable's dimension, in order, after the initial point."""
+        if open_from is not None:
+            window = Window(self.point(open_from.strip(), variable, where), None, open_ended=True)
+        elif start is not None:
+            window = Window(self.point(start.strip(), variable, where), self.point(end.strip(), variable, where))
+        else:
+            return Window()
+        if initial_at is not None and window.start.si < initial_at.si:
+            raise InputError(f"the window starts at '{window.start.text}', before the initial point "
+                             f"{initial_at.text}; the sheet solves forward from the initial condition", where)
+        if window.end is not None and not window.end.si > window.start.si:
+            raise InputError(f"the window '{window.start.text} .. {window.end.text}' must end after it starts", where)
+        return window
+
+    def criteria(self, unknown: Declared, variable: Declared, initial_at: Point | None = None) -> tuple[Criterion, ...]:
         """Every [[criteria]] table, each checked on its own."""
         errors, result = _Errors(), []
         for index, entry in enumerate(self.raw.get("criteria", [])):
@@ -484,15 +532,51 @@ class _Builder:
             check = errors.attempt(lambda: self.string(entry, "check", f"{where}.check", required=True))
             if check is not None:
                 result.append(errors.attempt(
-                    lambda: self.criterion(text or check, check, unknown, variable, f"{where}.check")))
+                    lambda: self.criterion(text or check, check, unknown, variable, f"{where}.check", initial_at)))
         errors.raise_any()
         return tuple(result)
 
-    def criterion(self, text: str, check: str, unknown: Declared, variable: Declared, where: str) -> Criterion:
+    def condition(self, text: str, check: str, unknown: Declared, variable: Declared, where: str,
+                  initial_at: Point | None) -> Criterion:
+        """A condition over a window, "T <= 90 degC for t in 0 s .. 10 min": the extreme that decides it."""
+        head, clause = _FOR.split(check.strip(), maxsplit=1)
+        match, window = _CHECK.fullmatch(head.strip()), _FOR_CLAUSE.fullmatch(clause.strip())
+        if window is None or window.group("name") != variable.name:
+            raise InputError(f"'{shortened(check)}': write the window as \"for {variable.name} in 0 s .. 10 min\" or "
+                             f"\"for {variable.name} >= 5 s\"", where)
+        if match is None or match.group("subject") != unknown.name or match.group("argument") is not None:
+            raise InputError(f"'{shortened(check)}': a condition over a window compares {unknown.name} itself, as in "
+                             f"\"{unknown.name} <= 90 degC for {variable.name} in 0 s .. 10 min\"", where)
+        if _SECOND_COMPARISON.search(match.group("limit")):
+            raise InputError(f"'{shortened(check)}' holds more than one comparison; write each as its own "
+                             "[[criteria]] table", where)
+        operator = match.group("op")
+        return Criterion(
+            text=text, check=check, subject=CONDITION_SUBJECT[operator], argument=None, operator=operator,
+            limit=self.point(match.group("limit").strip(), unknown, where),
+            window=self.window(window.group("start"), window.group("end"), window.group("open"), variable,
+                               initial_at, where))
+
+    def windowed(self, subject: str, argument: str, unknown: Declared, variable: Declared,
+                 initial_at: Point | None, where: str) -> Window:
+        """The argument of max(T) or max(T, 0 s, 60 s): the unknown's name, then no window or both its ends."""
+        parts = [part.strip() for part in argument.split(",")]
+        if parts[0] != unknown.name or len(parts) not in (1, 3):
+            raise InputError(f"'{subject}({shortened(argument)})' must read {subject}({unknown.name}) or "
+                             f"{subject}({unknown.name}, 0 s, 60 s)", where)
+        if len(parts) == 1:
+            return Window()
+        return self.window(parts[1], parts[2], None, variable, initial_at, where)
+
+    def criterion(self, text: str, check: str, unknown: Declared, variable: Declared, where: str,
+                  initial_at: Point | None = None) -> Criterion:
+        if _FOR.search(check.strip()):
+            return self.condition(text, check, unknown, variable, where, initial_at)
         match = _CHECK.fullmatch(check.strip())
         if not match:
-            raise InputError(f"'{shortened(check)}' must read like \"{unknown.name}(60 s) <= 50 V\" or "
-                             "\"reach(50 V) <= 60 s\"", where)
+            raise InputError(f"'{shortened(check)}' must read like \"{unknown.name}(60 s) <= 50 V\", "
+                             f"\"reach(50 V) <= 60 s\", \"max({unknown.name}, 0 s, 60 s) <= 50 V\" or "
+                             f"\"{unknown.name} <= 50 V for {variable.name} in 0 s .. 60 s\"", where)
         if _SECOND_COMPARISON.search(match.group("limit")):
             raise InputError(f"'{shortened(check)}' holds more than one comparison; a check is one comparison, so write "
                              "each as its own [[criteria]] table (e.g. one \"v(1 min) >= 5 V\", another "
@@ -503,6 +587,13 @@ class _Builder:
         if found is None:
             raise InputError(f"'{subject}' is not {spellings(unknown.name)}", where)
         like = {UNKNOWN: unknown, VARIABLE: variable}
+        if found.argument == WINDOW:
+            if argument is None:
+                raise InputError(f"'{subject}' needs an argument: {subject}({unknown.name}) or "
+                                 f"{subject}({unknown.name}, 0 s, 60 s)", where)
+            window = self.windowed(subject, argument, unknown, variable, initial_at, where)
+            return Criterion(text=text, check=check, subject=found.name, argument=None, operator=match.group("op"),
+                             limit=self.point(match.group("limit").strip(), like[found.found], where), window=window)
         argument_like, limit_like = like.get(found.argument), like[found.found]
         if (argument_like is None) != (argument is None):
             raise InputError(f"'{subject}' {'takes no' if argument_like is None else 'needs an'} argument", where)

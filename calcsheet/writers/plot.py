@@ -1,7 +1,7 @@
 """The response plot as a standalone SVG string, drawn with matplotlib.
 
 Only reads a :class:`calcsheet.sheet.document.Figure`; every number in it is already in the
-units the engineer declared, and every word on the plot comes from the Figure except the two
+units the engineer declared, and every word on the plot comes from the Figure except the
 legend entries below.
 
 The output is byte-for-byte reproducible: matplotlib starts from its built-in defaults (a
@@ -37,6 +37,8 @@ MARGIN = 0.05  # fraction of the data span added above and below
 CURVE_LABEL = "derived solution"
 INDEPENDENT_LABEL = "independent integration"
 POINTS_LABEL = "evaluated points"
+EXTREMES_LABEL = "extremes"
+EXTREME = "#7a4a00"
 
 # status -> (colour, matplotlib linestyle, linewidth in pt); the dash patterns are set in _RC
 GUIDE_STYLE = {
@@ -136,6 +138,15 @@ def _build(figure):
                 markersize=5.0, markerfacecolor=INK, markeredgecolor="white", markeredgewidth=0.8,
                 label=POINTS_LABEL, zorder=5, clip_on=False, gid="calcsheet-points")
 
+    extremes = [e for e in getattr(figure, "extremes", ()) if _finite(e[0], e[1])]
+    for kind in ("max", "min"):  # an upward triangle on a largest value, a downward one on a smallest
+        marks = [e for e in extremes if e[2].startswith(kind)]
+        if marks:
+            ax.plot([e[0] for e in marks], [e[1] for e in marks], linestyle="none",
+                    marker="^" if kind == "max" else "v", markersize=6.0, markerfacecolor=EXTREME,
+                    markeredgecolor="white", markeredgewidth=0.7, label=f"{EXTREMES_LABEL} ({kind})", zorder=6,
+                    clip_on=False, gid=f"calcsheet-extremes-{kind}")
+
     levels = [g for g in figure.levels if _finite(g.value)]
     limits = [g for g in figure.limits if _finite(g.value)]
     for i, guide in enumerate(levels):
@@ -164,6 +175,8 @@ def _build(figure):
     for guide in limits:
         placer.limit_label(guide)
     for x, y, label in figure.points:
+        placer.point_label(x, y, label)
+    for x, y, label in extremes:
         placer.point_label(x, y, label)
     return fig
 
@@ -234,6 +247,7 @@ class _Placer:
         self.curve = [self._frac(x, y) for x, y in curve]
         self.markers = [self._frac(x, y) for x, y in figure.independent if _finite(x, y)]
         self.markers += [self._frac(p[0], p[1]) for p in figure.points if _finite(p[0], p[1])]
+        self.markers += [self._frac(p[0], p[1]) for p in getattr(figure, "extremes", ()) if _finite(p[0], p[1])]
         self.hlines = [self._frac(self.xlim[0], g.value)[1] for g in levels]
         self.vlines = [self._frac(g.value, self.ylim[0])[0] for g in limits]
 

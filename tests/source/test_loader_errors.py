@@ -147,7 +147,7 @@ BAD_INPUTS = [
     ("criteria-reach-limit-wrong-dimension", with_criteria("reach(0.4 A) <= 1 A"), InputError,
      ["'1 A' has dimension [current]", "t is in s"], "criteria[1].check"),
     ("criteria-unknown-subject", with_criteria("q(60 ms) >= 0.4 A"), InputError,
-     ["'q' is not i(...), reach(...), time_constant or final_value"], "criteria[1].check"),
+     ["'q' is not i(...), reach(...), time_constant, final_value, max(...) or min(...)"], "criteria[1].check"),
     ("criteria-value-needs-argument", with_criteria("i >= 0.4 A"), InputError,
      ["'i' needs an argument"], "criteria[1].check"),
     ("criteria-time-constant-takes-no-argument", with_criteria("time_constant(1 s) <= 5 ms"), InputError,
