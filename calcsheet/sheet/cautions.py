@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from calcsheet.formatting import number
 from calcsheet.model import Model
 from calcsheet.source.units import registry
 
@@ -15,18 +16,31 @@ HOT_SURFACE_KELVIN = 318.15
 ELECTRICAL = ("Stored electrical energy: treat the circuit as live until its voltage has been "
               "measured at a safe level with a proven tester; follow the local electrical safety "
               "rules for isolation and discharge.")
+# Common practice, no source: a coil's current cannot change at once, so opening its circuit drives
+# v = L di/dt across the opening contact until the current finds a path.
+INDUCTIVE = ("Inductive energy: a coil's current cannot stop at once. Opening its circuit, on purpose or by a "
+             "fault, drives a voltage L·di/dt across the opening contact that can far exceed the supply, until "
+             "the current finds a path (an arc, or a person). Give the coil a suppression path rated for its "
+             "current and energy (freewheeling diode, varistor or RC snubber), and follow the local electrical "
+             "safety rules for isolation.")
 HEAT = ("Hot surfaces: parts above about 45 degC can burn on contact; keep guards, warning signs "
         "and protective equipment as local rules require until the part has been measured cool.")
 PRESSURE = ("Stored pressure energy: do not open or work on the system until it is verified "
             "depressurised according to the local pressure-equipment rules.")
 
 
-def hazard_notes(model: Model, response: tuple[float, ...] = ()) -> tuple[str, ...]:
-    """Hazard notes for what the model holds; ``response`` is the unknown's computed values (SI)."""
+def hazard_notes(model: Model, response: tuple[float, ...] = (),
+                 steps: tuple[tuple[str, str, str], ...] = ()) -> tuple[str, ...]:
+    """Hazard notes for what the model holds; ``response`` is the unknown's computed values (SI), ``steps``
+    the coil voltage L di/dt just before and just after each switch, as shown ((at, before, after))."""
     dims = {_dim(p.quantity.units) for p in model.parameters} | {_dim(model.unknown.unit)}
     notes = []
-    if dims & {_dim("V"), _dim("A"), _dim("F"), _dim("H"), _dim("C")}:
+    inductive = _dim("H") in dims
+    if dims & {_dim("F"), _dim("C")} or (dims & {_dim("V"), _dim("A")} and not inductive):  # stored charge
         notes.append(ELECTRICAL)
+    if inductive:
+        notes.append(INDUCTIVE + "".join(f" At the switch at {at} the coil voltage L·di/dt steps from {before} to "
+                                         f"{after}." for at, before, after in steps))
     if _dim(model.unknown.unit) == _dim("K") and max((_hottest(model),) + tuple(response)) > HOT_SURFACE_KELVIN:
         notes.append(HEAT)
     if dims & {_dim("Pa")}:
@@ -41,3 +55,25 @@ def _dim(unit):
 def _hottest(model: Model) -> float:
     temperatures = [model.initial_value.si] + [p.si for p in model.parameters if _dim(p.quantity.units) == _dim("K")]
     return max(temperatures)
+
+
+def coil_voltage_steps(pd) -> tuple[tuple[str, str, str], ...]:
+    """L di/dt just before and just after each switch of a switched current model with an inductance:
+    each side from its own interval's equation as stated, at the current reached at the switch."""
+    from calcsheet.derive.verify import slope_function
+
+    m = pd.model
+    if _dim(m.unknown.unit) != _dim("A"):
+        return ()
+    found = []
+    for before, after in zip(pd.intervals, pd.intervals[1:]):
+        inductance = [p.si for p in after.derivation.model.parameters if _dim(p.quantity.units) == _dim("H")]
+        if len(inductance) != 1:
+            return ()  # which inductance carries the current is not clear: the general note stands alone
+        current = after.derivation.model.initial_value.si
+        sides = []
+        for interval in (before, after):
+            slope = slope_function(interval.derivation.model)([after.start], [current])[0]
+            sides.append(f"{number(inductance[0] * slope)} V")
+        found.append((m.variable.text_of(after.start), *sides))
+    return tuple(found)

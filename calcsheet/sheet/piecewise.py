@@ -23,7 +23,7 @@ def compose_piecewise(pd) -> Sheet:
                      for s in part.sections if s.number]
     sections.append(_across(pd))
     record = build_switched_record(pd, [part.record for part in parts])
-    notes = cautions.hazard_notes(pd.model, tuple(y for _, y in pd.curve))
+    notes = cautions.hazard_notes(pd.model, tuple(y for _, y in pd.curve), cautions.coil_voltage_steps(pd))
     return replace(first, outcome=_outcome(pd), sections=tuple(sections), record=record,
                    cautions=(cautions.GENERAL,) + notes)
 
