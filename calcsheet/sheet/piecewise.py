@@ -5,7 +5,8 @@ from __future__ import annotations
 from dataclasses import replace
 
 from calcsheet.sheet import cautions
-from calcsheet.sheet.compose import checks_table, compose, criteria_table, reach_table, values_table, _outcome
+from calcsheet.sheet.compose import checks_table, compose, criteria_table, extremes_blocks, reach_table, \
+    values_table, _outcome
 from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.quantities import in_units
@@ -56,5 +57,7 @@ def _across(pd) -> Section:
         blocks.append(reach_table(m, num.reach))
     if num.verdicts:
         blocks.append(criteria_table(m, num.verdicts))
+    if num.extremes:
+        blocks += extremes_blocks(m, num.extremes)
     blocks.append(checks_table(pd.verification.checks, "Verification across the switches"))
     return Section("across", "Results across the switches", tuple(blocks))

@@ -170,7 +170,7 @@ def _build(figure):
     fig.draw_without_rendering()
     fig.set_layout_engine("none")
     placer = _Placer(fig, ax, legend, curve, figure, levels, limits)
-    for guide in sorted(levels, key=lambda g: g.value):
+    for guide in sorted(levels, key=lambda g: -g.value):  # from the top, where the frame leaves least room
         placer.level_label(guide)
     for guide in limits:
         placer.limit_label(guide)
