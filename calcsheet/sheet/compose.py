@@ -17,6 +17,7 @@ from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
+from calcsheet.sheet.as_written import equation_latex
 from calcsheet.sheet.check_words import check_row, checks_lead, quadrature_words
 from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Section,
                                       Sheet, Table, TitleBlock)
@@ -160,7 +161,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
         Paragraph(f"The model {'this gives' if m.kind else 'as stated in the input'}, with {m.unknown.name} in "
                   f"{m.unknown.unit_text or 'no unit'} as the unknown and {m.variable.name} in "
                   f"{m.variable.unit_text or 'no unit'} as the variable:"),
-        Equation(Math(f"{n.tex(m.lhs)} = {n.tex(m.rhs)}", m.equation_text), "from the law" if m.kind else "as stated"),
+        Equation(Math(equation_latex(m.equation), m.equation_text), "from the law" if m.kind else "as stated"),
         Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
         Table(("Condition", "Value"),
               ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
@@ -248,7 +249,8 @@ def _standard_form(d: Derivation, n: _Notation) -> Section:
     p, r = sp.Symbol("p"), sp.Symbol("r")
     return Section("standard_form", "Standard form", (
         Paragraph(f"Divide by the coefficient of {n.dy.text}, a = {plain(c.a)}, and collect the terms in "
-                  f"{d.model.unknown.name} on the left:"),
+                  f"{d.model.unknown.name} on the left (from this step on, terms and factors are in the order the "
+                  "algebra gives them, no longer as written):"),
         n.eq(rf"{n.dy.latex} + p\,{latex(n.y)}", f"{n.dy.text} + p*{n.y}", (r"r", "r"), label="form"),
         n.eq(latex(p), "p", c.p),
         n.eq(latex(r), "r", c.r),
