@@ -144,11 +144,11 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     points = tuple(ValueAt(pt, y(pt.si), applies=limit is None or pt.si <= limit[0]) for pt in model.evaluate_at)
     searched = grid[: len(samples)]
     stop = (OVERFLOWS, domain_end) if overflow else _stop(limit, domain_end, searched_to)
-    reaches = tuple(reach_for(level, y, searched, samples, final, model, stop=stop) for level in model.reach)
+    reaches = tuple(reach_for(level, y, searched, samples, final, stop=stop) for level in model.reach)
     analysed = (x0, float(searched[-1]) if len(searched) else x0 + scale)
     search = ExtremeSearch([Piece(model, solution, cls, y, x0, None, scale=scale)], y, analysed, final)
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
-    verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, model, valid_until=limit, not_valid=not_valid,
+    verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, valid_until=limit, not_valid=not_valid,
                                  search=search) for c in model.criteria)
     return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
                    final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
@@ -366,7 +366,7 @@ def _steps_settled(expr: sp.Expr, x: sp.Symbol) -> sp.Expr:
     return expr.replace(sp.Heaviside, lambda *args: settle(args[0]))
 
 
-def reach_for(level: Point, y, grid, samples, final, model: Model, stop: tuple[str, float] | None = None) -> Reach:
+def reach_for(level: Point, y, grid, samples, final, stop: tuple[str, float] | None = None) -> Reach:
     """Where the response first crosses ``level`` after the initial point, or why it does not.
 
     The rule: a level is reached at the first point where the response passes from one side of it to
@@ -426,7 +426,7 @@ def _root(g, a: float, b: float, ga_scan: float, gb_scan: float) -> float:
     return a + (b - a) * ga_scan / (ga_scan - gb_scan)
 
 
-def verdict_for(criterion: Criterion, y, grid, samples, tau, final, model: Model,
+def verdict_for(criterion: Criterion, y, grid, samples, tau, final,
                 valid_until: tuple[float, str] | None = None, not_valid: tuple[str, ...] = (),
                 search: ExtremeSearch | None = None) -> Verdict:
     """PASS or FAIL, or not assessed: when the model is not valid for the case, or the criterion needs

@@ -48,10 +48,10 @@ def derive_piecewise(model: Model) -> SwitchedDerivation:
     y = Joined(intervals)
     last = intervals[-1].derivation.numbers
     values = tuple(ValueAt(p, y(p.si)) for p in model.evaluate_at)
-    reaches = tuple(reach_for(level, y, grid, samples, last.final_value, model) for level in model.reach)
+    reaches = tuple(reach_for(level, y, grid, samples, last.final_value) for level in model.reach)
     search = _extreme_search(model, intervals, y, grid, last.final_value)
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
-    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, model, search=search)
+    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, search=search)
                      for c in model.criteria)
     curve = tuple(point for i in intervals for point in i.derivation.curve)
     span = (model.initial_at.si, curve[-1][0])
