@@ -212,7 +212,10 @@ def _settle(expr: sp.Expr, x: sp.Symbol, inside: float) -> sp.Expr | None:
         if sp.diff(argument, x, 2) != 0:
             return None
     side = lambda argument: float(argument.subs(x, inside)) > 0  # noqa: E731
-    return expr.replace(sp.Heaviside, lambda a, *rest: sp.Heaviside(a, *rest) if not a.has(x) else sp.S.One if side(a) else sp.S.Zero) \
+    def settled(a, *rest):
+        return sp.Heaviside(a, *rest) if not a.has(x) else sp.S.One if side(a) else sp.S.Zero
+
+    return expr.replace(sp.Heaviside, settled) \
         .replace(sp.sign, lambda a: sp.S.One if side(a) else -sp.S.One) \
         .replace(sp.Abs, lambda a: a if side(a) else -a)
 

@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import math
-
 import sympy as sp
 
 from calcsheet.formatting import SIGNIFICANT, number  # noqa: F401  (the sheet's formatter, re-exported)
