@@ -48,7 +48,7 @@ def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str
         rendered = render(built.sheet, chosen, house)
         written = write_outputs(Path(out_dir), built.path.stem, rendered)  # an OSError is the user's: see _run_each
         click.echo(f"{built.path}: {_summary(built.derivation)} -> {', '.join(str(w) for w in written)}")
-        return EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED
+        return _issue_guard(built, EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED)
 
     sys.exit(_run_each(inputs, one, writes=True))
 
@@ -60,9 +60,86 @@ def check(inputs: tuple[str, ...]) -> None:
 
     def one(built) -> int:
         click.echo(f"{built.path}: {_summary(built.derivation)}")
-        return EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED
+        return _issue_guard(built, EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED)
 
     sys.exit(_run_each(inputs, one))
+
+
+def _issue_guard(built, code: int) -> int:
+    """An issued sheet without current prepared, checked and approved sign-offs fails, with the reason."""
+    if not built.sheet.review.problem:
+        return code
+    click.echo(f"{built.path}: NOT FOR ISSUE: {built.sheet.review.problem}", err=True)
+    return max(code, EXIT_CHECK_FAILED)
+
+
+@main.command()
+@click.argument("input_file", metavar="INPUT")
+@click.option("--role", required=True, type=click.Choice(["prepared", "checked", "approved"]),
+              help="The role signing; roles sign in this order.")
+@click.option("--name", required=True, help="The signer's name as it should appear on the sheet.")
+@click.option("--date", default=None, help="YYYY-MM-DD (default: today).")
+@click.option("--accept-failing", is_flag=True, help="Sign even though criteria or verification fail.")
+def sign(input_file: str, role: str, name: str, date: str | None, accept_failing: bool) -> None:
+    """Sign INPUT for ROLE: write the name, date and the content's fingerprint into its [signoff] table."""
+    from calcsheet.review.sign import sign as sign_input
+
+    path = Path(input_file)
+    if not path.is_file():
+        _guard(lambda: _refuse("no such file", input_file))
+    value, when = _guard(lambda: _os_guarded(lambda: sign_input(path, role, name, date, accept_failing),
+                                             input_file))
+    click.echo(f"{path}: signed {role} by {name.strip()} on {when} for fingerprint {value[:12]}")
+
+
+@main.command()
+@click.argument("inputs", nargs=-1)
+@click.option("--require", type=click.Choice(["prepared", "checked", "approved"]), default=None,
+              help="Exit 1 when any sheet lacks a current sign-off of this role.")
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True)
+def status(inputs: tuple[str, ...], require: str | None, fmt: str) -> None:
+    """One line per sheet (INPUT files or folders; default: this folder): number, revision, issue status,
+    verdict and each role's sign-off (current, stale or unsigned)."""
+    from calcsheet.review.status import lacking, sheet_status, status_json, status_line
+
+    found = []
+
+    def one(built) -> int:
+        found.append(sheet_status(built))
+        if fmt == "text":
+            click.echo(status_line(found[-1]))
+        return EXIT_OK
+
+    worst = _run_each(inputs or (".",), one)
+    if fmt == "json":
+        click.echo(status_json(found), nl=False)
+    if require:
+        missing = lacking(found, require)
+        if missing:
+            click.echo(f"{len(missing)} of {len(found)} sheets lack a current {require} sign-off: "
+                       + ", ".join(s.file for s in missing), err=True)
+            worst = max(worst, EXIT_CHECK_FAILED)
+    sys.exit(worst)
+
+
+@main.command()
+@click.argument("input_file", metavar="INPUT")
+@click.option("--format", "fmt", type=click.Choice(["txt", "json"]), default="txt", show_default=True)
+def show(input_file: str, fmt: str) -> None:
+    """Write INPUT's text (or JSON) record to standard output, e.g. as git's textconv for *.toml inputs."""
+    from calcsheet.writers import writer_for
+
+    def one(built) -> int:
+        click.echo(writer_for(fmt)(built.sheet, None), nl=False)
+        return EXIT_OK
+
+    sys.exit(_run_each((input_file,), one))
+
+
+def _refuse(message: str, file: str):
+    from calcsheet.errors import InputError
+
+    raise InputError(message, file=file)
 
 
 @main.command()

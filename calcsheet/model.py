@@ -23,6 +23,7 @@ class SignOff:
     role: str
     name: str = ""
     date: str = ""
+    fingerprint: str = ""  # the content fingerprint it was signed for (``calcsheet sign``); "" when written by hand
 
 
 @dataclass(frozen=True)
@@ -46,6 +47,7 @@ class SheetInfo:
     assumptions: tuple[str, ...] = ()
     date: str = ""  # ISO date of this issue of the sheet, if stated
     style: str = ""  # house style folder, relative to the input file
+    status: str = ""  # issue status: preliminary, for check, issued or superseded ("" when not stated)
     signoff: tuple[SignOff, ...] = ()
     revisions: tuple[Revision, ...] = ()
 

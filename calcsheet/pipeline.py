@@ -1,4 +1,4 @@
-"""The stages end to end: load -> derive -> compose -> render -> write (atomically)."""
+"""The stages end to end: load -> derive -> compose -> seal -> render -> write (atomically)."""
 
 from __future__ import annotations
 
@@ -25,15 +25,17 @@ def build_sheet(path: Path) -> Built:
     from calcsheet.sheet.compose import compose
     from calcsheet.source.loader import load_model
 
+    from calcsheet.review.seal import seal
+
     model = load_model(path)
     if model.switches:
         from calcsheet.derive.piecewise import derive_piecewise
         from calcsheet.sheet.piecewise import compose_piecewise
 
         derivation = derive_piecewise(model)
-        return Built(path, derivation, compose_piecewise(derivation))
+        return Built(path, derivation, seal(compose_piecewise(derivation), model.sheet))
     derivation = derive(model)
-    return Built(path, derivation, compose(derivation))
+    return Built(path, derivation, seal(compose(derivation), model.sheet))
 
 
 def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[str, str | bytes]:

@@ -19,8 +19,8 @@ from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
 from calcsheet.sheet.as_written import equation_latex
 from calcsheet.sheet.check_words import check_row, checks_lead, quadrature_words
-from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Section,
-                                      Sheet, Table, TitleBlock)
+from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Review,
+                                      Section, Sheet, SignOffLine, Table, TitleBlock)
 from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.record import build_record
@@ -69,7 +69,7 @@ def compose(d: Derivation) -> Sheet:
     return Sheet(title_block=title_block(d.model.sheet), labels=sheet_labels(), outcome=_outcome(d),
                  sections=(response, _basis(d)) + numbered,
                  cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)),
-                 signoff=d.model.sheet.signoff,
+                 signoff=tuple(SignOffLine(s.role, s.name, s.date) for s in d.model.sheet.signoff),
                  revisions=d.model.sheet.revisions, metadata=_metadata(d), record=build_record(d, n),
                  source_name=d.model.path, style=d.model.sheet.style)
 
@@ -84,11 +84,51 @@ def _metadata(d: Derivation) -> tuple[tuple[str, str], ...]:
     return tuple((k, v) for k, v in pairs if v)
 
 
+# ----------------------------------------------------------------------------- review state
+_STATE_WORDS = {"current": "current", "stale": "STALE", "unsigned": "unsigned"}
+STALE_MARK = "SIGN-OFF OUT OF DATE"
+
+
+def reviewed(sheet: Sheet, info, fingerprint: str, states, blockers) -> Sheet:
+    """The sheet with its fingerprint and each sign-off's state in words (facts from calcsheet/review/)."""
+    shown = fingerprint[:12]
+    stale = [s for s in states if s.state == "stale"]
+    lines = tuple(SignOffLine(s.signoff.role, s.signoff.name, s.signoff.date, s.state, _STATE_WORDS[s.state],
+                              _stale_reason(s.signoff, fingerprint) if s.state == "stale" else "") for s in states)
+    head = ""
+    if stale:
+        roles = " and ".join(s.role for s in stale)
+        head = (f"NOT CHECKED: the content changed after the {roles} sign-off{'s' if len(stale) > 1 else ''}; "
+                "those signatures do not cover these results.")
+    problem = ""
+    if blockers:
+        missing = ", ".join(f"{s.role} is {s.state}" for s in blockers)
+        problem = (f"marked issued, but {missing}: an issued sheet needs current prepared, checked and approved "
+                   "sign-offs")
+        head = " ".join(part for part in (head, f"NOT FOR ISSUE: {problem}.") if part)
+    outcome = sheet.outcome if not head else Outcome(False, f"{head} {sheet.outcome.text}", sheet.outcome.lines)
+    keywords = ", ".join(part for part in (info.number, f"fingerprint {fingerprint}") if part)
+    metadata = tuple(pair for pair in sheet.metadata if pair[0] != "keywords") + (("keywords", keywords),)
+    record = {**sheet.record, "fingerprint": fingerprint, "status": info.status,
+              "signoff": [{"role": s.role, "name": s.signoff.name, "date": s.signoff.date, "state": s.state,
+                           "signed_fingerprint": s.signoff.fingerprint} for s in states]}
+    from dataclasses import replace
+
+    return replace(sheet, signoff=lines, outcome=outcome, metadata=metadata, record=record,
+                   review=Review(fingerprint, shown, bool(stale), STALE_MARK if stale else "", problem))
+
+
+def _stale_reason(signoff, fingerprint: str) -> str:
+    return (f"content changed since signed on {signoff.date or 'an unstated date'} (signed {signoff.fingerprint[:12]}…, "
+            f"now {fingerprint[:12]}…): re-check required")
+
+
 # ----------------------------------------------------------------------------- front matter
 def title_block(info) -> TitleBlock:
     """The sheet's identity from the input's [sheet] table, each entry with its label."""
     return TitleBlock(info.title, number=Field("Calculation", info.number), revision=Field("Revision", info.revision),
-                      project=Field("Project", info.project), originator=Field("Originator", info.originator))
+                      project=Field("Project", info.project), originator=Field("Originator", info.originator),
+                      status=Field("Status", info.status))
 
 
 def sheet_labels() -> Labels:
@@ -101,7 +141,8 @@ def sheet_labels() -> Labels:
         figure="Figure",
         figure_summary="{title}: {y_label} against {x_label}, from {first:.4g} to {last:.4g}; {curve} curve points, "
                        "{independent} independent points, {levels} horizontal and {limits} vertical guides",
-        page="Page", of="of", footer="Prepared with calcsheet. Review by a licensed engineer governs any use.")
+        page="Page", of="of", footer="Prepared with calcsheet. Review by a licensed engineer governs any use.",
+        signoff_state="State", fingerprint="Fingerprint")
 
 
 def _outcome(d: Derivation) -> Outcome:

@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Union
 
-from calcsheet.model import Revision, SignOff
+from calcsheet.model import Revision
 
 
 @dataclass(frozen=True)
@@ -110,11 +110,12 @@ class TitleBlock:
     revision: Field
     project: Field
     originator: Field
+    status: Field = Field("")  # the issue status ([sheet] status)
 
     @property
     def given(self) -> tuple[Field, ...]:
         """The entries the input gave, in the order the sheet shows them."""
-        return tuple(f for f in (self.number, self.revision, self.project, self.originator) if f.value)
+        return tuple(f for f in (self.number, self.revision, self.status, self.project, self.originator) if f.value)
 
 
 @dataclass(frozen=True)
@@ -139,6 +140,8 @@ class Labels:
     page: str  # running head: "<page> 3 <of> 7"
     of: str
     footer: str  # foot of every printed page
+    signoff_state: str  # the sign-off column saying current, stale or unsigned
+    fingerprint: str  # before the content fingerprint (title block, record, page foot)
 
     def note(self, kind: str) -> str:
         """The word for a note of this kind; an unknown kind is a composing error, not a blank."""
@@ -158,14 +161,42 @@ class Outcome:
 
 
 @dataclass(frozen=True)
+class SignOffLine:
+    """One role of the sign-off block: who signed, when, and whether the signature still holds.
+
+    ``state`` is the key a writer styles by ("current", "stale", "unsigned"; "" before the review state
+    is known); ``state_text`` and ``reason`` are compose's words for it.
+    """
+
+    role: str
+    name: str = ""
+    date: str = ""
+    state: str = ""
+    state_text: str = ""
+    reason: str = ""
+
+
+@dataclass(frozen=True)
+class Review:
+    """The content fingerprint and what the sign-offs say about it (calcsheet/review/seal.py)."""
+
+    fingerprint: str = ""  # SHA-256 of the canonical record, 64 hex digits; "" until sealed
+    shown: str = ""  # the first 12 digits, printed on the pages and in the title block
+    stale: bool = False  # a signed role no longer matches the content
+    mark: str = ""  # words across every printed page while a sign-off is stale
+    problem: str = ""  # why this sheet may not go out as it stands (an issued sheet without current sign-offs)
+
+
+@dataclass(frozen=True)
 class Sheet:
     title_block: TitleBlock
     labels: Labels
     outcome: Outcome
     sections: tuple[Section, ...]
     cautions: tuple[str, ...]
-    signoff: tuple[SignOff, ...] = ()
+    signoff: tuple[SignOffLine, ...] = ()
     revisions: tuple[Revision, ...] = ()
+    review: Review = Review()
     metadata: tuple[tuple[str, str], ...] = ()  # document properties: title, author, subject, date
     record: dict = field(default_factory=dict)  # structured results for the JSON record
     source_name: str = ""

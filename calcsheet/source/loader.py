@@ -32,7 +32,7 @@ from calcsheet.source.symbolic import to_sympy
 
 TABLES = {
     "sheet": {"title", "number", "revision", "project", "originator", "purpose", "references", "assumptions",
-              "date", "style"},
+              "date", "style", "status"},
     "model": {"equation", "unknown", "variable", "kind"},
     "forcing": None,  # keys depend on the form; checked in kinds/forcing.py
     "parameters": None,  # any parameter name
@@ -372,7 +372,9 @@ class _Builder:
 
     def style_folder(self, text: str) -> str:
         """A house style folder named by the input: inside the input file's folder tree, symlinks resolved.
+            status=errors.attempt(lambda: sheet_keys.issue_status(table.get("status", "")), ""),
 
+        errors.attempt(lambda: sheet_keys.check_consistency(text["revision"], info["revisions"], info["signoff"]))
         A received input must not point its build at any folder on the machine; the command line's
         --style may point anywhere, because the person building chose it.
         """

@@ -1,14 +1,17 @@
-"""The document parts of an input: ``[signoff]``, ``[[revisions]]`` and dates."""
+"""The document parts of an input: ``[signoff]``, ``[[revisions]]``, the issue status and dates."""
 
 from __future__ import annotations
 
 import datetime as dt
+import re
 from typing import Any
 
 from calcsheet.errors import ErrorList, InputError
 from calcsheet.model import Revision, SignOff
 
-ROLES = ("prepared", "checked", "approved")
+ROLES = ("prepared", "checked", "approved")  # in the order they sign
+STATUSES = ("preliminary", "for check", "issued", "superseded")
+_FINGERPRINT = re.compile(r"[0-9a-f]{64}")
 
 
 def iso_date(value: Any, where: str) -> str:
@@ -47,12 +50,54 @@ def _signoff_row(table: dict, role: str, originator: str) -> SignOff:
     where = f"signoff.{role}"
     if isinstance(entry, str):
         entry = {"name": entry}
-    if not isinstance(entry, dict) or set(entry) - {"name", "date"}:
+    if not isinstance(entry, dict) or set(entry) - {"name", "date", "fingerprint"}:
         raise InputError("must be a name in quotes or a table { name = \"...\", date = \"YYYY-MM-DD\" }", where)
     name = entry.get("name", originator if role == "prepared" else "")
     if not isinstance(name, str):
         raise InputError("the name must be text in quotes", f"{where}.name")
-    return SignOff(role.capitalize(), name.strip(), iso_date(entry.get("date", ""), f"{where}.date"))
+    fingerprint = entry.get("fingerprint", "")
+    if "fingerprint" in entry and not (isinstance(fingerprint, str) and _FINGERPRINT.fullmatch(fingerprint)):
+        raise InputError("must be the 64 hexadecimal digits `calcsheet sign` writes; sign again rather than edit it",
+                         f"{where}.fingerprint")
+    if fingerprint and not name.strip():
+        raise InputError("a signed entry needs the signer's name", f"{where}.name")
+    return SignOff(role.capitalize(), name.strip(), iso_date(entry.get("date", ""), f"{where}.date"), fingerprint)
+
+
+def issue_status(value: Any) -> str:
+    """``[sheet] status``: one of STATUSES, "" when not stated."""
+    if value in ("", None):
+        return ""
+    if not isinstance(value, str) or value.strip() not in STATUSES:
+        shown = f"'{value}'" if isinstance(value, str) else _kind(value)
+        raise InputError(f"{shown} is not an issue status (choose from {', '.join(STATUSES)})", "sheet.status")
+    return value.strip()
+
+
+def check_consistency(revision: str, rows: tuple[Revision, ...], signoffs: tuple[SignOff, ...]) -> None:
+    """The revision label matches the last revision row, rows are in date order, and no sign-off is dated
+    before the revision it signs."""
+    errors = []
+    if rows and revision != rows[-1].revision:
+        errors.append(InputError(f"'{revision}' differs from the last [[revisions]] row ('{rows[-1].revision}'): "
+                                 "the sheet's revision is its latest row", "sheet.revision"))
+    dated = [(index, row) for index, row in enumerate(rows, start=1) if row.date]
+    for (_, earlier), (index, row) in zip(dated, dated[1:]):
+        if row.date < earlier.date:
+            errors.append(InputError(f"{row.date} comes before the row above it ({earlier.date}): revision rows "
+                                     "go in date order, oldest first", f"revisions[{index}].date"))
+    current = rows[-1].date if rows else ""
+    for line in signoffs:
+        if current and line.date and line.date < current:
+            errors.append(InputError(f"{line.date} is before the date of revision {rows[-1].revision} ({current}): "
+                                     "a sign-off cannot predate what it signs", f"signoff.{line.role.lower()}.date"))
+    _raise_all(errors)
+
+
+def _kind(value: Any) -> str:
+    from calcsheet.source.text_rules import toml_kind
+
+    return toml_kind(value)
 
 
 def revisions(entries: list) -> tuple[Revision, ...]:

@@ -124,10 +124,13 @@ def _page_css(sheet: doc.Sheet) -> str:
     block, words = sheet.title_block, sheet.labels
     left = _css_string(visible(block.title)) + r' "\A " ' + _css_string(visible(block.project.value))
     number, revision = (f"{f.label} {visible(f.value) or '-'}" for f in (block.number, block.revision))
-    right = (_css_string(f"{number}  {revision}") + " " + _css_string(f"\n{words.page} ") + " counter(page) "
+    status = f"  {block.status.label} {visible(block.status.value)}" if block.status.value else ""
+    right = (_css_string(f"{number}  {revision}{status}") + " " + _css_string(f"\n{words.page} ") + " counter(page) "
              + _css_string(f" {words.of} ") + " counter(pages)")
+    foot = f"@bottom-right {{ content: {_css_string(f'{words.fingerprint} {sheet.review.shown}')}; }} " \
+        if sheet.review.shown else ""
     return (f"\n@page {{ @top-left {{ content: {left}; }} @top-right {{ content: {right}; }} "
-            f"@bottom-left {{ content: {_css_string(words.footer)}; }} }}\n")
+            f"@bottom-left {{ content: {_css_string(words.footer)}; }} {foot}}}\n")
 
 
 def _css_string(text: str) -> str:

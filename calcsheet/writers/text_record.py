@@ -10,7 +10,8 @@ from __future__ import annotations
 
 from functools import partial
 
-from calcsheet.sheet.document import Equation, Figure, ItemList, Labels, Note, Paragraph, Section, Sheet, Table
+from calcsheet.sheet.document import (Equation, Figure, ItemList, Labels, Note, Paragraph, Section, Sheet, SignOffLine,
+                                      Table)
 from calcsheet.writers.dispatch import cell_kind, dispatch
 from calcsheet.writers.visible_text import record_lines
 
@@ -23,6 +24,8 @@ def write(sheet: Sheet, style=None) -> str:
     words = sheet.labels
     lines = [f"{words.sheet.upper()}: {sheet.title_block.title}"]
     lines += [f"{field.label}: {field.value}" for field in sheet.title_block.given]
+    if sheet.review.fingerprint:
+        lines.append(f"{words.fingerprint}: {sheet.review.fingerprint}")
     lines += ["", f"{words.outcome.upper()}: {sheet.outcome.text}"] + [f"  {line}" for line in sheet.outcome.lines]
     handlers = _handlers(words)
     for section in sheet.sections:
@@ -31,11 +34,18 @@ def write(sheet: Sheet, style=None) -> str:
     if sheet.revisions:
         lines += ["", words.revisions.upper()]
         lines += [f"  {r.revision} | {r.date or '-'} | {r.description}" for r in sheet.revisions]
-    _, name, date, _ = (column.lower() for column in words.signoff_columns)
-    lines += ["", words.signoff.upper()] + [f"  {s.role}: {name} {s.name or '______'}  {date} {s.date or '______'}"
-                                            for s in sheet.signoff]
+    lines += ["", words.signoff.upper()] + [_signoff_line(s, words) for s in sheet.signoff]
     lines += ["", words.cautions.upper()] + [f"  {c}" for c in sheet.cautions]
     return "\n".join(safe for line in lines for safe in record_lines(line, CONTINUATION)) + "\n"
+
+
+def _signoff_line(line: SignOffLine, words: Labels) -> str:
+    """'  Checked: name B. Checker  date 2026-03-02  state STALE: <why>'; the state only once it is known."""
+    _, name, date, _ = (column.lower() for column in words.signoff_columns)
+    text = f"  {line.role}: {name} {line.name or '______'}  {date} {line.date or '______'}"
+    if line.state_text:
+        text += f"  {words.signoff_state.lower()} {line.state_text}" + (f": {line.reason}" if line.reason else "")
+    return text
 
 
 def _heading(section: Section, words: Labels) -> str:

@@ -11,10 +11,11 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
-from calcsheet.model import Revision, SignOff
+from calcsheet.model import Revision
 from calcsheet.pipeline import build_sheet, render
 from calcsheet.sheet.compose import sheet_labels
-from calcsheet.sheet.document import Field, ItemList, Note, Outcome, Paragraph, Section, Sheet, Table, TitleBlock
+from calcsheet.sheet.document import (Field, ItemList, Note, Outcome, Paragraph, Section, Sheet, SignOffLine, Table,
+                                      TitleBlock)
 from calcsheet.writers import html, json_record, pdf, text_record
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -99,7 +100,7 @@ def forging_sheet(trick: str) -> Sheet:
             Note("warning", "a note" + FORGED + trick),
         ), 1),),
         cautions=("a caution" + FORGED,),
-        signoff=(SignOff("Prepared", "A. Name" + FORGED + trick, "2026-01-01"),),
+        signoff=(SignOffLine("Prepared", "A. Name" + FORGED + trick, "2026-01-01"),),
         revisions=(Revision("A", "2026-01-01", "first issue" + FORGED + trick),),
         record={"title": "Title" + FORGED + trick, "passed": False},
     )

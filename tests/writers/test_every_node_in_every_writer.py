@@ -18,13 +18,14 @@ from typing import get_args
 import pytest
 from pypdf import PdfReader
 
-from calcsheet.model import Revision, SignOff
+from calcsheet.model import Revision
 from calcsheet.sheet import document as doc
 from calcsheet.sheet.compose import sheet_labels
 from calcsheet.writers import dispatch, writer_for
 
 # Document types that are not nodes a Section holds: the sheet's frame and the parts of nodes.
-FRAME = {doc.Sheet, doc.Section, doc.TitleBlock, doc.Field, doc.Labels, doc.Outcome, doc.Math, doc.Guide}
+FRAME = {doc.Sheet, doc.Section, doc.TitleBlock, doc.Field, doc.Labels, doc.Outcome, doc.Math, doc.Guide,
+         doc.SignOffLine, doc.Review}
 NODE_WRITERS = ("txt", "html", "pdf")
 
 
@@ -65,7 +66,7 @@ def sheet_with(blocks, labels: doc.Labels | None = None, field_label=lambda name
     return doc.Sheet(
         title_block=doc.TitleBlock("Sheet kilo", **fields), labels=labels or sheet_labels(),
         outcome=doc.Outcome(True, "Result lima."), sections=(doc.Section("s", "Section mike", tuple(blocks), 1),),
-        cautions=("Hazard line november.",), signoff=(SignOff("Prepared", "P. Oscar", "2026-01-02"),),
+        cautions=("Hazard line november.",), signoff=(doc.SignOffLine("Prepared", "P. Oscar", "2026-01-02"),),
         revisions=(Revision("A", "2026-01-02", "issue papa"),))
 
 
@@ -162,7 +163,8 @@ SHOWN_BY = {
     "txt": ("sheet", "outcome", "step", "revisions", "signoff", "signoff_columns1", "signoff_columns2", "cautions",
             "notemethod", "figure", "figsum 21"),
     "html": ("step", "revisions", "revision_columns0", "revision_columns1", "revision_columns2", "signoff",
-             "signoff_columns0", "signoff_columns1", "signoff_columns2", "signoff_columns3", "cautions", "notemethod"),
+             "signoff_columns0", "signoff_columns1", "signoff_columns2", "signoff_columns3", "signoff_state", "cautions",
+             "notemethod"),
 }
 SHOWN_BY["pdf"] = SHOWN_BY["html"] + ("page", "of", "footer")
 

@@ -124,7 +124,7 @@ def test_the_font_module_is_restored_after_a_build(built_pdf):
 
 
 def _undated_sheet() -> Sheet:
-    untitled = SimpleNamespace(title="t", number="", revision="", project="", originator="")
+    untitled = SimpleNamespace(title="t", number="", revision="", project="", originator="", status="")
     return Sheet(title_block=title_block(untitled), labels=sheet_labels(), outcome=Outcome(True, "ok"), sections=(),
                  cautions=())
 
