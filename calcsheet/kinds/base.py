@@ -114,7 +114,8 @@ class Kind:
     # code -> the words of the finding, with {name} fields for the Note's data (see sheet/compose.py
     # for the format specs: none for a number, "duration" for a time in s, a digit for significant figures)
     findings: dict[str, str] = field(default_factory=dict)
-    # where the model stops holding, as (variable value in SI, what happens), e.g. a tank overflowing
+    # where the model stops holding, as (variable value in SI, a code), e.g. a tank overflowing; the code's words
+    # are the findings template "limit.<code>"
     limit: Callable[[dict[str, float]], tuple[float, str] | None] = field(default=lambda values: None)
     starter: Starter | None = None  # what `calcsheet new` writes for this kind (see catalogue.py)
     # A law whose own clock starts with the interval (a tank's volume law): the equation with the
@@ -144,7 +145,8 @@ class KindUse:
     forcing: str = ""  # the forcing form in words, if a [forcing] table was given
     frequency: str = ""  # the parameter holding a sinusoidal forcing's frequency
     slot_names: tuple[str, ...] = ()  # the kind's own parameters (some serve only its checks)
-    limit: tuple[float, str] | None = None  # where the model stops holding (SI), and why
+    limit: tuple[float, str] | None = None  # where the model stops holding (SI), and why: a code whose words are
+    # the template "limit.<code>" in findings
 
     @property
     def not_valid(self) -> tuple[Note, ...]:

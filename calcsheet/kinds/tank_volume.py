@@ -81,6 +81,8 @@ def findings(unknown: str) -> dict[str, str]:
         "tank_overflows": "The tank overflows at {at:since}, from (V_max - V_0)/(q_in - q_out); past that time the "
                           "overflow is an outflow the model leaves out, so the results hold only before it.",
         "tank_empties": "the tank empties at {at:since}, from V_0/(q_out - q_in); the solution stops there.",
+        "limit.tank_overflows": "the tank overflows",  # where the model stops holding (volume_limit)
+        "limit.tank_runs_empty": "the tank runs empty",
     }
 
 
@@ -89,8 +91,9 @@ def _steady(q_in: float, q_out: float) -> bool:
 
 
 def volume_limit(values: dict[str, float]) -> tuple[float, str] | None:
-    """Where the model stops holding: the tank overflows or runs empty (time in s, on the variable's own
-    clock, from the volume V_0 at the interval's start t_V)."""
+    """Where the model stops holding, and a code for why (its words are the template of that code with
+    "limit." before it): the tank overflows or runs empty (time in s, on the variable's own clock, from the
+    volume V_0 at the interval's start t_V)."""
     q_in, q_out, v_0 = values["q_in"], values["q_out"], values["V_0"]
     start = values.get(START_SLOT, 0.0)
     v_max = values.get("V_max", NOT_STATED)
@@ -98,9 +101,9 @@ def volume_limit(values: dict[str, float]) -> tuple[float, str] | None:
     if v_0 <= 0 or _steady(q_in, q_out):
         return None
     if net > 0 and v_0 < v_max:
-        return start + (v_max - v_0) / net, "the tank overflows"
+        return start + (v_max - v_0) / net, "tank_overflows"
     if net < 0:
-        return start + v_0 / -net, "the tank runs empty"
+        return start + v_0 / -net, "tank_runs_empty"
     return None
 
 

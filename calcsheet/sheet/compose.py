@@ -236,6 +236,11 @@ def _kind_note(note: KindNote, use) -> Note:
     return Note("warning" if note.severity == WARNING else "method", text)
 
 
+def limit_words(use, code: str) -> str:
+    """Why a kind's model stops holding, in the kind's words ("the tank overflows")."""
+    return dict(use.findings).get(f"limit.{code}", "validity limit") if use is not None else "validity limit"
+
+
 def finding_text(note: KindNote, use) -> str:
     """A kind's finding in words: the kind's template for its code, every number formatted the sheet's way."""
     return _FindingWords(note.values).format(dict(use.findings)[note.code], **note.values)
@@ -400,7 +405,8 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     if num.reach:
         blocks.append(reach_table(m, num.reach))
     if num.valid_until is not None:
-        at, what = num.valid_until
+        at, why = num.valid_until
+        what = limit_words(m.kind, why)
         late = [v.at.text for v in num.values if v.at.si > at]
         blocks.append(Note("warning", f"{what.capitalize()} at {m.variable.name} = {in_units(at, m.variable)}; the "
                                       "model does not hold after that, so the plot and the level search stop there"
@@ -441,7 +447,7 @@ def _reach_remark(r, m) -> str:
     searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
     if code == MODEL_STOPS:
         return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the model stops "
-                f"holding ({(m.kind.limit[1] if m.kind and m.kind.limit else 'validity limit')}); the model says "
+                f"holding ({limit_words(m.kind, m.kind.limit[1] if m.kind and m.kind.limit else '')}); the model says "
                 "nothing after that")
     if code == OVERFLOWS:
         return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the response grows "

@@ -144,6 +144,10 @@ def test_every_finding_a_check_gives_has_words(kind):
         texts = worded(kind.name, notes)
         assert all(text.strip() and "{" not in text for text in texts)
         seen |= {note.code for note in notes}
+        limit = kind.limit(values)
+        if limit is not None:  # where the model stops holding: its code's words are "limit.<code>"
+            seen.add(f"limit.{limit[1]}")
+            assert dict(kind.findings)[f"limit.{limit[1]}"].strip()
     assert seen == set(kind.findings)
 
 

@@ -87,7 +87,7 @@ def test_draining_tank_warns_it_empties_and_the_solution_stops(draining):
     assert empty.values["at"] == pytest.approx(4500.0, rel=1e-12)
     assert "WARNING: the tank empties at t = 4500 s (75.00 min) after the start, from V_0/(q_out - q_in); the " \
            "solution stops there." in out["txt"]
-    assert built.derivation.numbers.valid_until == (pytest.approx(4500.0, rel=1e-6), "the tank runs empty")
+    assert built.derivation.numbers.valid_until == (pytest.approx(4500.0, rel=1e-6), "tank_runs_empty")
     assert built.derivation.numbers.span[1] <= 4500.0 * (1 + 1e-9)
 
 
