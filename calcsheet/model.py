@@ -87,6 +87,31 @@ class Parameter:
     symbol: sp.Symbol
     source: str = ""
     note: str = ""
+    # The range the input allows (``tolerance`` or ``min``/``max``), in SI; None when none is stated.
+    low: float | None = None
+    high: float | None = None
+    spread: str = ""  # the range as written: "5 %", "min 12 W/(m^2*K), max 25 W/(m^2*K)"
+    unit_text: str = ""  # the unit the value is written in, for showing the range
+    scale: float = 1.0  # written units per SI unit
+    offset: float = 0.0  # the written value of SI zero (-273.15 for degC)
+
+    @property
+    def toleranced(self) -> bool:
+        """Whether the input gives this parameter a range of more than one value."""
+        return self.low is not None and self.high is not None and self.high > self.low
+
+    def shown(self, si: float) -> float:
+        """An SI value in the unit the parameter is written in."""
+        return si * self.scale + self.offset
+
+
+@dataclass(frozen=True)
+class Override:
+    """A parameter replaced on the command line (``--set``) for a what-if run."""
+
+    name: str
+    text: str  # the new value as written
+    was: str  # the input's value as written ("" when the input left it to the kind's default)
 
 
 @dataclass(frozen=True)
@@ -191,6 +216,7 @@ class Model:
     kind: KindUse | None = None  # when the input named a model kind
     switches: tuple[Switch, ...] = ()  # later intervals, in order
     unused_parameters: tuple[str, ...] = field(default=())
+    overrides: tuple[Override, ...] = ()  # --set: a what-if, not the issued design
 
     @property
     def residual(self) -> sp.Expr:

@@ -28,6 +28,8 @@ from calcsheet.source.loader_support import declared_parts
 from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
 from calcsheet.source.singular import Values, check_equation_values
 from calcsheet.source.text_rules import MAX_FILE_BYTES, check_raw, toml_kind
+from calcsheet.source.tolerances import RANGE_KEYS, read_range
+from calcsheet.source.overrides import apply_overrides
 from calcsheet.source.symbolic import to_sympy
 
 TABLES = {
@@ -95,12 +97,16 @@ def _same_place(a: str, b: str) -> bool:
     return long == short or long.startswith(short + ".") or long.startswith(short + "[")
 
 
-def load_model(path: str | Path) -> Model:
-    """Read and validate ``path``; raise an InputError or ModelRefused naming file and key."""
+def load_model(path: str | Path, overrides: tuple[tuple[str, str], ...] = ()) -> Model:
+    """Read and validate ``path``; raise an InputError or ModelRefused naming file and key. ``overrides``:
+    (name, value) pairs from ``--set`` that replace parameters' values before anything is checked."""
     name = str(path)
     try:
         raw = _read_toml(Path(path))
-        return _Builder(name, raw, text_problems=check_raw(raw)).build()
+        problems = check_raw(raw)
+        raw, replaced = apply_overrides(raw, overrides)
+        model = _Builder(name, raw, text_problems=problems).build()
+        return replace(model, overrides=replaced) if replaced else model
     except CalcsheetError as error:
         raise error.located(file=name)
     except RecursionError:  # a defect of ours if it happens: the parsers bound their nesting
@@ -431,22 +437,25 @@ class _Builder:
             raise InputError(f"'{name}' is reserved or already the unknown or the variable")
         source = note = ""
         if isinstance(entry, dict):
-            unknown_keys = set(entry) - {"value", "source", "note"}
+            unknown_keys = set(entry) - {"value", "source", "note", *RANGE_KEYS}
             if unknown_keys:
                 shown = key_part(sorted(unknown_keys)[0])
                 raise InputError(f"unknown key {shown if shown.startswith(chr(34)) else repr(shown)} "
-                                 "(expected value, source, note)")
+                                 "(expected value, source, note, tolerance, min, max)")
             if "value" not in entry:
                 raise InputError("the table needs a value, e.g. { value = \"47 kohm\" }")
             source, note = (self.string(entry, k, f"parameters.{name}.{k}") for k in ("source", "note"))
-            entry = entry["value"]
+        table, entry = (entry, entry["value"]) if isinstance(entry, dict) else ({}, entry)
         quantity = units.parse_quantity(entry)
         text = entry if isinstance(entry, str) else f"{entry:g}"
         si_value = units.to_si(quantity)
         units.check_magnitude(si_value, text.strip())
+        spread = read_range(table, quantity, si_value, f"parameters.{key_part(name)}")
+        scale, offset = units.scale_and_offset(quantity.units)
         return Parameter(name=name, text=text.strip(), quantity=quantity, si=si_value,
-                         si_unit=units.si_unit(quantity.units), symbol=_parameter_symbol(name, si_value),
-                         source=source, note=note)
+                         si_unit=units.si_unit(quantity.units), symbol=_parameter_symbol(name, si_value, spread),
+                         source=source, note=note, low=spread.low, high=spread.high, spread=spread.spread,
+                         unit_text=_unit_as_written(text), scale=scale, offset=offset)
 
     def point(self, raw: Any, like: Declared, where: str) -> Point:
         quantity = _wrap_key(lambda: units.parse_quantity(raw), where)
@@ -606,11 +615,19 @@ class _Builder:
         )
 
 
-def _parameter_symbol(name: str, value: float) -> sp.Symbol:
-    """Sign assumptions from the value keep sympy's results free of needless case splits."""
-    if value > 0:
+def _unit_as_written(text: str) -> str:
+    """The unit part of a value as written: "47 kohm" -> "kohm"."""
+    parts = text.strip().split(None, 1)
+    return parts[1] if len(parts) == 2 else ""
+
+
+def _parameter_symbol(name: str, value: float, spread=None) -> sp.Symbol:
+    """Sign assumptions from the value keep sympy's results free of needless case splits; for a parameter
+    with a range they hold over the whole range, so the one solution serves every value in it."""
+    ends = [value] + ([spread.low, spread.high] if spread is not None and spread.low is not None else [])
+    if min(ends) > 0:
         return sp.Symbol(name, positive=True)
-    if value < 0:
+    if max(ends) < 0:
         return sp.Symbol(name, negative=True)
     return sp.Symbol(name, real=True)
 
