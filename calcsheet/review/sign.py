@@ -22,7 +22,10 @@ def sign(path: Path, role: str, name: str, date: str | None, accept_failing: boo
         raise InputError(f"'{role}' is not a role (choose from {', '.join(ROLES)})", "--role", str(path))
     if not name.strip():
         raise InputError("the signer's name must not be empty", "--name", str(path))
-    when = iso_date(date, "--date") if date else dt.date.today().isoformat()
+    try:
+        when = iso_date(date, "--date") if date else dt.date.today().isoformat()
+    except InputError as error:
+        raise error.located(file=str(path)) from None
     built = build_sheet(path)
     info, value = built.derivation.model.sheet, built.sheet.review.fingerprint
     where = f"signoff.{role}"

@@ -33,7 +33,8 @@ def sheet_status(built) -> SheetStatus:
 
 def status_line(s: SheetStatus) -> str:
     """'inputs/a.toml: ME-207 rev B, for check, PASS; prepared current, checked stale, approved unsigned'."""
-    identity = f"{visible(s.number) or '-'} rev {visible(s.revision) or '-'}, {s.status or 'no status'}, {'PASS' if s.passed else 'FAIL'}"
+    verdict = "PASS" if s.passed else "FAIL"
+    identity = f"{visible(s.number) or '-'} rev {visible(s.revision) or '-'}, {s.status or 'no status'}, {verdict}"
     roles = ", ".join(f"{r.role} {r.state}" for r in s.roles)
     problem = f"; NOT FOR ISSUE: {s.problem}" if s.problem else ""
     return f"{s.file}: {identity}; {roles}; fingerprint {s.fingerprint[:12]}{problem}"

@@ -119,8 +119,8 @@ def reviewed(sheet: Sheet, info, fingerprint: str, states, blockers) -> Sheet:
 
 
 def _stale_reason(signoff, fingerprint: str) -> str:
-    return (f"content changed since signed on {signoff.date or 'an unstated date'} (signed {signoff.fingerprint[:12]}…, "
-            f"now {fingerprint[:12]}…): re-check required")
+    return (f"content changed since signed on {signoff.date or 'an unstated date'} "
+            f"(signed {signoff.fingerprint[:12]}…, now {fingerprint[:12]}…): re-check required")
 
 
 # ----------------------------------------------------------------------------- front matter
