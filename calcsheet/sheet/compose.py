@@ -21,7 +21,7 @@ from calcsheet.sheet.as_written import equation_latex
 from calcsheet.sheet.check_words import check_row, checks_lead, quadrature_words
 from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Review,
                                       Section, Sheet, SignOffLine, Table, TitleBlock)
-from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression
+from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression, reproducing_expression
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.record import build_record
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
@@ -386,7 +386,8 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     blocks = [
         Paragraph(f"Values substituted in SI units ({m.variable.name} in {si_x or 'no unit'}, "
                   f"{m.unknown.name} in {si_y or 'no unit'}); results are converted back to the units asked for."),
-        n.eq(n.yx_latex, n.yx_text, numeric_expression(s.particular, values)),
+        n.eq(n.yx_latex, n.yx_text, reproducing_expression(
+            s.particular, values, n.x, [(v.at.si, in_units(v.y, m.unknown)) for v in num.values], m.unknown)),
     ]
     blocks += _time_constant_blocks(d, n, values)
     if num.sine is not None:

@@ -38,8 +38,34 @@ def rounded(value: float) -> float:
     return float(f"{value:.{RECORD_DIGITS}g}")
 
 
-def numeric_expression(expr: sp.Expr, values: dict) -> sp.Expr:
-    """An expression with SI numbers in place of symbols, shown to 4 significant figures."""
+def numeric_expression(expr: sp.Expr, values: dict, digits: int = SIGNIFICANT) -> sp.Expr:
+    """An expression with SI numbers in place of symbols, each shown to ``digits`` significant figures."""
     numeric = sp.N(expr.subs(values), 15)
-    return numeric.xreplace({f: sp.Float(float(f"{float(f):.{SIGNIFICANT}g}"), SIGNIFICANT)
+    return numeric.xreplace({f: sp.Float(float(f"{float(f):.{digits}g}"), digits)
                              for f in numeric.atoms(sp.Float)})
+
+
+MOST_DIGITS = 10
+
+
+def reproducing_expression(expr: sp.Expr, values: dict, x: sp.Symbol, rows, declared: Declared) -> sp.Expr:
+    """The numeric expression with the fewest significant figures (4 or more) that reproduces every row
+    of a table as shown: ``rows`` are (x in SI, the value's text in the declared unit). A checker who
+    evaluates the printed equation by hand then gets the printed table (318.1 - 25.0 e^(...) in kelvin
+    would give 32.09 degC where the table says 32.14). Expressions that keep an integral are shown to 4."""
+    shown = numeric_expression(expr, values)
+    if not rows or shown.has(sp.Integral):
+        return shown
+    for digits in range(SIGNIFICANT, MOST_DIGITS + 1):
+        candidate = numeric_expression(expr, values, digits)
+        if all(_text_at(candidate, x, at, declared) == text for at, text in rows):
+            return candidate
+    return numeric_expression(expr, values, MOST_DIGITS)
+
+
+def _text_at(expr: sp.Expr, x: sp.Symbol, at: float, declared: Declared) -> str:
+    try:
+        value = complex(sp.N(expr.subs(x, sp.Float(at, 30)), 30))
+    except (TypeError, ValueError, ArithmeticError):
+        return ""
+    return declared.text_of(value.real) if abs(value.imag) <= 1e-12 * max(1.0, abs(value.real)) else ""
