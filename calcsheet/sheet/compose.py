@@ -493,8 +493,33 @@ def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
         return [Paragraph(f"{word.capitalize()}: none; {why}.")]
     shown = in_units(num.time_constant, m.variable)
     tau = sp.Symbol("tau")
+    by_hand = _by_hand(num.time_constant_expr, m)
     return [n.eq(latex(tau), "tau", (r"\frac{1}{p}", "1/p"), *_distinct(tau, num.time_constant_expr)[1:],
-                 (_quantity_latex(shown), shown), label=_constant_word(d))]
+                 *([by_hand] if by_hand else []), (_quantity_latex(shown), shown), label=_constant_word(d))]
+
+
+def _by_hand(expr, m):
+    """A product or quotient of parameters with the values as the input states them, for a checker to
+    multiply out by hand: R*C -> 4.7 kohm × 2200 uF. None for any other form."""
+    if expr is None:
+        return None
+    texts = {sp.Symbol(p.name, positive=True): p.text for p in m.parameters}
+    texts.update({sp.Symbol(p.name): p.text for p in m.parameters})
+    up, down = [], []
+    for factor in sp.Mul.make_args(expr):
+        base, power = factor.as_base_exp()
+        if base not in texts or power not in (1, -1):
+            return None
+        (up if power == 1 else down).append(texts[base])
+    if not up or len(up) + len(down) < 2:
+        return None
+    text = " × ".join(up) + ("" if not down else " / " + (down[0] if len(down) == 1 else f"({' × '.join(down)})"))
+    times = r" \times "
+    tex = times.join(_quantity_latex(t) for t in up)
+    if down:
+        below = times.join(_quantity_latex(t) for t in down)
+        tex = rf"\frac{{{tex}}}{{{below}}}"
+    return tex, text
 
 
 def _steady_sine_table(d: Derivation) -> Table:
