@@ -78,6 +78,21 @@ class Figure:
     limits: tuple[Guide, ...] = ()  # vertical: limits on the variable
     caption: str = ""
     extremes: tuple[tuple[float, float, str], ...] = ()  # extremes found (x, y, label), marked apart from points
+    point_limits: tuple["PointLimit", ...] = ()  # a limit on the unknown at one point, drawn there, not across
+    switches: tuple[tuple[float, str], ...] = ()  # switch instants (x, what happens)
+    crossings: tuple[tuple[float, float, str], ...] = ()  # where a level is first reached (x, y, label)
+
+
+@dataclass(frozen=True)
+class PointLimit:
+    """A criterion on the value at one point (v(60 s) <= 50 V): a mark at (x, value), with its verdict and
+    the side that is allowed ("below" or "above")."""
+
+    x: float
+    value: float
+    label: str
+    status: str = ""
+    allowed: str = "below"
 
 
 Block = Union[Paragraph, Equation, Table, Note, ItemList, Figure]

@@ -2,9 +2,9 @@
 
 from __future__ import annotations
 
-from calcsheet.sheet.document import Figure, Guide
+from calcsheet.sheet.document import Figure, Guide, PointLimit
 from calcsheet.source.units import from_si
-from calcsheet.subjects import SUBJECTS, UNKNOWN
+from calcsheet.subjects import SUBJECTS, UNKNOWN, VARIABLE
 
 
 def response_figure(d) -> Figure:
@@ -18,11 +18,20 @@ def response_figure(d) -> Figure:
                    if start <= v.at.si <= end)  # a point past the plotted range stays in the tables only
     extremes = _extreme_marks(m, num, start, end, x_of, y_of)
     levels = [Guide(y_of(r.level.si), f"level {r.level.text}", "") for r in num.reach]
-    limits = []
+    crossings = tuple((x_of(r.x), y_of(r.level.si), "") for r in num.reach
+                      if r.x is not None and start <= r.x <= end)
+    limits, point_limits = [], []
+    beyond = [f"{m.unknown.name}({v.at.text})" for v in num.values if not start <= v.at.si <= end]
     for v in num.verdicts:
         c, status = v.criterion, "pass" if v.passed else "fail"
         subject = SUBJECTS[c.subject]
-        if subject.guide == "level":
+        if subject.argument == VARIABLE:  # a limit at one point is drawn at that point, not across the plot
+            if not start <= c.argument.si <= end:
+                beyond.append(c.check)
+            else:
+                point_limits.append(PointLimit(x_of(c.argument.si), y_of(c.limit.si), f"limit {c.check}", status,
+                                               "below" if c.operator in ("<", "<=") else "above"))
+        elif subject.guide == "level":
             levels.append(Guide(y_of(c.limit.si), f"limit {c.check}", status))
         else:
             limits.append(Guide(x_of(c.limit.si), f"limit {c.check}", status))
@@ -32,12 +41,17 @@ def response_figure(d) -> Figure:
         title=f"Response of {m.unknown.name}",
         x_label=_axis(m.variable), y_label=_axis(m.unknown),
         curve=curve, independent=independent, points=points, levels=tuple(levels), limits=tuple(limits),
-        extremes=extremes,
+        extremes=extremes, point_limits=tuple(point_limits), crossings=crossings,
+        switches=tuple((x_of(s.at.si), s.text) for s in m.switches if start <= s.at.si <= end),
         caption=(f"Line: the particular solution; open circles: the independent numerical integration; "
-                 f"filled dots: the values asked for{'; triangles: the extremes found' if extremes else ''}. "
+                 f"filled dots: the values asked for{'; triangles: the extremes found' if extremes else ''}"
+                 f"{'; crosses: where a level is first reached' if crossings else ''}"
+                 f"{'; dash-dotted grey lines: the switches' if m.switches else ''}"
+                 f"{'; a short bar: a limit at one point, coloured by its verdict' if point_limits else ''}. "
                  f"Horizontal lines mark levels and limits on "
                  f"{m.unknown.name}, vertical lines limits on {m.variable.name}: dotted grey for a level, "
-                 "solid green for a limit that passes, dashed red for one that fails."),
+                 "solid green for a limit that passes, dashed red for one that fails."
+                 + (f" Past the plotted range, in the tables only: {', '.join(beyond)}." if beyond else "")),
     )
 
 

@@ -147,6 +147,20 @@ def _build(figure):
                     markeredgecolor="white", markeredgewidth=0.7, label=f"{EXTREMES_LABEL} ({kind})", zorder=6,
                     clip_on=False, gid=f"calcsheet-extremes-{kind}")
 
+    crossings = [c for c in getattr(figure, "crossings", ()) if _finite(c[0], c[1])]
+    if crossings:
+        ax.plot([c[0] for c in crossings], [c[1] for c in crossings], linestyle="none", marker="x", markersize=5.5,
+                markeredgecolor=INK, markeredgewidth=1.1, zorder=6, clip_on=False, gid="calcsheet-crossings")
+    point_limits = [p for p in getattr(figure, "point_limits", ()) if _finite(p.x, p.value)]
+    for i, mark in enumerate(point_limits):  # a bar at the limit, a caret on the side allowed
+        colour, _, _ = GUIDE_STYLE.get(mark.status, GUIDE_STYLE[""])
+        ax.plot([mark.x], [mark.value], linestyle="none", marker="_", markersize=16, markeredgewidth=2.4,
+                color=colour, zorder=6, clip_on=False, gid=f"calcsheet-point-limit-{mark.status or 'none'}-{i}")
+        ax.plot([mark.x], [mark.value], linestyle="none", marker=7 if mark.allowed == "below" else 6,
+                markersize=6, color=colour, zorder=6, clip_on=False)
+    for i, (x, _) in enumerate(s for s in getattr(figure, "switches", ()) if _finite(s[0])):
+        ax.axvline(x, color=GREY, linestyle="-.", linewidth=0.9, zorder=2, gid=f"calcsheet-switch-{i}")
+
     levels = [g for g in figure.levels if _finite(g.value)]
     limits = [g for g in figure.limits if _finite(g.value)]
     for i, guide in enumerate(levels):
@@ -178,6 +192,8 @@ def _build(figure):
         placer.point_label(x, y, label)
     for x, y, label in extremes:
         placer.point_label(x, y, label)
+    for mark in point_limits:
+        placer.point_label(mark.x, mark.value, mark.label)
     return fig
 
 
@@ -205,7 +221,7 @@ def _ranges(figure, curve):
         hi += 0.03 * width
 
     ys = ([y for _, y in curve] + [y for _, y in figure.independent] + [p[1] for p in figure.points]
-          + [g.value for g in figure.levels])
+          + [g.value for g in figure.levels] + [p.value for p in getattr(figure, "point_limits", ())])
     y0, y1 = _span(ys, (0.0, 1.0))
     pad = 0.1 * (abs(y0) or 1.0) if y0 == y1 else MARGIN * (y1 - y0)
     return (lo, hi), (y0 - pad, y1 + pad)

@@ -25,7 +25,7 @@ from calcsheet.writers import dispatch, writer_for
 
 # Document types that are not nodes a Section holds: the sheet's frame and the parts of nodes.
 FRAME = {doc.Sheet, doc.Section, doc.TitleBlock, doc.Field, doc.Labels, doc.Outcome, doc.Math, doc.Guide,
-         doc.SignOffLine, doc.Review}
+         doc.PointLimit, doc.SignOffLine, doc.Review}
 NODE_WRITERS = ("txt", "html", "pdf")
 
 

@@ -6,12 +6,15 @@ import base64
 import math
 import re
 import xml.etree.ElementTree as ET
+from pathlib import Path
 
 import pytest
 
 from calcsheet.sheet.document import Figure, Guide
 from calcsheet.writers.plot import GUIDE_STYLE, build_figure, figure_svg
 from calcsheet.writers.svgmath import data_uri
+
+ROOT = Path(__file__).resolve().parents[2]
 
 SVG_NS = "{http://www.w3.org/2000/svg}"
 
@@ -221,3 +224,16 @@ def test_constant_curve_and_awkward_point_and_guide_labels():
     low, high = fig.axes[0].get_ylim()
     assert low < 3.0 < high
     assert {"q(2) -- $x$", "limit q <= 3 & more"} <= {t.get_text() for t in fig.axes[0].texts}
+
+
+def test_a_limit_at_one_point_is_drawn_at_that_point_not_across_the_plot():
+    # The bus demo's v(60 s) <= 50 V: a mark at t = 60 s, and no horizontal line at 50 V for it (a curve that
+    # crosses 50 V earlier would otherwise look like a failure). The level 50 V asked for in [evaluate] stays a line.
+    from calcsheet.pipeline import build_sheet
+
+    built = build_sheet(ROOT / "inputs" / "bus-capacitor-bleed-down.toml")
+    figure = next(b for s in built.sheet.sections for b in s.blocks if type(b).__name__ == "Figure")
+    assert [(p.x, p.value, p.status, p.allowed) for p in figure.point_limits] == [(60.0, 50.0, "pass", "below")]
+    assert not any(g.label.startswith("limit v(60 s)") for g in figure.levels)
+    assert any(g.label == "level 50 V" for g in figure.levels)
+    assert len(figure.crossings) == 2  # the two levels asked for, each where it is first reached
