@@ -35,34 +35,42 @@ def _neutralise_bad_source_date_epoch() -> None:
 @click.option("--format", "formats", default=None, help="Comma-separated: html,pdf,json,txt (default: all).")
 @click.option("--style", default=None,
               help="Folder of a house style overriding the default templates and CSS (wins over [sheet] style).")
-def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None) -> None:
+@click.option("--set", "assignments", multiple=True, metavar="NAME=VALUE",
+              help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*')
+def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None,
+          assignments: tuple[str, ...]) -> None:
     """Build a sheet for each INPUT (file or folder of .toml files) into --out."""
     from calcsheet.pipeline import DEFAULT_FORMATS, parse_formats, render, write_outputs
     from calcsheet.writers import WRITERS
 
     chosen = _guard(lambda: parse_formats(formats, tuple(WRITERS)) if formats else DEFAULT_FORMATS)
     style_dir = _guard(lambda: _style(style))
+    overrides = _guard(lambda: _assignments(assignments))
 
     def one(built) -> int:
         house = style_dir or (Path(built.sheet.style) if built.sheet.style else None)
         rendered = render(built.sheet, chosen, house)
-        written = write_outputs(Path(out_dir), built.path.stem, rendered)  # an OSError is the user's: see _run_each
+        stem = built.path.stem + (".whatif" if overrides else "")  # a what-if never overwrites the issued sheet
+        written = write_outputs(Path(out_dir), stem, rendered)  # an OSError is the user's: see _run_each
         click.echo(f"{built.path}: {_summary(built.derivation)} -> {', '.join(str(w) for w in written)}")
         return _issue_guard(built, EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED)
 
-    sys.exit(_run_each(inputs, one, writes=True))
+    sys.exit(_run_each(inputs, one, writes=True, overrides=overrides))
 
 
 @main.command()
 @click.argument("inputs", nargs=-1, required=True)
-def check(inputs: tuple[str, ...]) -> None:
+@click.option("--set", "assignments", multiple=True, metavar="NAME=VALUE",
+              help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*')
+def check(inputs: tuple[str, ...], assignments: tuple[str, ...]) -> None:
     """Derive, verify and evaluate the criteria of each INPUT; write nothing."""
+    overrides = _guard(lambda: _assignments(assignments))
 
     def one(built) -> int:
         click.echo(f"{built.path}: {_summary(built.derivation)}")
         return _issue_guard(built, EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED)
 
-    sys.exit(_run_each(inputs, one))
+    sys.exit(_run_each(inputs, one, overrides=overrides))
 
 
 def _issue_guard(built, code: int) -> int:
@@ -170,14 +178,20 @@ def new(name: str, file: str | None) -> None:
     click.echo(f"wrote {target}: build it with `calcsheet build {target}`")
 
 
-def _run_each(inputs: tuple[str, ...], action, writes: bool = False) -> int:
+def _assignments(assignments: tuple[str, ...]) -> tuple[tuple[str, str], ...]:
+    from calcsheet.source.overrides import parse_assignment
+
+    return tuple(parse_assignment(text) for text in assignments)
+
+
+def _run_each(inputs: tuple[str, ...], action, writes: bool = False, overrides: tuple = ()) -> int:
     from calcsheet.pipeline import build_sheet, collect_inputs
 
     paths = _guard(lambda: collect_inputs(inputs, writes))
     worst = EXIT_OK
     for path in paths:
         try:
-            worst = max(worst, _os_guarded(lambda: action(build_sheet(path)), str(path)))
+            worst = max(worst, _os_guarded(lambda: action(build_sheet(path, overrides)), str(path)))
         except CalcsheetError as error:
             click.echo(str(error.located(file=str(path))), err=True)
             worst = max(worst, error.exit_code)
@@ -203,6 +217,11 @@ def _summary(derivation) -> str:
         why = "the model is not valid for this case" if derivation.numbers.not_valid else \
             "they need the response past the model's validity limit"
         parts.append("not assessed (" + why + "): " + ", ".join(unassessed))
+    margin = getattr(derivation, "margin", None)
+    worst = [f'#{k}' for k, (v, w) in enumerate(zip(verdicts, margin.worst if margin else ()), 1)
+             if v.status == "pass" and w is not None and not w.passed]
+    if worst:
+        parts.append("FAIL at worst case of the tolerances: " + ", ".join(worst))
     parts.append("verification passed" if derivation.verification.passed else "verification FAILED")
     return ("PASS" if derivation.passed else "FAIL") + " (" + "; ".join(parts) + ")"
 

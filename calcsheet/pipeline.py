@@ -19,22 +19,29 @@ class Built:
     sheet: object
 
 
-def build_sheet(path: Path) -> Built:
-    """Load, derive and compose one input (imports sympy lazily: only commands that solve pay for it)."""
+def build_sheet(path: Path, overrides: tuple[tuple[str, str], ...] = ()) -> Built:
+    """Load, derive and compose one input (imports sympy lazily: only commands that solve pay for it);
+    ``overrides`` (--set) replace parameters for a what-if. Where parameters have ranges, the derivation
+    carries its margin (derive/margin.py), which the sheet shows and the verdict includes."""
+    from dataclasses import replace
+
+    from calcsheet.derive.margin import find_margin
     from calcsheet.derive.derivation import derive
     from calcsheet.sheet.compose import compose
     from calcsheet.source.loader import load_model
 
     from calcsheet.review.seal import seal
 
-    model = load_model(path)
+    model = load_model(path, overrides)
     if model.switches:
         from calcsheet.derive.piecewise import derive_piecewise
         from calcsheet.sheet.piecewise import compose_piecewise
 
         derivation = derive_piecewise(model)
+        derivation = replace(derivation, margin=find_margin(derivation))
         return Built(path, derivation, seal(compose_piecewise(derivation), model.sheet))
     derivation = derive(model)
+    derivation = replace(derivation, margin=find_margin(derivation))
     return Built(path, derivation, seal(compose(derivation), model.sheet))
 
 

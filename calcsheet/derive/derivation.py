@@ -30,10 +30,12 @@ class Derivation:
     curve: tuple[tuple[float, float], ...]  # (x, y) in SI over numbers.span, for plots
     quadrature: QuadratureLog | None
     response: object = None  # the ResponseEvaluator: y(x) in SI, for intervals that follow this one
+    margin: object = None  # derive/margin.py's Margin, when parameters have ranges (set by the pipeline)
 
     @property
     def passed(self) -> bool:
-        return self.numbers.all_passed and self.verification.passed
+        """Every criterion holds, at worst case too where parameters have ranges, and verification passed."""
+        return self.numbers.all_passed and self.verification.passed and (self.margin is None or self.margin.passed)
 
 
 def derive(model: Model) -> Derivation:

@@ -100,7 +100,10 @@ class Numbers:
         return not self.not_valid and all(v.passed for v in self.verdicts)
 
 
-def compute_numbers(model: Model, cls: Classification, solution: Solution, y: ResponseEvaluator) -> Numbers:
+def compute_numbers(model: Model, cls: Classification, solution: Solution, y: ResponseEvaluator,
+                    final: tuple[float | None, str] | None = None) -> Numbers:
+    """``final``: the final value and its code when the caller already has them (derive/margin.py evaluates one
+    symbolic limit for every set of parameter values)."""
     x = model.variable.symbol
     values = model.numeric_values()
     cls = _as_solved(cls, solution, model)
@@ -131,7 +134,7 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
         _refuse_overflow_before(farthest, domain_end, model)
     if singular is not None and (domain_end is None or singular < domain_end):
         domain_end = singular
-    final, final_note = _final_value(model, cls, solution, values, p_value)
+    final, final_note = final if final is not None else _final_value(model, cls, solution, values, p_value)
     if model.plot_to is not None:
         span_end = model.plot_to.si
     if domain_end is not None:

@@ -36,10 +36,11 @@ class SwitchedDerivation:
     numbers: Numbers  # across the whole response: values, levels and criteria; the last interval's tau and final value
     verification: SwitchedVerification
     curve: tuple[tuple[float, float], ...]
+    margin: object = None  # derive/margin.py's Margin, when parameters have ranges (set by the pipeline)
 
     @property
     def passed(self) -> bool:
-        return self.numbers.all_passed and self.verification.passed
+        return self.numbers.all_passed and self.verification.passed and (self.margin is None or self.margin.passed)
 
 
 def derive_piecewise(model: Model) -> SwitchedDerivation:

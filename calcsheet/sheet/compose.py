@@ -23,6 +23,7 @@ from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, N
                                       Section, Sheet, SignOffLine, Table, TitleBlock)
 from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression, reproducing_expression
 from calcsheet.sheet.figure import response_figure
+from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_words, whatif_words
 from calcsheet.sheet.record import build_record
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
 from calcsheet.subjects import SUBJECTS, UNKNOWN
@@ -164,9 +165,14 @@ def _outcome(d: Derivation) -> Outcome:
         ) if part)
     else:
         head = "The criterion passes." if len(verdicts) == 1 else f"All {len(verdicts)} criteria pass."
+    worst, held = outcome_words(d)
+    if worst:  # "2 criteria pass at nominal; 1 of them fails at worst case (...)" says what the pass line said
+        head = worst if not (failed or unassessed or not_valid) else f"{head} {worst}"
+    head = whatif_words(d.model) + head
     head += " Verification passed." if verified else " Verification FAILED: do not rely on these results."
     lines = tuple(f"{_STATUS_WORDS[_status(v)]}: {v.criterion.text}" for v in verdicts)
-    return Outcome(passed=not not_valid and not failed and not unassessed and verified, text=head, lines=lines)
+    return Outcome(passed=not not_valid and not failed and not unassessed and verified and held, text=head,
+                   lines=lines)
 
 
 _STATUS_WORDS = {"pass": "PASS", "fail": "FAIL", "not assessed": "NOT ASSESSED"}
@@ -278,8 +284,7 @@ def _classification(d: Derivation, n: _Notation) -> Section:
         ("Order", "1", f"the highest derivative is d{y}/d{x}"),
         ("Linearity", "linear", f"{y} and d{y}/d{x} appear only to the first power, never multiplied together "
                                 "or inside a function"),
-        ("Forcing", "homogeneous" if c.homogeneous else "forced",
-         "r(x) = 0: no term free of the unknown" if c.homogeneous else f"a term free of {y} drives the response"),
+        _forcing_row(c, m),
         ("Coefficients", "constant" if c.constant_coefficients else "varying",
          f"p does not depend on {x}" if c.constant_coefficients else f"p depends on {x}"),
     )
@@ -288,6 +293,21 @@ def _classification(d: Derivation, n: _Notation) -> Section:
         Paragraph("A first-order linear ordinary differential equation: it is solved by the integrating-factor "
                   "method."),
     ))
+
+
+def _forcing_row(c, m) -> tuple[str, str, str]:
+    """Homogeneous or forced, as written; and, where the stated values make the forcing vanish (a source of
+    0 V), said so beside the symbolic form's classification."""
+    y, x = m.unknown.name, m.variable.name
+    if c.homogeneous:
+        return "Forcing", "homogeneous", f"r({x}) = 0: no term free of {y}"
+    if c.homogeneous_with_values:
+        zeros = ", ".join(f"{p.name} = {p.text}" for p in m.parameters if p.si == 0 and sp.Symbol(p.name) in
+                          {sp.Symbol(s.name) for s in c.r.free_symbols})
+        return ("Forcing", "forced as written; homogeneous with the stated values",
+                f"r({x}) = {plain(c.r)} has a term free of {y}, which is 0 with the stated values"
+                + (f" ({zeros})" if zeros else "") + ": the response is the natural response alone")
+    return "Forcing", "forced", f"a term free of {y} drives the response"
 
 
 def _standard_form(d: Derivation, n: _Notation) -> Section:
@@ -707,5 +727,6 @@ def _verification(d: Derivation, n: _Notation) -> Section:
 STEPS = (("governing", _governing), ("classification", _classification), ("standard_form", _standard_form),
          ("integrating_factor", _integrating_factor), ("integration", _integration),
          ("initial_condition", _initial_condition), ("split", _split), ("numbers", _numbers),
-         ("extremes", _extremes), ("verification", _verification))
-OPTIONAL_STEPS = {"extremes": lambda d: bool(d.numbers.extremes)}  # shown only when the input asks for them
+         ("extremes", _extremes), ("margin", lambda d, n: margin_section(d)), ("verification", _verification))
+# shown only when the input asks for them (extremes), or gives parameters ranges (margin)
+OPTIONAL_STEPS = {"extremes": lambda d: bool(d.numbers.extremes), "margin": has_margin}

@@ -9,6 +9,7 @@ from calcsheet.sheet.compose import checks_table, compose, criteria_table, extre
     values_table, _outcome
 from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
+from calcsheet.sheet.margin_words import has_margin, margin_section
 from calcsheet.sheet.quantities import in_units
 from calcsheet.sheet.record import build_switched_record
 
@@ -23,6 +24,8 @@ def compose_piecewise(pd) -> Sheet:
         sections += [Section(f"i{k}_{s.key}", f"Interval {k}, step {s.number}: {s.title}", s.blocks)
                      for s in part.sections if s.number]
     sections.append(_across(pd))
+    if has_margin(pd):
+        sections.append(margin_section(pd, "across_margin", "Sensitivity and tolerances across the switches"))
     record = build_switched_record(pd, [part.record for part in parts])
     notes = cautions.hazard_notes(pd.model, tuple(y for _, y in pd.curve), cautions.coil_voltage_steps(pd))
     return replace(first, outcome=_outcome(pd), sections=tuple(sections), record=record,

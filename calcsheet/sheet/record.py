@@ -21,7 +21,7 @@ INTERVAL_KEYS = ("kind", "classification", "solution", "time_constant", "final_v
 
 def build_record(d, n) -> dict:
     m, num, s, c = d.model, d.numbers, d.solution, d.classification
-    return {
+    record = {
         "format": RECORD_FORMAT,
         "version": RECORD_VERSION,
         "sheet": {k: getattr(m.sheet, k) if not isinstance(getattr(m.sheet, k), tuple) else list(getattr(m.sheet, k))
@@ -67,6 +67,16 @@ def build_record(d, n) -> dict:
         "verification": verification_record(d.verification),
         "passed": d.passed,
     }
+    return _with_margin(d, record, record)
+
+
+def _with_margin(d, record: dict, results: dict) -> dict:
+    """The margin's parts (margin_words.py): tolerances, sensitivities, overrides, and each criterion's worst case
+    and limiting values in ``results``."""
+    from calcsheet.sheet.margin_words import criteria_margin, margin_record
+
+    results["criteria"] = criteria_margin(d, results["criteria"])
+    return {**record, **margin_record(d)}
 
 
 def results_record(m, num) -> dict:
@@ -119,7 +129,7 @@ def build_switched_record(sd, interval_records: list[dict]) -> dict:
     """The record of a switched model: ``interval_records`` are the intervals' own records (build_record)."""
     m, first = sd.model, interval_records[0]
     before = [None] + list(sd.intervals[:-1])
-    return {
+    record = {
         "format": RECORD_FORMAT,
         "version": RECORD_VERSION,
         "sheet": first["sheet"],
@@ -129,6 +139,7 @@ def build_switched_record(sd, interval_records: list[dict]) -> dict:
         "across": {**results_record(m, sd.numbers), "verification": verification_record(sd.verification)},
         "passed": sd.passed,
     }
+    return _with_margin(sd, record, record["across"])
 
 
 def _interval_record(interval, record: dict, previous) -> dict:

@@ -15,6 +15,7 @@ import pytest
 from click.testing import CliRunner
 
 from calcsheet.cli import main
+from tests.end_to_end.demo_verdicts import FAILS_AT_WORST_CASE, expected_exit
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
@@ -34,9 +35,16 @@ def test_there_are_at_least_four_demos():
 
 
 def test_build_succeeds_on_every_demo(built):
+    """Every demo builds; those whose criteria fail at the worst case of their tolerances say FAIL (exit 1)."""
     first, _, results = built
     result = results[first]
-    assert result.exit_code == 0, result.output
+    assert result.exit_code == expected_exit(d.stem for d in DEMOS), result.output
+    for demo in DEMOS:
+        line = next(line for line in result.output.splitlines() if line.startswith(str(demo)))
+        if demo.stem in FAILS_AT_WORST_CASE:
+            assert line.split()[1] == "FAIL" and "FAIL at worst case" in line, line
+        else:
+            assert line.split()[1] == "PASS", line
     for demo in DEMOS:
         for ext in ("html", "json", "txt"):
             assert (first / f"{demo.stem}.{ext}").stat().st_size > 0
