@@ -29,6 +29,7 @@ class Classification:
     c: sp.Expr  # everything else
     p: sp.Expr  # b / a
     r: sp.Expr  # -c / a
+    homogeneous_with_values: bool = False  # r vanishes once the stated values are put in (a source of 0 V)
 
 
 def classify(model: Model) -> Classification:
@@ -48,8 +49,10 @@ def classify(model: Model) -> Classification:
     p = tidy(b / a)
     _refuse_bad_coefficient(p, model)
     r = sp.Add(*(tidy(term) for term in sp.Add.make_args(sp.expand(-c / a, deep=False))))
-    return Classification(homogeneous=_is_zero(r),
-                          constant_coefficients=x not in p.free_symbols, a=a, b=b, c=c, p=p, r=r)
+    homogeneous = _is_zero(r)
+    with_values = homogeneous or _is_zero(r.subs(model.numeric_values()))
+    return Classification(homogeneous=homogeneous, constant_coefficients=x not in p.free_symbols,
+                          a=a, b=b, c=c, p=p, r=r, homogeneous_with_values=with_values)
 
 
 def tidy(expr: sp.Expr) -> sp.Expr:

@@ -284,8 +284,7 @@ def _classification(d: Derivation, n: _Notation) -> Section:
         ("Order", "1", f"the highest derivative is d{y}/d{x}"),
         ("Linearity", "linear", f"{y} and d{y}/d{x} appear only to the first power, never multiplied together "
                                 "or inside a function"),
-        ("Forcing", "homogeneous" if c.homogeneous else "forced",
-         "r(x) = 0: no term free of the unknown" if c.homogeneous else f"a term free of {y} drives the response"),
+        _forcing_row(c, m),
         ("Coefficients", "constant" if c.constant_coefficients else "varying",
          f"p does not depend on {x}" if c.constant_coefficients else f"p depends on {x}"),
     )
@@ -294,6 +293,21 @@ def _classification(d: Derivation, n: _Notation) -> Section:
         Paragraph("A first-order linear ordinary differential equation: it is solved by the integrating-factor "
                   "method."),
     ))
+
+
+def _forcing_row(c, m) -> tuple[str, str, str]:
+    """Homogeneous or forced, as written; and, where the stated values make the forcing vanish (a source of
+    0 V), said so beside the symbolic form's classification."""
+    y, x = m.unknown.name, m.variable.name
+    if c.homogeneous:
+        return "Forcing", "homogeneous", f"r({x}) = 0: no term free of {y}"
+    if c.homogeneous_with_values:
+        zeros = ", ".join(f"{p.name} = {p.text}" for p in m.parameters if p.si == 0 and sp.Symbol(p.name) in
+                          {sp.Symbol(s.name) for s in c.r.free_symbols})
+        return ("Forcing", "forced as written; homogeneous with the stated values",
+                f"r({x}) = {plain(c.r)} has a term free of {y}, which is 0 with the stated values"
+                + (f" ({zeros})" if zeros else "") + ": the response is the natural response alone")
+    return "Forcing", "forced", f"a term free of {y} drives the response"
 
 
 def _standard_form(d: Derivation, n: _Notation) -> Section:
@@ -378,6 +392,10 @@ def _split(d: Derivation, n: _Notation) -> Section:
         n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
     ]
     how = _FINAL_WORDS[num.final_value_note].format(x=m.variable.name)
+    if num.final_value is None and num.valid_until is not None:  # not "grows without bound": the model ends first
+        at, why = num.valid_until
+        how = (f"none within the model: {limit_words(m.kind, why)} at {m.variable.name} = "
+               f"{in_units(at, m.variable)}, and the model says nothing after that")
     if num.final_value is not None:
         blocks.append(Paragraph(f"Final value: {name} tends to {in_units(num.final_value, m.unknown)} ({how})."))
     else:

@@ -42,6 +42,7 @@ def build_record(d, n) -> dict:
         },
         "classification": {
             "order": 1, "linear": True, "homogeneous": c.homogeneous,  # refused otherwise
+            "homogeneous_with_values": c.homogeneous_with_values,
             "constant_coefficients": c.constant_coefficients, "p": plain(c.p), "r": plain(c.r),
         },
         "solution": {
