@@ -372,15 +372,15 @@ class _Builder:
             style=errors.attempt(lambda: self.style_folder(self.string(table, "style", "sheet.style")), ""),
             signoff=errors.attempt(lambda: sheet_keys.signoff(self.raw.get("signoff", {}), text["originator"]), ()),
             revisions=errors.attempt(lambda: sheet_keys.revisions(self.raw.get("revisions", [])), ()),
+            status=errors.attempt(lambda: sheet_keys.issue_status(table.get("status", "")), ""),
         )
+        errors.attempt(lambda: sheet_keys.check_consistency(text["revision"], info["revisions"], info["signoff"]))
         errors.raise_any()
         return SheetInfo(title=title, **info, **text)
 
     def style_folder(self, text: str) -> str:
         """A house style folder named by the input: inside the input file's folder tree, symlinks resolved.
-            status=errors.attempt(lambda: sheet_keys.issue_status(table.get("status", "")), ""),
 
-        errors.attempt(lambda: sheet_keys.check_consistency(text["revision"], info["revisions"], info["signoff"]))
         A received input must not point its build at any folder on the machine; the command line's
         --style may point anywhere, because the person building chose it.
         """
