@@ -45,7 +45,7 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
 
     html = render_html(sheet, style, "pdf", {
         "math": lambda m: Markup(_inline(m.latex)),
-        "display_math": lambda m: Markup(_display(m.latex)),
+        "display_math": lambda m: Markup(_display(m.latex) + _searchable(m.text)),
         "figure": lambda f: Markup(f'<img class="figure" alt="{escape(visible(f.title))}" '
                                    f'src="{svgmath.data_uri(figure_svg(f))}">'),
     }, extra_css=_page_css(sheet), created=creation_date(sheet))
@@ -116,6 +116,12 @@ def _display(latex: str) -> str:
         parts.append(f'<img class="math-line" alt="{escape(line)}" src="{svgmath.data_uri(r.svg)}" '
                      f'style="width:{r.width * scale:.2f}px;height:{r.height * scale:.2f}px">')
     return "<br>".join(parts)
+
+
+def _searchable(text: str) -> str:
+    """The equation's plain form as text the reader cannot see (print.css .math-text) but a search, a copy or
+    pdftotext finds: the equation itself is drawn as SVG paths, which hold no text."""
+    return f'<span class="math-text">{escape(visible(text))}</span>'
 
 
 def _page_css(sheet: doc.Sheet) -> str:
