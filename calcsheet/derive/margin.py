@@ -499,7 +499,7 @@ def _switched_numbers(model: Model, nominal, final_forms):
     evaluated with the new numbers, joined as derive_piecewise joins them, without the verification."""
     from calcsheet.derive.derivation import Derivation
     from calcsheet.derive.evaluate import make_evaluator
-    from calcsheet.derive.numbers import verdict_for
+    from calcsheet.derive.numbers import asks_for_extremes, verdict_for
     from calcsheet.derive.piecewise import Interval, Joined, _extreme_search, _scan, interval_model
     from calcsheet.source.units import from_si, registry
 
@@ -520,7 +520,7 @@ def _switched_numbers(model: Model, nominal, final_forms):
     grid, samples = _scan(intervals)
     joined = Joined(intervals)
     last = intervals[-1].derivation.numbers
-    search = _extreme_search(model, intervals, joined, grid, last.final_value)
+    search = _extreme_search(model, intervals, joined, grid, last.final_value) if asks_for_extremes(model) else None
     verdicts = tuple(verdict_for(c, joined, grid, samples, last.time_constant, last.final_value, search=search)
                      for c in model.criteria)
     return replace(last, verdicts=verdicts)

@@ -149,7 +149,8 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     stop = (OVERFLOWS, domain_end) if overflow else _stop(limit, domain_end, searched_to)
     reaches = tuple(reach_for(level, y, searched, samples, final, stop=stop) for level in model.reach)
     analysed = (x0, float(searched[-1]) if len(searched) else x0 + scale)
-    search = ExtremeSearch([Piece(model, solution, cls, y, x0, None, scale=scale)], y, analysed, final)
+    search = ExtremeSearch([Piece(model, solution, cls, y, x0, None, scale=scale)], y, analysed, final) \
+        if asks_for_extremes(model) else None
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
     verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, valid_until=limit, not_valid=not_valid,
                                  search=search) for c in model.criteria)
@@ -158,6 +159,12 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
                    domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
                    sine=_steady_sine(model, tau), valid_until=limit, not_valid=not_valid,
                    extremes=extremes_shown(asked, verdicts))
+
+
+def asks_for_extremes(model: Model) -> bool:
+    """Does the input ask for an extreme ([evaluate] extremes, or a criterion over a window)? The search is
+    built only then: it differentiates and compiles the solution, which a sheet without one need not pay for."""
+    return bool(model.extremes) or any(SUBJECTS[c.subject].argument == WINDOW for c in model.criteria)
 
 
 def extremes_shown(asked, verdicts) -> tuple[Extreme, ...]:

@@ -14,7 +14,8 @@ import numpy as np
 
 from calcsheet.derive.derivation import Derivation, derive
 from calcsheet.derive.extremes import ExtremeSearch, Piece
-from calcsheet.derive.numbers import SEARCH_SCALES, Numbers, ValueAt, extremes_shown, reach_for, verdict_for
+from calcsheet.derive.numbers import (SEARCH_SCALES, Numbers, ValueAt, asks_for_extremes, extremes_shown, reach_for,
+                                      verdict_for)
 from calcsheet.derive.switched_checks import SwitchedVerification, verify_switched
 from calcsheet.model import Model, Point
 from calcsheet.source.units import from_si, registry
@@ -50,7 +51,7 @@ def derive_piecewise(model: Model) -> SwitchedDerivation:
     last = intervals[-1].derivation.numbers
     values = tuple(ValueAt(p, y(p.si)) for p in model.evaluate_at)
     reaches = tuple(reach_for(level, y, grid, samples, last.final_value) for level in model.reach)
-    search = _extreme_search(model, intervals, y, grid, last.final_value)
+    search = _extreme_search(model, intervals, y, grid, last.final_value) if asks_for_extremes(model) else None
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
     verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, search=search)
                      for c in model.criteria)

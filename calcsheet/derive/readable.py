@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 from typing import Mapping
 
 import sympy as sp
@@ -26,7 +27,13 @@ def exp_of_logs_to_powers(expr: sp.Expr) -> sp.Expr:
 
 
 def compact(expr: sp.Expr, seconds: float = SIMPLIFY_SECONDS) -> sp.Expr:
-    """The shortest of a few standard forms, found within a time budget."""
+    """The shortest of a few standard forms, found within a time budget. Remembered per expression within
+    a process: the design-margin evaluations and the sheets of one build ask for the same forms again."""
+    return _compact(expr, seconds)
+
+
+@functools.lru_cache(maxsize=1024)
+def _compact(expr: sp.Expr, seconds: float) -> sp.Expr:
     candidates = [expr]
     for transform in (lambda e: sp.powsimp(sp.expand(e)), sp.simplify):
         result, done = within(seconds, lambda: transform(expr), None)

@@ -102,9 +102,14 @@ def test_switch_errors_name_the_switch(tmp_path, switches, key, fragment):
     assert message.startswith(f"{path}: {key}") and fragment in message and "\n" not in message
 
 
-def test_demo_with_an_economy_resistor_builds_and_passes():
+def test_demo_with_an_economy_resistor_passes_at_nominal_and_says_it_fails_at_worst_case():
+    # The demo states a hot winding and a supply 10 % low (tests/end_to_end/demo_verdicts.py): at nominal
+    # both criteria pass and the switched response verifies; at worst case the pull-in is not reached in time.
     built = build_sheet(ROOT / "inputs" / "valve-coil-economiser.toml")
-    assert built.derivation.passed and len(built.derivation.intervals) == 2
+    d = built.derivation
+    assert len(d.intervals) == 2 and d.verification.passed
+    assert all(v.status == "pass" for v in d.numbers.verdicts)
+    assert not d.passed
 
 
 def test_record_v2_gives_each_interval_with_the_parameters_in_force(tmp_path):
