@@ -39,7 +39,7 @@ def _corpus():
 def work_calcsheet(name: str) -> dict:
     corpus = _corpus()
     from calcsheet.derive.derivation import derive
-    from calcsheet.source.loader import load_model
+    from calcsheet.load.loader import load_model
 
     case = corpus.by_name(name)
     with tempfile.TemporaryDirectory() as directory:

@@ -90,12 +90,14 @@ def _issue_guard(built, code: int) -> int:
 @click.option("--accept-failing", is_flag=True, help="Sign even though criteria or verification fail.")
 def sign(input_file: str, role: str, name: str, date: str | None, accept_failing: bool) -> None:
     """Sign INPUT for ROLE: write the name, date and the content's fingerprint into its [signoff] table."""
+    from calcsheet.pipeline import build_sheet, write_file
     from calcsheet.review.sign import sign as sign_input
 
     path = Path(input_file)
     if not path.is_file():
         _guard(lambda: _refuse("no such file", input_file))
-    value, when = _guard(lambda: _os_guarded(lambda: sign_input(path, role, name, date, accept_failing),
+    value, when = _guard(lambda: _os_guarded(lambda: sign_input(path, role, name, date, accept_failing,
+                                                                build_sheet=build_sheet, write_file=write_file),
                                              input_file))
     click.echo(f"{path}: signed {role} by {name.strip()} on {when} for fingerprint {value[:12]}")
 
@@ -179,7 +181,7 @@ def new(name: str, file: str | None) -> None:
 
 
 def _assignments(assignments: tuple[str, ...]) -> tuple[tuple[str, str], ...]:
-    from calcsheet.source.overrides import parse_assignment
+    from calcsheet.load.overrides import parse_assignment
 
     return tuple(parse_assignment(text) for text in assignments)
 

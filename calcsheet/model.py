@@ -1,6 +1,6 @@
 """The validated Model: what the engineer stated, checked, with units and sympy symbols.
 
-A Model is built once by ``calcsheet.source.loader`` and never changed afterwards. Everything
+A Model is built once by ``calcsheet.load.loader`` and never changed afterwards. Everything
 numeric in it is also held in SI base units (``si``), the only units the mathematics sees.
 """
 

@@ -28,7 +28,7 @@ def build_sheet(path: Path, overrides: tuple[tuple[str, str], ...] = ()) -> Buil
     from calcsheet.derive.margin import find_margin
     from calcsheet.derive.derivation import derive
     from calcsheet.sheet.compose import compose
-    from calcsheet.source.loader import load_model
+    from calcsheet.load.loader import load_model
 
     from calcsheet.review.seal import seal
 

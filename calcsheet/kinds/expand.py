@@ -10,7 +10,7 @@ from calcsheet.kinds import kind_named
 from calcsheet.kinds.base import START_SLOT, Kind, KindUse, check_slot_dimension
 from calcsheet.kinds.forcing import forcing_from_table
 from calcsheet.source import units
-from calcsheet.source.loader_support import declared_parts
+from calcsheet.source.declared import declared_parts
 
 
 @dataclass(frozen=True)

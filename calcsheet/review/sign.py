@@ -11,12 +11,14 @@ from pathlib import Path
 
 from calcsheet.errors import InputError
 from calcsheet.review.states import CURRENT, lower_roles, role_states
-from calcsheet.source.sheet_keys import ROLES, iso_date
+from calcsheet.load.sheet_keys import ROLES, iso_date
 
 
-def sign(path: Path, role: str, name: str, date: str | None, accept_failing: bool = False) -> tuple[str, str]:
-    """Write ``signoff.<role> = { name, date, fingerprint }`` into ``path``; returns (fingerprint, date)."""
-    from calcsheet.pipeline import build_sheet, write_file
+def sign(path: Path, role: str, name: str, date: str | None, accept_failing: bool = False, *,
+         build_sheet, write_file) -> tuple[str, str]:
+    """Write ``signoff.<role> = { name, date, fingerprint }`` into ``path``; returns (fingerprint, date).
+    ``build_sheet`` and ``write_file`` are the pipeline's (the command line passes them): review sits beside
+    the pipeline and does not import it, so the layers stay one-way."""
 
     if role not in ROLES:
         raise InputError(f"'{role}' is not a role (choose from {', '.join(ROLES)})", "--role", str(path))

@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from calcsheet.model import SignOff
-from calcsheet.source.sheet_keys import ROLES
+from calcsheet.load.sheet_keys import ROLES
 
 CURRENT, STALE, UNSIGNED = "current", "stale", "unsigned"
 ISSUED = "issued"

@@ -18,7 +18,7 @@ from calcsheet.cli import main
 from calcsheet.derive.derivation import derive
 from calcsheet.derive.extremes import FINAL_VALUE, FORCING_JUMP, STATIONARY, WINDOW_END
 from calcsheet.errors import CalcsheetError, ErrorList
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 
 
 def build(tmp_path: Path, equation: str, parameters: dict, unknown: str, initial: str, extra: str = ""):

@@ -23,7 +23,7 @@ from scipy import integrate, optimize
 from calcsheet.derive.derivation import derive
 from calcsheet.derive.margin import (BRACKETED, CORNERS, DIFFERENCE, IMPLICIT, SOLVED, SYMBOLIC, find_margin)
 from calcsheet.derive.piecewise import derive_piecewise
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 
 ROOT = Path(__file__).resolve().parents[2]
 RTOL = 1e-6

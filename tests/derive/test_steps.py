@@ -12,7 +12,7 @@ from calcsheet.derive import budget
 from calcsheet.derive.classify import classify
 from calcsheet.derive.derivation import derive
 from calcsheet.derive.integrating_factor import solve
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 
 TEMPLATE = """
 [sheet]

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from calcsheet.derive.numbers import QUANTITIES
-from calcsheet.source.loader import RESERVED
+from calcsheet.load.loader import RESERVED
 from calcsheet.subjects import CONDITION_SUBJECT, SUBJECTS, UNKNOWN, VARIABLE, WINDOW, spellings, written_subject
 
 

@@ -17,7 +17,7 @@ from calcsheet.derive.piecewise import Joined, derive_piecewise, interval_model
 from calcsheet.derive.switched_checks import check_continuity, check_switched_integration, particular_at
 from calcsheet.model import Point
 from calcsheet.pipeline import build_sheet
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 from calcsheet.source.units import registry
 from calcsheet.sheet.check_words import method_words
 

@@ -22,7 +22,7 @@ from calcsheet.derive.numbers import APPROACHES_FINAL, MODEL_STOPS, MOVES_AWAY, 
 from calcsheet.derive.verify import AGREEMENT, ATOL_SHARE, difference_measure
 from calcsheet.errors import ModelRefused
 from calcsheet.pipeline import build_sheet, render
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 from calcsheet.sheet.check_words import detail_words, method_words
 
 ROOT = Path(__file__).resolve().parents[2]

@@ -78,7 +78,7 @@ def test_a_per_cent_of_a_celsius_temperature_is_refused_and_a_difference_is_read
     path.write_text(THERMAL.replace("{T}", '{ value = "22 degC", tolerance = "10 %" }'))
     result = _run(["check", str(path)])
     assert result.exit_code == 2 and "parameters.T_inf.tolerance: a per cent of a temperature" in result.output
-    from calcsheet.source.loader import load_model
+    from calcsheet.load.loader import load_model
 
     for written in ('"5 K"', '"5 degC"', '"5 delta_degC"'):
         path.write_text(THERMAL.replace("{T}", f'{{ value = "22 degC", tolerance = {written} }}'))

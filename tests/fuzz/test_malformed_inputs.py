@@ -21,7 +21,7 @@ from hypothesis import strategies as st
 
 from calcsheet.cli import main
 from calcsheet.errors import CalcsheetError
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMOS = sorted((ROOT / "inputs").glob("*.toml"))

@@ -26,7 +26,7 @@ from calcsheet.derive.classify import Classification, classify
 from calcsheet.derive.derivation import Derivation, derive
 from calcsheet.derive.integrating_factor import Solution, solve
 from calcsheet.model import Model
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 from calcsheet.sheet.check_words import check_row
 from corpus import CASES, Case, toml_text
 

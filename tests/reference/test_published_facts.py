@@ -13,7 +13,7 @@ import pint
 import pytest
 
 from calcsheet.derive.derivation import Derivation, derive
-from calcsheet.source.loader import load_model
+from calcsheet.load.loader import load_model
 
 UREG = pint.UnitRegistry()  # the outside reference for temperature conversions
 

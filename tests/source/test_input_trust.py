@@ -21,7 +21,7 @@ from click.testing import CliRunner
 from calcsheet.cli import main
 from calcsheet.errors import CalcsheetError, InputError, ModelRefused
 from calcsheet.source import units
-from calcsheet.source.loader import ErrorList, load_model
+from calcsheet.load.loader import ErrorList, load_model
 
 FREE = """\
 [sheet]

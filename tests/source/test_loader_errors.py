@@ -1,4 +1,4 @@
-"""Tests for calcsheet.source.loader.load_model: refused inputs, and one accepted model.
+"""Tests for calcsheet.load.loader.load_model: refused inputs, and one accepted model.
 
 The demo scenario (invented): the coil of a 24 V control relay is switched on and its current
 rises through the coil inductance and resistance, L*di/dt + R*i = V_s.
@@ -19,7 +19,7 @@ import sympy as sp
 
 from calcsheet.derive.classify import classify
 from calcsheet.errors import CalcsheetError, InputError, ModelRefused
-from calcsheet.source.loader import TABLES, ErrorList, load_model
+from calcsheet.load.loader import TABLES, ErrorList, load_model
 
 SHEET = '[sheet]\ntitle = "Relay coil current rise"\n'
 MODEL = '[model]\nequation = "L*di/dt + R*i = V_s"\nunknown = "i [A]"\nvariable = "t [s]"\n'

@@ -17,20 +17,21 @@ from typing import Any
 import sympy as sp
 
 from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part, shortened
+from calcsheet.kinds.expand import expand_kind, kind_checks
+from calcsheet.load import sheet_keys
+from calcsheet.load.overrides import apply_overrides
 from calcsheet.model import (Criterion, Declared, ExtremeRequest, IntervalLaw, Model, Parameter, Point, SheetInfo,
                              Switch, Window)
 from calcsheet.source import expressions as ex
-from calcsheet.kinds.expand import expand_kind, kind_checks
-from calcsheet.source import sheet_keys, units
-from calcsheet.subjects import CONDITION_SUBJECT, UNKNOWN, VARIABLE, WINDOW, reserved_words, spellings, \
-    written_subject
-from calcsheet.source.loader_support import declared_parts
+from calcsheet.source import units
+from calcsheet.source.declared import declared_parts
 from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
 from calcsheet.source.singular import Values, check_equation_values
+from calcsheet.source.symbolic import to_sympy
 from calcsheet.source.text_rules import MAX_FILE_BYTES, check_raw, toml_kind
 from calcsheet.source.tolerances import RANGE_KEYS, read_range
-from calcsheet.source.overrides import apply_overrides
-from calcsheet.source.symbolic import to_sympy
+from calcsheet.subjects import CONDITION_SUBJECT, UNKNOWN, VARIABLE, WINDOW, reserved_words, spellings, \
+    written_subject
 
 TABLES = {
     "sheet": {"title", "number", "revision", "project", "originator", "purpose", "references", "assumptions",
