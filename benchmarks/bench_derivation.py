@@ -32,6 +32,7 @@ QUICK = ("rc_step_charge", "brine_tank_filling", "charge_leak_growing")
 def _corpus():
     sys.path.insert(0, str(CORPUS_DIR))
     import corpus  # noqa: PLC0415 - lives with the tests, found through the path above
+
     return corpus
 
 
@@ -67,8 +68,12 @@ def work_sympy(name: str) -> dict:
     solved = time.perf_counter()
     checked, _ = sp.checkodesol(ode, solution)
     done = time.perf_counter()
-    return {"seconds": done - start, "dsolve": solved - start, "checkodesol": done - solved,
-            "outcome": "checked" if checked else "checkodesol rejects"}
+    return {
+        "seconds": done - start,
+        "dsolve": solved - start,
+        "checkodesol": done - solved,
+        "outcome": "checked" if checked else "checkodesol rejects",
+    }
 
 
 WORKERS = {"calcsheet": work_calcsheet, "sympy": work_sympy}
@@ -118,8 +123,10 @@ def main(argv: list[str] | None = None) -> int:
     bare = interpreter_start()
     print(f"python {sys.version.split()[0]}; bare interpreter start (median of 5): {bare:.3f} s")
     print("times exclude imports; wall = whole subprocess including interpreter start and imports\n")
-    header = (f"{'case':28} {'calcsheet s':>11} {'sympy s':>8} {'(dsolve':>8} {'check)':>7} "
-              f"{'calc/sympy':>10} {'calc/start':>10} {'calc wall':>9} {'sympy wall':>10}  outcomes")
+    header = (
+        f"{'case':28} {'calcsheet s':>11} {'sympy s':>8} {'(dsolve':>8} {'check)':>7} "
+        f"{'calc/sympy':>10} {'calc/start':>10} {'calc wall':>9} {'sympy wall':>10}  outcomes"
+    )
     print(header)
     print("-" * len(header))
     totals = {"calcsheet": 0.0, "sympy": 0.0, "sympy_bound": False}
@@ -137,15 +144,19 @@ def main(argv: list[str] | None = None) -> int:
             ratio = f"{ours['seconds'] / theirs['seconds']:10.2f}" if ours["seconds"] else f"{'-':>10}"
             split = f"{theirs['dsolve']:8.2f} {theirs['checkodesol']:7.2f}"
         per_start = f"{ours['seconds'] / bare:10.1f}" if ours["seconds"] else f"{'-':>10}"
-        print(f"{name:28} {seconds(ours, 120):>11} {seconds(theirs, args.cap)} {split} {ratio} {per_start} "
-              f"{ours['wall']:9.2f} {theirs['wall']:10.2f}  {ours['outcome']} / {theirs['outcome']}")
+        print(
+            f"{name:28} {seconds(ours, 120):>11} {seconds(theirs, args.cap)} {split} {ratio} {per_start} "
+            f"{ours['wall']:9.2f} {theirs['wall']:10.2f}  {ours['outcome']} / {theirs['outcome']}"
+        )
     print("-" * len(header))
     bound = ">" if totals["sympy_bound"] else ""
     total_ratio = totals["calcsheet"] / totals["sympy"] if totals["sympy"] else float("nan")
     label = f"total ({len(names)} cases)"
-    print(f"{label:28} {totals['calcsheet']:11.2f} {bound + format(totals['sympy'], '.2f'):>8}"
-          f"  calcsheet/sympy {'<' if bound else ''}{total_ratio:.2f}, "
-          f"calcsheet/interpreter start {totals['calcsheet'] / bare:.1f}")
+    print(
+        f"{label:28} {totals['calcsheet']:11.2f} {bound + format(totals['sympy'], '.2f'):>8}"
+        f"  calcsheet/sympy {'<' if bound else ''}{total_ratio:.2f}, "
+        f"calcsheet/interpreter start {totals['calcsheet'] / bare:.1f}"
+    )
     if bound:
         print(f"sympy total is a lower bound: timed-out cases are counted at the cap ({args.cap:g} s)")
     return 0

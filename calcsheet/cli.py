@@ -33,12 +33,21 @@ def _neutralise_bad_source_date_epoch() -> None:
 @click.argument("inputs", nargs=-1, required=True)
 @click.option("--out", "out_dir", default="out", show_default=True, help="Folder for the outputs.")
 @click.option("--format", "formats", default=None, help="Comma-separated: html,pdf,json,txt (default: all).")
-@click.option("--style", default=None,
-              help="Folder of a house style overriding the default templates and CSS (wins over [sheet] style).")
-@click.option("--set", "assignments", multiple=True, metavar="NAME=VALUE",
-              help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*')
-def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None,
-          assignments: tuple[str, ...]) -> None:
+@click.option(
+    "--style",
+    default=None,
+    help="Folder of a house style overriding the default templates and CSS (wins over [sheet] style).",
+)
+@click.option(
+    "--set",
+    "assignments",
+    multiple=True,
+    metavar="NAME=VALUE",
+    help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*',
+)
+def build(
+    inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None, assignments: tuple[str, ...]
+) -> None:
     """Build a sheet for each INPUT (file or folder of .toml files) into --out."""
     from calcsheet.pipeline import DEFAULT_FORMATS, parse_formats, render, write_outputs
     from calcsheet.writers import WRITERS
@@ -60,8 +69,13 @@ def build(inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str
 
 @main.command()
 @click.argument("inputs", nargs=-1, required=True)
-@click.option("--set", "assignments", multiple=True, metavar="NAME=VALUE",
-              help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*')
+@click.option(
+    "--set",
+    "assignments",
+    multiple=True,
+    metavar="NAME=VALUE",
+    help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*',
+)
 def check(inputs: tuple[str, ...], assignments: tuple[str, ...]) -> None:
     """Derive, verify and evaluate the criteria of each INPUT; write nothing."""
     overrides = _guard(lambda: _assignments(assignments))
@@ -83,8 +97,12 @@ def _issue_guard(built, code: int) -> int:
 
 @main.command()
 @click.argument("input_file", metavar="INPUT")
-@click.option("--role", required=True, type=click.Choice(["prepared", "checked", "approved"]),
-              help="The role signing; roles sign in this order.")
+@click.option(
+    "--role",
+    required=True,
+    type=click.Choice(["prepared", "checked", "approved"]),
+    help="The role signing; roles sign in this order.",
+)
 @click.option("--name", required=True, help="The signer's name as it should appear on the sheet.")
 @click.option("--date", default=None, help="YYYY-MM-DD (default: today).")
 @click.option("--accept-failing", is_flag=True, help="Sign even though criteria or verification fail.")
@@ -96,16 +114,23 @@ def sign(input_file: str, role: str, name: str, date: str | None, accept_failing
     path = Path(input_file)
     if not path.is_file():
         _guard(lambda: _refuse("no such file", input_file))
-    value, when = _guard(lambda: _os_guarded(lambda: sign_input(path, role, name, date, accept_failing,
-                                                                build_sheet=build_sheet, write_file=write_file),
-                                             input_file))
+    value, when = _guard(
+        lambda: _os_guarded(
+            lambda: sign_input(path, role, name, date, accept_failing, build_sheet=build_sheet, write_file=write_file),
+            input_file,
+        )
+    )
     click.echo(f"{path}: signed {role} by {name.strip()} on {when} for fingerprint {value[:12]}")
 
 
 @main.command()
 @click.argument("inputs", nargs=-1)
-@click.option("--require", type=click.Choice(["prepared", "checked", "approved"]), default=None,
-              help="Exit 1 when any sheet lacks a current sign-off of this role.")
+@click.option(
+    "--require",
+    type=click.Choice(["prepared", "checked", "approved"]),
+    default=None,
+    help="Exit 1 when any sheet lacks a current sign-off of this role.",
+)
 @click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True)
 def status(inputs: tuple[str, ...], require: str | None, fmt: str) -> None:
     """One line per sheet (INPUT files or folders; default: this folder): number, revision, issue status,
@@ -126,8 +151,11 @@ def status(inputs: tuple[str, ...], require: str | None, fmt: str) -> None:
     if require:
         missing = lacking(found, require)
         if missing:
-            click.echo(f"{len(missing)} of {len(found)} sheets lack a current {require} sign-off: "
-                       + ", ".join(s.file for s in missing), err=True)
+            click.echo(
+                f"{len(missing)} of {len(found)} sheets lack a current {require} sign-off: "
+                + ", ".join(s.file for s in missing),
+                err=True,
+            )
             worst = max(worst, EXIT_CHECK_FAILED)
     sys.exit(worst)
 
@@ -174,8 +202,11 @@ def new(name: str, file: str | None) -> None:
     text = _guard(lambda: starter_text(name))
     target = Path(file or f"{name}.toml")
     if target.exists():
-        _guard(lambda: (_ for _ in ()).throw(InputError("already exists; choose another name or remove it",
-                                                        file=str(target))))
+        _guard(
+            lambda: (_ for _ in ()).throw(
+                InputError("already exists; choose another name or remove it", file=str(target))
+            )
+        )
     _guard(lambda: _os_guarded(lambda: write_file(target, text), str(target)))
     click.echo(f"wrote {target}: build it with `calcsheet build {target}`")
 
@@ -200,8 +231,11 @@ def _run_each(inputs: tuple[str, ...], action, writes: bool = False, overrides: 
         except Exception as error:  # a defect of ours, not the user's: one line, no traceback
             if os.environ.get("CALCSHEET_DEBUG"):
                 raise
-            click.echo(f"{path}: internal error: {type(error).__name__}: {error} "
-                       "(set CALCSHEET_DEBUG=1 for details and please report it)", err=True)
+            click.echo(
+                f"{path}: internal error: {type(error).__name__}: {error} "
+                "(set CALCSHEET_DEBUG=1 for details and please report it)",
+                err=True,
+            )
             worst = max(worst, EXIT_INTERNAL)
     return worst
 
@@ -216,12 +250,18 @@ def _summary(derivation) -> str:
     if failed:
         parts.append("FAIL: " + ", ".join(failed))
     if unassessed:
-        why = "the model is not valid for this case" if derivation.numbers.not_valid else \
-            "they need the response past the model's validity limit"
+        why = (
+            "the model is not valid for this case"
+            if derivation.numbers.not_valid
+            else "they need the response past the model's validity limit"
+        )
         parts.append("not assessed (" + why + "): " + ", ".join(unassessed))
     margin = getattr(derivation, "margin", None)
-    worst = [f'#{k}' for k, (v, w) in enumerate(zip(verdicts, margin.worst if margin else ()), 1)
-             if v.status == "pass" and w is not None and not w.passed]
+    worst = [
+        f"#{k}"
+        for k, (v, w) in enumerate(zip(verdicts, margin.worst if margin else ()), 1)
+        if v.status == "pass" and w is not None and not w.passed
+    ]
     if worst:
         parts.append("FAIL at worst case of the tolerances: " + ", ".join(worst))
     parts.append("verification passed" if derivation.verification.passed else "verification FAILED")

@@ -61,7 +61,7 @@ class CalcsheetError(Exception):
     def __str__(self) -> str:
         message = visible(self.message)
         if len(message) > _MESSAGE_LIMIT:
-            message = message[:_MESSAGE_LIMIT - 3] + "..."
+            message = message[: _MESSAGE_LIMIT - 3] + "..."
         if self.line:  # file:LINE:COLUMN: message, the form editors jump to
             return f"{visible(self.file)}:{self.line}:{self.column}: {message}"
         parts = [visible(p) for p in (self.file, self.key) if p]
@@ -95,4 +95,4 @@ class ErrorList(CalcsheetError):
 def shortened(text, limit: int = 80) -> str:
     """User text echoed in a message: runs of spaces closed up, and cut with an ellipsis past ``limit``."""
     text = " ".join(str(text).split())
-    return text if len(text) <= limit else text[:limit - 3] + "..."
+    return text if len(text) <= limit else text[: limit - 3] + "..."

@@ -21,7 +21,7 @@ class _PlainPrinter(StrPrinter):
         return f"step({self._print(expr.args[0])})"
 
     def _print_Integral(self, expr):
-        (variable, *limits), = expr.limits
+        ((variable, *limits),) = expr.limits
         body = self._print(expr.function)
         if not limits:
             return f"integral(({body}) d{self._print(variable)})"
@@ -80,4 +80,3 @@ def symbol_latex(name: str) -> str:
         base, subscript = match.groups()
         return rf"{sp.latex(sp.Symbol(base))}_{{\mathrm{{{subscript}}}}}"
     return sp.latex(sp.Symbol(name))
-

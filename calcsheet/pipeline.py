@@ -135,16 +135,20 @@ def _refuse_same_stems(paths: list[Path]) -> None:
     for path in paths:
         other = seen.setdefault(path.stem, path)
         if other != path and other.resolve() != path.resolve():
-            raise InputError(f"has the same name as {other}; their outputs ({path.stem}.*) would overwrite "
-                             "each other: build them into different --out folders", file=str(path))
+            raise InputError(
+                f"has the same name as {other}; their outputs ({path.stem}.*) would overwrite "
+                "each other: build them into different --out folders",
+                file=str(path),
+            )
 
 
 def parse_formats(text: str, known: tuple[str, ...]) -> tuple[str, ...]:
     formats = tuple(dict.fromkeys(f.strip().lower() for f in text.split(",") if f.strip()))
     unknown = [f for f in formats if f not in known]
     if unknown or not formats:
-        raise InputError(f"unknown format '{unknown[0] if unknown else text}' (choose from {', '.join(known)})",
-                         key="--format")
+        raise InputError(
+            f"unknown format '{unknown[0] if unknown else text}' (choose from {', '.join(known)})", key="--format"
+        )
     return formats
 
 

@@ -26,14 +26,17 @@ class Subject:
     depends_on_whole_response: bool = False  # needs the response as the variable grows without bound
 
 
-SUBJECTS: dict[str, Subject] = {s.name: s for s in (
-    Subject("value", "", VARIABLE, UNKNOWN, "level"),
-    Subject("reach", "reach", UNKNOWN, VARIABLE, "limit_x", absent_is_never=True),
-    Subject("time_constant", "time_constant", None, VARIABLE, "limit_x"),
-    Subject("final_value", "final_value", None, UNKNOWN, "level", depends_on_whole_response=True),
-    Subject("max", "max", WINDOW, UNKNOWN, "level"),
-    Subject("min", "min", WINDOW, UNKNOWN, "level"),
-)}
+SUBJECTS: dict[str, Subject] = {
+    s.name: s
+    for s in (
+        Subject("value", "", VARIABLE, UNKNOWN, "level"),
+        Subject("reach", "reach", UNKNOWN, VARIABLE, "limit_x", absent_is_never=True),
+        Subject("time_constant", "time_constant", None, VARIABLE, "limit_x"),
+        Subject("final_value", "final_value", None, UNKNOWN, "level", depends_on_whole_response=True),
+        Subject("max", "max", WINDOW, UNKNOWN, "level"),
+        Subject("min", "min", WINDOW, UNKNOWN, "level"),
+    )
+}
 # A condition over a window, "T <= 90 degC for t in 0 s .. 10 min", is the extreme that decides it: the largest
 # value for an upper limit, the smallest for a lower one.
 CONDITION_SUBJECT = {"<=": "max", "<": "max", ">=": "min", ">": "min"}

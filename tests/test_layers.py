@@ -7,8 +7,22 @@ from pathlib import Path
 
 PACKAGE = Path(__file__).resolve().parents[1] / "calcsheet"
 # lower to higher; a module may import only from its own level and those before it
-ORDER = ["errors", "formatting", "mathtext", "subjects", "source", "kinds", "model", "load", "derive", "sheet",
-         "writers", "review", "pipeline", "cli"]
+ORDER = [
+    "errors",
+    "formatting",
+    "mathtext",
+    "subjects",
+    "source",
+    "kinds",
+    "model",
+    "load",
+    "derive",
+    "sheet",
+    "writers",
+    "review",
+    "pipeline",
+    "cli",
+]
 
 
 def _level(module: str) -> str:

@@ -41,18 +41,32 @@ def classify(model: Model) -> Classification:
     b = sp.expand(sp.diff(residual, y))
     c = model.residual.subs({y: 0, dy: 0})  # F(x, 0, 0): the forcing as written, not expanded
     if _is_zero(a):
-        raise ModelRefused(f"the derivative d{model.unknown.name}/d{model.variable.name} cancels out: "
-                           "the equation is algebraic, not differential", "model.equation")
+        raise ModelRefused(
+            f"the derivative d{model.unknown.name}/d{model.variable.name} cancels out: "
+            "the equation is algebraic, not differential",
+            "model.equation",
+        )
     if a.subs(model.numeric_values()).is_zero:
-        raise ModelRefused(f"with the stated values the coefficient of d{model.unknown.name}/d{model.variable.name}, "
-                           f"{plain(a)}, is zero: the equation is algebraic, not differential", "model.equation")
+        raise ModelRefused(
+            f"with the stated values the coefficient of d{model.unknown.name}/d{model.variable.name}, "
+            f"{plain(a)}, is zero: the equation is algebraic, not differential",
+            "model.equation",
+        )
     p = tidy(b / a)
     _refuse_bad_coefficient(p, model)
     r = sp.Add(*(tidy(term) for term in sp.Add.make_args(sp.expand(-c / a, deep=False))))
     homogeneous = _is_zero(r)
     with_values = homogeneous or _is_zero(r.subs(model.numeric_values()))
-    return Classification(homogeneous=homogeneous, constant_coefficients=x not in p.free_symbols,
-                          a=a, b=b, c=c, p=p, r=r, homogeneous_with_values=with_values)
+    return Classification(
+        homogeneous=homogeneous,
+        constant_coefficients=x not in p.free_symbols,
+        a=a,
+        b=b,
+        c=c,
+        p=p,
+        r=r,
+        homogeneous_with_values=with_values,
+    )
 
 
 def tidy(expr: sp.Expr) -> sp.Expr:
@@ -75,7 +89,9 @@ def _refuse_nonlinear_terms(residual: sp.Expr, y: sp.Symbol, dy: sp.Symbol, mode
                 raise ModelRefused(
                     f"term '{plain(term)}' is not linear in {model.unknown.name} and "
                     f"d{model.unknown.name}/d{model.variable.name}; the integrating-factor method "
-                    "needs a linear equation", "model.equation")
+                    "needs a linear equation",
+                    "model.equation",
+                )
 
 
 def _refuse_singular_values(model: Model) -> None:
@@ -91,18 +107,24 @@ def _refuse_singular_values(model: Model) -> None:
             if has_infinity(numeric):
                 zeros = [p.name for p in model.parameters if p.si == 0 and p.symbol in term.free_symbols]
                 named = f"{', '.join(f'{n} = 0' for n in zeros)} makes" if zeros else "the stated values make"
-                raise ModelRefused(f"{named} the equation singular: the term {plain(term)} is infinite or undefined",
-                                   f"parameters.{zeros[0]}" if zeros else "model.equation")
+                raise ModelRefused(
+                    f"{named} the equation singular: the term {plain(term)} is infinite or undefined",
+                    f"parameters.{zeros[0]}" if zeros else "model.equation",
+                )
             if numeric.has(sp.I):
-                raise ModelRefused(f"the stated values make the term {plain(term)} complex; every term must be real",
-                                   "model.equation")
+                raise ModelRefused(
+                    f"the stated values make the term {plain(term)} complex; every term must be real", "model.equation"
+                )
 
 
 def _refuse_bad_coefficient(p: sp.Expr, model: Model) -> None:
     numeric = p.subs(model.numeric_values())
     if has_infinity(numeric) or numeric.has(sp.I):
-        raise ModelRefused(f"with the stated values the coefficient p = {plain(p)} of {model.unknown.name} is "
-                           "infinite, undefined or complex", "model.equation")
+        raise ModelRefused(
+            f"with the stated values the coefficient p = {plain(p)} of {model.unknown.name} is "
+            "infinite, undefined or complex",
+            "model.equation",
+        )
 
 
 def _is_zero(expr: sp.Expr) -> bool:

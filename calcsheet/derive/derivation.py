@@ -67,13 +67,22 @@ def _numeric(model: Model, cls: Classification, solution: Solution) -> Derivatio
     if numbers.valid_until is not None:
         checked = [x for x in checked if x <= numbers.valid_until[0]]
     verification = verify(model, solution, y, [float(x) for x in checked])
-    return Derivation(model=model, classification=cls, solution=solution, numbers=numbers,
-                      verification=verification, curve=curve,
-                      quadrature=None if solution.closed_form else y.log, response=y)
+    return Derivation(
+        model=model,
+        classification=cls,
+        solution=solution,
+        numbers=numbers,
+        verification=verification,
+        curve=curve,
+        quadrature=None if solution.closed_form else y.log,
+        response=y,
+    )
 
 
 def _not_finite_message(model: Model, failure: NotFinite) -> str:
     where = model.variable.text_of(failure.x)
     why = failure.what or "a term of it is infinite there and has no finite limit"
-    return (f"the equation is not finite at {model.variable.name} = {where} ({why}); the response cannot be "
-            "computed through that point")
+    return (
+        f"the equation is not finite at {model.variable.name} = {where} ({why}); the response cannot be "
+        "computed through that point"
+    )

@@ -41,8 +41,9 @@ class QuadratureLog:
 
     def adding(self, error: float, troubled: bool) -> "QuadratureLog":
         """This log with one more evaluation, whose error estimate is ``error``."""
-        return QuadratureLog(self.evaluations + 1, max(self.largest_error, abs(error)),
-                             self.troubled + (1 if troubled else 0))
+        return QuadratureLog(
+            self.evaluations + 1, max(self.largest_error, abs(error)), self.troubled + (1 if troubled else 0)
+        )
 
 
 @dataclass
@@ -124,8 +125,9 @@ class ResponseEvaluator:
         Pb = P(b)
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
-            result, error = integrate.quad(lambda s: _growth(P(s) - Pb) * r(s), a, b,
-                                           epsabs=0.0, epsrel=QUAD_RTOL, limit=QUAD_SUBINTERVALS)
+            result, error = integrate.quad(
+                lambda s: _growth(P(s) - Pb) * r(s), a, b, epsabs=0.0, epsrel=QUAD_RTOL, limit=QUAD_SUBINTERVALS
+            )
         troubled = any(issubclass(w.category, (integrate.IntegrationWarning, RuntimeWarning)) for w in caught)
         self.log = self.log.adding(error, troubled)
         return result
@@ -142,8 +144,13 @@ def make_evaluator(model: Model, solution: Solution, scale: float = 1.0) -> Resp
     closed_vector = sp.lambdify(x, closed_expr, modules=["scipy", "numpy"])
     P = SafeFunction(solution.P.subs(values), x, scale=scale)
     open_parts = [(P, SafeFunction(term.subs(values), x, scale=scale)) for term in solution.open_terms]
-    return ResponseEvaluator(closed=closed, closed_vector=closed_vector, open_parts=open_parts,
-                             x0=model.initial_at.si, closed_limit=SafeFunction(closed_expr, x, scale=scale))
+    return ResponseEvaluator(
+        closed=closed,
+        closed_vector=closed_vector,
+        open_parts=open_parts,
+        x0=model.initial_at.si,
+        closed_limit=SafeFunction(closed_expr, x, scale=scale),
+    )
 
 
 def _constant_as_limit(model: Model, solution: Solution, values: dict, scale: float) -> sp.Expr:
@@ -160,8 +167,10 @@ def _constant_as_limit(model: Model, solution: Solution, values: dict, scale: fl
         f0 = SafeFunction(forced * mu, x, scale=scale, side=1).limit(x0)
         mu0 = SafeFunction(mu, x, scale=scale, side=1)(x0)
     except NotFinite:
-        raise ModelRefused("the stated values make the derived solution singular at the initial point, with no "
-                           "finite limit there", "model.equation") from None
+        raise ModelRefused(
+            "the stated values make the derived solution singular at the initial point, with no finite limit there",
+            "model.equation",
+        ) from None
     return sp.Float(y0 * mu0 - f0, 20) / mu + forced
 
 

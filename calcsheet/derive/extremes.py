@@ -27,7 +27,12 @@ from calcsheet.model import Model, Window
 MAX, MIN = "max", "min"
 # How an extreme was found (Extreme.method); the sheet words each one.
 STATIONARY, FORCING_JUMP, SWITCH, WINDOW_END, FINAL_VALUE = (
-    "stationary_point", "forcing_jump", "switch", "window_end", "final_value")
+    "stationary_point",
+    "forcing_jump",
+    "switch",
+    "window_end",
+    "final_value",
+)
 SOLVE_SECONDS = 10.0  # sympy's solveset on one stretch of the derivative; only a guard against a hang
 SCAN_POINTS = 2001  # sign-scan points of dy/dx over the whole analysed range, shared out by length
 MIN_STRETCH_POINTS = 65  # at least this many on each stretch between jumps, however short
@@ -73,8 +78,9 @@ class Piece:
         x = model.variable.symbol
         values = {**model.numeric_values(), **solution.initial_values(model)}
         self.x, self.y, self.start, self.end, self.x0 = x, y, start, end, model.initial_at.si
-        self.corners = tuple(forcing_jumps(model, start, end if end is not None else math.inf)) + \
-            _kinks(model.residual.subs(model.numeric_values()), x, start, end)
+        self.corners = tuple(forcing_jumps(model, start, end if end is not None else math.inf)) + _kinks(
+            model.residual.subs(model.numeric_values()), x, start, end
+        )
         p = (solution.p if solution.p is not None else cls.p).subs(values)
         r = (solution.r if solution.r is not None else cls.r).subs(values)
         self.p, self.r = SafeFunction(p, x, scale=scale), SafeFunction(r, x, scale=scale)
@@ -114,8 +120,14 @@ class Piece:
 class ExtremeSearch:
     """Extremes of one response (one Piece, or one per interval of a switched model) over windows."""
 
-    def __init__(self, pieces: list[Piece], y, analysed: tuple[float, float], final: float | None,
-                 switches: tuple[float, ...] = ()):
+    def __init__(
+        self,
+        pieces: list[Piece],
+        y,
+        analysed: tuple[float, float],
+        final: float | None,
+        switches: tuple[float, ...] = (),
+    ):
         self.pieces, self.y, self.analysed, self.final = pieces, y, analysed, final
         self.switches = switches
         self._all: tuple[list[Stationary], bool] | None = None  # every stationary point of the analysed range
@@ -125,12 +137,18 @@ class ExtremeSearch:
         end = window.end.si if window and window.end else self.analysed[1]
         end = min(end, self.analysed[1])
         open_ended = bool(window and window.open_ended)
-        corners = sorted({(c, FORCING_JUMP) for p in self.pieces for c in p.corners if start < c < end}
-                         | {(s, SWITCH) for s in self.switches if start < s < end})
+        corners = sorted(
+            {(c, FORCING_JUMP) for p in self.pieces for c in p.corners if start < c < end}
+            | {(s, SWITCH) for s in self.switches if start < s < end}
+        )
         every, solved = self._every_stationary()
         stationary = [s for s in every if start < s.at < end]
-        candidates = ([(start, WINDOW_END)] + corners + [(s.at, STATIONARY) for s in stationary]
-                      + ([(end, WINDOW_END)] if end > start else []))
+        candidates = (
+            [(start, WINDOW_END)]
+            + corners
+            + [(s.at, STATIONARY) for s in stationary]
+            + ([(end, WINDOW_END)] if end > start else [])
+        )
         better = (lambda a, b: a > b) if kind == MAX else (lambda a, b: a < b)
         best = None
         for at, method in sorted(candidates, key=lambda c: c[0]):
@@ -140,18 +158,21 @@ class ExtremeSearch:
         value, at, method = best if best is not None else (None, None, WINDOW_END)
         tail = max([start] + [c for c, _ in corners] + [s.at for s in stationary]) if open_ended else None
         if open_ended and at == end and end > start:  # the tail decides: it is monotone past `tail`
-            value, at, method = (self.final, None, FINAL_VALUE) if self.final is not None else (None, None,
-                                                                                                 FINAL_VALUE)
-        return Extreme(kind, start, end, open_ended, value, at, method, tuple(stationary), tuple(corners),
-                       solved, tail, text)
+            value, at, method = (self.final, None, FINAL_VALUE) if self.final is not None else (None, None, FINAL_VALUE)
+        return Extreme(
+            kind, start, end, open_ended, value, at, method, tuple(stationary), tuple(corners), solved, tail, text
+        )
 
     def _every_stationary(self) -> tuple[list[Stationary], bool]:
         """The stationary points over the whole analysed range, found once for every window: between each pair
         of neighbouring jumps and switches; and whether sympy solved every stretch."""
         if self._all is None:
             start, end = self.analysed
-            cuts = sorted({start, end} | {c for p in self.pieces for c in p.corners if start < c < end}
-                          | {s for s in self.switches if start < s < end})
+            cuts = sorted(
+                {start, end}
+                | {c for p in self.pieces for c in p.corners if start < c < end}
+                | {s for s in self.switches if start < s < end}
+            )
             found, solved = [], True
             for u, v in zip(cuts, cuts[1:]):
                 points, exact = self._stationary(u, v)
@@ -212,12 +233,15 @@ def _settle(expr: sp.Expr, x: sp.Symbol, inside: float) -> sp.Expr | None:
         if sp.diff(argument, x, 2) != 0:
             return None
     side = lambda argument: float(argument.subs(x, inside)) > 0  # noqa: E731
+
     def settled(a, *rest):
         return sp.Heaviside(a, *rest) if not a.has(x) else sp.S.One if side(a) else sp.S.Zero
 
-    return expr.replace(sp.Heaviside, settled) \
-        .replace(sp.sign, lambda a: sp.S.One if side(a) else -sp.S.One) \
+    return (
+        expr.replace(sp.Heaviside, settled)
+        .replace(sp.sign, lambda a: sp.S.One if side(a) else -sp.S.One)
         .replace(sp.Abs, lambda a: a if side(a) else -a)
+    )
 
 
 def _kinks(expr: sp.Expr, x: sp.Symbol, start: float, end: float | None) -> tuple[float, ...]:
@@ -239,8 +263,11 @@ def _root(slope, a: float, b: float) -> float:
     """The zero of dy/dx between two scan points of opposite sign: Brent's method, bounded in steps."""
     fa, fb = slope(a), slope(b)
     if math.isfinite(fa) and math.isfinite(fb) and fa * fb < 0:
-        return float(optimize.brentq(slope, a, b, xtol=1e-13 * max(b - a, 1e-300), rtol=1e-14,
-                                     maxiter=ROOT_ITERATIONS, disp=False))
+        return float(
+            optimize.brentq(
+                slope, a, b, xtol=1e-13 * max(b - a, 1e-300), rtol=1e-14, maxiter=ROOT_ITERATIONS, disp=False
+            )
+        )
     return 0.5 * (a + b)
 
 

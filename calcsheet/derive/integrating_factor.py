@@ -64,8 +64,11 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         p, r = p.subs(special), r.subs(special)
         P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS)
     if not closed:
-        raise ModelRefused(f"the integrating factor needs the integral of p = {p}, and {_REASONS[why]}; "
-                           "this tool does not handle that case yet", "model.equation")
+        raise ModelRefused(
+            f"the integrating factor needs the integral of p = {p}, and {_REASONS[why]}; "
+            "this tool does not handle that case yet",
+            "model.equation",
+        )
     mu = exp_of_logs_to_powers(sp.exp(P))
     taken = {p.name for p in model.parameters}
     K = sp.Symbol(next(n for n in ("K", "K_c", "C_K", "K_int") if n not in taken))
@@ -93,16 +96,30 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
     k_value = compact(y0 * mu.subs(x, x0) - F.subs(x, x0))
     natural = compact(k_value / mu)
     forced_closed = compact(F / mu)
-    forced = forced_closed + sp.Add(*(
-        sp.Integral(compact(mu.subs(x, s) * term.subs(x, s) / mu), (s, x0, x)) for term in open_terms))
+    forced = forced_closed + sp.Add(
+        *(sp.Integral(compact(mu.subs(x, s) * term.subs(x, s) / mu), (s, x0, x)) for term in open_terms)
+    )
     antiderivative = F + sp.Add(*(sp.Integral(sp.powsimp(mu * term), x) for term in open_terms))
     return Solution(
-        x0=x0, y0=y0, P=P, mu=mu, mu_r=sp.powsimp(mu * r), antiderivative=antiderivative,
-        open_terms=tuple(open_terms), constant=K, general=(antiderivative + K) / mu,
-        constant_value=k_value, particular=natural + forced, natural=natural, forced=forced,
-        forced_closed=forced_closed, branches=tuple(notes),
+        x0=x0,
+        y0=y0,
+        P=P,
+        mu=mu,
+        mu_r=sp.powsimp(mu * r),
+        antiderivative=antiderivative,
+        open_terms=tuple(open_terms),
+        constant=K,
+        general=(antiderivative + K) / mu,
+        constant_value=k_value,
+        particular=natural + forced,
+        natural=natural,
+        forced=forced,
+        forced_closed=forced_closed,
+        branches=tuple(notes),
         fallback_codes=tuple(sorted(set(reasons))),
-        special_case=tuple((plain(k), plain(v)) for k, v in special.items()), p=p, r=r,
+        special_case=tuple((plain(k), plain(v)) for k, v in special.items()),
+        p=p,
+        r=r,
     )
 
 
@@ -121,9 +138,11 @@ def _refuse_unless_finite_at_start(integrand: sp.Expr, x: sp.Symbol, start, mode
     try:
         SafeFunction(integrand.subs(start), x, scale=scale, side=1).limit(x0)
     except NotFinite:
-        raise ModelRefused("the forcing has no finite limit at the initial point, so the response cannot start "
-                           "there: the integral of mu*r from the initial point does not exist",
-                           "model.equation") from None
+        raise ModelRefused(
+            "the forcing has no finite limit at the initial point, so the response cannot start "
+            "there: the integral of mu*r from the initial point does not exist",
+            "model.equation",
+        ) from None
 
 
 def _finite_at(antiderivative: sp.Expr, x: sp.Symbol, x0: sp.Expr, values) -> bool:
@@ -176,6 +195,7 @@ def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.
 
     The quick rule-based integrator goes first; the full algorithm only when it fails.
     """
+
     def attempt() -> sp.Expr:
         result = sp.integrate(expr, x, manual=True)
         if result.has(sp.Integral):

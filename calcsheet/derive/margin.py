@@ -35,7 +35,12 @@ DIGITS = 30
 # Methods (Sensitivity.method, LimitingValue.method, WorstCase.method); the sheet words each.
 SYMBOLIC, IMPLICIT, AT_EXTREME, DIFFERENCE = "symbolic", "implicit", "symbolic_at_extreme", "central_difference"
 SOLVED, BRACKETED, NOT_IN_REACH, HOLDS_THROUGHOUT, FAILS_THROUGHOUT = (
-    "solved", "bracketed", "not_bracketed", "holds_throughout", "fails_throughout")
+    "solved",
+    "bracketed",
+    "not_bracketed",
+    "holds_throughout",
+    "fails_throughout",
+)
 CORNERS, SEARCHED, TOO_MANY = "corners", "searched", "too_many_parameters"
 MIN, MAX = "min", "max"
 
@@ -139,8 +144,7 @@ def probes(model: Model, numbers) -> tuple[Probe, ...]:
     result, seen = [], set()
 
     def add(criterion: Criterion):
-        key = (criterion.subject, criterion.argument.si if criterion.argument else None,
-               _window_key(criterion.window))
+        key = (criterion.subject, criterion.argument.si if criterion.argument else None, _window_key(criterion.window))
         if key not in seen or criterion in model.criteria:
             seen.add(key)
             result.append(Probe(criterion, criterion.subject))
@@ -209,8 +213,11 @@ class _Study:
         switches = []
         for switch in model.switches:
             law_params = _with_values(switch.law.parameters, pairs)
-            switches.append(replace(switch, law=replace(switch.law, parameters=law_params,
-                                                        kind=_kind_at(switch.law.kind, law_params))))
+            switches.append(
+                replace(
+                    switch, law=replace(switch.law, parameters=law_params, kind=_kind_at(switch.law.kind, law_params))
+                )
+            )
         return replace(model, switches=tuple(switches))
 
     def quantity(self, values, index: int) -> float | None:
@@ -220,8 +227,10 @@ class _Study:
     def margin(self) -> Margin:
         sensitivities = tuple(s for q in range(len(self.probes)) for s in self.sensitivities(q))
         worst = tuple(self.worst_case(k) for k in range(len(self.model.criteria)))
-        limits = tuple(tuple(self.limiting_value(k, j) for j in range(len(self.toleranced)))
-                       for k in range(len(self.model.criteria)))
+        limits = tuple(
+            tuple(self.limiting_value(k, j) for j in range(len(self.toleranced)))
+            for k in range(len(self.model.criteria))
+        )
         return Margin(self.toleranced, self.probes, self.nominal[0], sensitivities, worst, limits, self.switched)
 
     # ------------------------------------------------------------------ sensitivities
@@ -316,8 +325,13 @@ class _Study:
         worst = max(range(len(points)), key=lambda i: (scores[i], -i))
         if self._corner_decides(k, corners, scores, badness):
             value = self.quantity(points[worst], k)
-            return self._case(criterion, value, points[worst], CORNERS,
-                              tuple((t.key, MAX if c else MIN) for t, c in zip(self.toleranced, corners[worst])))
+            return self._case(
+                criterion,
+                value,
+                points[worst],
+                CORNERS,
+                tuple((t.key, MAX if c else MIN) for t, c in zip(self.toleranced, corners[worst])),
+            )
         return self._searched(k, criterion, badness, points, SEARCHED)
 
     def _badness(self, criterion: Criterion):
@@ -344,7 +358,7 @@ class _Study:
             signs = set()
             for c in corners:
                 if c[j] == 0:
-                    other = c[:j] + (1,) + c[j + 1:]
+                    other = c[:j] + (1,) + c[j + 1 :]
                     a, b = scores[index[c]], scores[index[other]]
                     if math.isfinite(a) and math.isfinite(b) and a != b:
                         signs.add(b > a)
@@ -371,8 +385,13 @@ class _Study:
             return -score if math.isfinite(score) else (-1e300 if score > 0 else 1e300)
 
         start = [(b - lo) / s for b, lo, s in zip(best, lows, spans)]
-        result = optimize.minimize(objective, start, method="Powell", bounds=[(0.0, 1.0)] * len(spans),
-                                   options={"maxfev": SEARCH_EVALUATIONS, "xtol": 1e-6, "ftol": 1e-12})
+        result = optimize.minimize(
+            objective,
+            start,
+            method="Powell",
+            bounds=[(0.0, 1.0)] * len(spans),
+            options={"maxfev": SEARCH_EVALUATIONS, "xtol": 1e-6, "ftol": 1e-12},
+        )
         found = tuple(lo + min(max(ui, 0.0), 1.0) * s for lo, ui, s in zip(lows, result.x, spans))
         if badness(self.quantity(found, k)) < badness(self.quantity(best, k)):
             found = best
@@ -389,8 +408,9 @@ class _Study:
         margin = None
         if value is not None:
             margin = criterion.limit.si - value if criterion.operator in ("<=", "<") else value - criterion.limit.si
-        return WorstCase(value, passed, margin, corner, method,
-                         tuple((t.key, v) for t, v in zip(self.toleranced, point)))
+        return WorstCase(
+            value, passed, margin, corner, method, tuple((t.key, v) for t, v in zip(self.toleranced, point))
+        )
 
     # ------------------------------------------------------------------ limiting values
     def limiting_value(self, k: int, j: int) -> LimitingValue:
@@ -404,8 +424,12 @@ class _Study:
         """p from y(x_c; p) = limit (a value), y(t_lim; p) = level (a reach time), or tau(p) = limit: sympy's
         solve in symbols within a budget, the root nearest the nominal value taken."""
         d = self.d
-        if self.switched or t.interval or not d.solution.closed_form or criterion.subject not in (
-                "value", "reach", "time_constant"):
+        if (
+            self.switched
+            or t.interval
+            or not d.solution.closed_form
+            or criterion.subject not in ("value", "reach", "time_constant")
+        ):
             return None
         found, done = within(SOLVE_SECONDS, lambda: self._solve_for(criterion, t), None)
         return found if done else None
@@ -443,8 +467,7 @@ class _Study:
         _, value, root = min(candidates, key=lambda c: c[0])
         if not self._holds_at(criterion, t, value):
             return None
-        return LimitingValue(t.key, value, SOLVED, _short(root, limit=80),
-                             "rise" if value > t.nominal else "fall")
+        return LimitingValue(t.key, value, SOLVED, _short(root, limit=80), "rise" if value > t.nominal else "fall")
 
     def _holds_at(self, criterion: Criterion, t: Toleranced, value: float) -> bool:
         """The solved root is where the criterion's quantity meets its limit (a check of sympy's root, and of a
@@ -454,8 +477,9 @@ class _Study:
         point = list(self.nominal_values)
         point[j] = value
         found = self.quantity(point, k)
-        return found is not None and math.isclose(found, criterion.limit.si, rel_tol=1e-6,
-                                                  abs_tol=1e-9 * max(abs(criterion.limit.si), 1e-300))
+        return found is not None and math.isclose(
+            found, criterion.limit.si, rel_tol=1e-6, abs_tol=1e-9 * max(abs(criterion.limit.si), 1e-300)
+        )
 
     def _bracketed(self, k: int, j: int) -> LimitingValue:
         """Step away from the nominal value in doubling steps (the range's width first) until the criterion
@@ -476,7 +500,7 @@ class _Study:
         for direction in (1, -1):
             previous, g_previous = t.nominal, g0
             for n in range(BRACKET_DOUBLINGS):
-                value = t.nominal + direction * width * 2 ** n
+                value = t.nominal + direction * width * 2**n
                 if t.nominal > 0 and value <= 0:
                     value = previous / 2
                 if t.nominal < 0 and value >= 0:
@@ -484,10 +508,18 @@ class _Study:
                 searched = [min(searched[0], value), max(searched[1], value)]
                 g_value = g(value)
                 if (g_previous <= 0) != (g_value <= 0):
-                    root = optimize.brentq(g, min(previous, value), max(previous, value), maxiter=ROOT_ITERATIONS,
-                                           xtol=1e-12 * max(abs(value), abs(previous)), rtol=1e-12, disp=False)
-                    return LimitingValue(t.key, float(root), BRACKETED,
-                                         direction="rise" if root > t.nominal else "fall")
+                    root = optimize.brentq(
+                        g,
+                        min(previous, value),
+                        max(previous, value),
+                        maxiter=ROOT_ITERATIONS,
+                        xtol=1e-12 * max(abs(value), abs(previous)),
+                        rtol=1e-12,
+                        disp=False,
+                    )
+                    return LimitingValue(
+                        t.key, float(root), BRACKETED, direction="rise" if root > t.nominal else "fall"
+                    )
                 previous, g_previous = value, g_value
         code = HOLDS_THROUGHOUT if g0 <= 0 else FAILS_THROUGHOUT
         return LimitingValue(t.key, None, code, searched=(searched[0], searched[1]))
@@ -515,14 +547,17 @@ def _switched_numbers(model: Model, nominal, final_forms):
         if done.end is not None:
             value = y(done.end)
             shown = from_si(value, model.unknown.unit)
-            y_start = Point(f"{shown:.6g} {model.unknown.unit_text}", registry().Quantity(shown, model.unknown.unit),
-                            value)
+            y_start = Point(
+                f"{shown:.6g} {model.unknown.unit_text}", registry().Quantity(shown, model.unknown.unit), value
+            )
     grid, samples = _scan(intervals)
     joined = Joined(intervals)
     last = intervals[-1].derivation.numbers
     search = _extreme_search(model, intervals, joined, grid, last.final_value) if asks_for_extremes(model) else None
-    verdicts = tuple(verdict_for(c, joined, grid, samples, last.time_constant, last.final_value, search=search)
-                     for c in model.criteria)
+    verdicts = tuple(
+        verdict_for(c, joined, grid, samples, last.time_constant, last.final_value, search=search)
+        for c in model.criteria
+    )
     return replace(last, verdicts=verdicts)
 
 
@@ -550,8 +585,9 @@ def final_form(d):
         return found, FINAL_LIMIT_OF_SOLUTION
 
     nominal = at(model)
-    if nominal is None or not math.isclose(nominal[0], d.numbers.final_value, rel_tol=1e-9,
-                                           abs_tol=1e-12 * max(abs(d.numbers.final_value), 1e-300)):
+    if nominal is None or not math.isclose(
+        nominal[0], d.numbers.final_value, rel_tol=1e-9, abs_tol=1e-12 * max(abs(d.numbers.final_value), 1e-300)
+    ):
         return None  # the symbolic limit does not reproduce the derivation's: take each evaluation's own
     return at
 
@@ -608,7 +644,8 @@ def _same_sign(a: float, b: float) -> bool:
 def _same_window(extreme, window, model: Model) -> bool:
     start = window.start.si if window is not None and window.start else model.initial_at.si
     return math.isclose(extreme.start, start, rel_tol=0, abs_tol=1e-12 * max(abs(start), 1.0)) and (
-        window is None or window.end is None or math.isclose(extreme.end, window.end.si, rel_tol=1e-12))
+        window is None or window.end is None or math.isclose(extreme.end, window.end.si, rel_tol=1e-12)
+    )
 
 
 def _side(t: Toleranced, value: float) -> str:
@@ -632,4 +669,3 @@ def _halton(index: int, dimensions: int) -> tuple[float, ...]:
             i //= base
         point.append(r)
     return tuple(point)
-

@@ -38,8 +38,15 @@ class ValueAt:
 
 # Why a level is not reached (Reach.code); the sheet words each one.
 REACHED, MODEL_STOPS, SOLUTION_ENDS, APPROACHES_FINAL, SETTLES_SHORT, MOVES_AWAY, NOT_IN_RANGE, OVERFLOWS = (
-    "reached", "model_stops", "solution_ends", "approaches_final", "settles_short", "starts_on_level", "not_in_range",
-    "overflows")
+    "reached",
+    "model_stops",
+    "solution_ends",
+    "approaches_final",
+    "settles_short",
+    "starts_on_level",
+    "not_in_range",
+    "overflows",
+)
 
 
 @dataclass(frozen=True)
@@ -100,8 +107,13 @@ class Numbers:
         return not self.not_valid and all(v.passed for v in self.verdicts)
 
 
-def compute_numbers(model: Model, cls: Classification, solution: Solution, y: ResponseEvaluator,
-                    final: tuple[float | None, str] | None = None) -> Numbers:
+def compute_numbers(
+    model: Model,
+    cls: Classification,
+    solution: Solution,
+    y: ResponseEvaluator,
+    final: tuple[float | None, str] | None = None,
+) -> Numbers:
     """``final``: the final value and its code when the caller already has them (derive/margin.py evaluates one
     symbolic limit for every set of parameter values)."""
     x = model.variable.symbol
@@ -112,8 +124,11 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     tau, tau_expr, tau_note = _time_constant(cls, p_value, model)
     scale = tau if tau else _natural_scale(p_value, x, x0, model)
     if not (math.isfinite(scale) and scale > 0):  # a time constant beyond the floating-point range
-        raise ModelRefused(f"the natural scale of the response, 1/p = {scale:g} {_si_unit(model)}, is beyond the "
-                           "range this tool computes in; restate the parameters", "parameters")
+        raise ModelRefused(
+            f"the natural scale of the response, 1/p = {scale:g} {_si_unit(model)}, is beyond the "
+            "range this tool computes in; restate the parameters",
+            "parameters",
+        )
     farthest = max([x0] + [pt.si for pt in _abscissae(model)])
     span_end = x0 + max(5 * scale, (farthest - x0) * 1.05)
     grid = np.linspace(x0, x0 + max(SEARCH_SCALES * scale, 1.5 * (farthest - x0)), SEARCH_POINTS)
@@ -127,8 +142,9 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     if limit is not None:  # levels are searched only where the model holds
         grid = grid[grid <= limit[0]]
     samples, domain_end = _sample(y, grid)
-    overflow = domain_end is not None and (singular is None or domain_end < singular) and _overflows(y, samples,
-                                                                                                     domain_end)
+    overflow = (
+        domain_end is not None and (singular is None or domain_end < singular) and _overflows(y, samples, domain_end)
+    )
     if overflow:
         domain_end = _overflow_point(y, float(grid[len(samples) - 1]) if len(samples) else x0, domain_end)
         _refuse_overflow_before(farthest, domain_end, model)
@@ -149,16 +165,33 @@ def compute_numbers(model: Model, cls: Classification, solution: Solution, y: Re
     stop = (OVERFLOWS, domain_end) if overflow else _stop(limit, domain_end, searched_to)
     reaches = tuple(reach_for(level, y, searched, samples, final, stop=stop) for level in model.reach)
     analysed = (x0, float(searched[-1]) if len(searched) else x0 + scale)
-    search = ExtremeSearch([Piece(model, solution, cls, y, x0, None, scale=scale)], y, analysed, final) \
-        if asks_for_extremes(model) else None
+    search = (
+        ExtremeSearch([Piece(model, solution, cls, y, x0, None, scale=scale)], y, analysed, final)
+        if asks_for_extremes(model)
+        else None
+    )
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
-    verdicts = tuple(verdict_for(c, y, searched, samples, tau, final, valid_until=limit, not_valid=not_valid,
-                                 search=search) for c in model.criteria)
-    return Numbers(time_constant=tau, time_constant_expr=tau_expr, time_constant_note=tau_note,
-                   final_value=final, final_value_note=final_note, scale=scale, span=(x0, span_end),
-                   domain_end=domain_end, values=points, reach=reaches, verdicts=verdicts,
-                   sine=_steady_sine(model, tau), valid_until=limit, not_valid=not_valid,
-                   extremes=extremes_shown(asked, verdicts))
+    verdicts = tuple(
+        verdict_for(c, y, searched, samples, tau, final, valid_until=limit, not_valid=not_valid, search=search)
+        for c in model.criteria
+    )
+    return Numbers(
+        time_constant=tau,
+        time_constant_expr=tau_expr,
+        time_constant_note=tau_note,
+        final_value=final,
+        final_value_note=final_note,
+        scale=scale,
+        span=(x0, span_end),
+        domain_end=domain_end,
+        values=points,
+        reach=reaches,
+        verdicts=verdicts,
+        sine=_steady_sine(model, tau),
+        valid_until=limit,
+        not_valid=not_valid,
+        extremes=extremes_shown(asked, verdicts),
+    )
 
 
 def asks_for_extremes(model: Model) -> bool:
@@ -204,16 +237,20 @@ def _refuse_overflow_before(farthest: float, at: float, model: Model) -> None:
     if farthest < at:
         return
     x = model.variable
-    raise ModelRefused(f"the response grows without bound and passes the floating-point range (about 1e308) near "
-                       f"{x.name} = {x.text_of(at)}, before {x.name} = {x.text_of(farthest)}, the farthest point asked "
-                       "about; check the signs of the parameters (a negative loss coefficient makes the response "
-                       "grow) or ask about earlier points", "evaluate")
+    raise ModelRefused(
+        f"the response grows without bound and passes the floating-point range (about 1e308) near "
+        f"{x.name} = {x.text_of(at)}, before {x.name} = {x.text_of(farthest)}, the farthest point asked "
+        "about; check the signs of the parameters (a negative loss coefficient makes the response "
+        "grow) or ask about earlier points",
+        "evaluate",
+    )
 
 
 def _stop(limit, domain_end, searched_to: float) -> tuple[str, float] | None:
     """Where the level search ended early, and why: the model stops holding, or the solution ends."""
-    ends = ([(limit[0], MODEL_STOPS)] if limit is not None else []) + \
-        ([(domain_end, SOLUTION_ENDS)] if domain_end is not None else [])
+    ends = ([(limit[0], MODEL_STOPS)] if limit is not None else []) + (
+        [(domain_end, SOLUTION_ENDS)] if domain_end is not None else []
+    )
     ends = [(at, code) for at, code in ends if at <= searched_to]
     if not ends:
         return None
@@ -234,8 +271,9 @@ def _steady_sine(model: Model, tau: float | None) -> SteadySine | None:
         return None
     frequency = next(p.si for p in model.parameters if p.name == name)
     omega = 2 * math.pi * frequency
-    return SteadySine(omega, 1 / math.sqrt(1 + (omega * tau) ** 2), math.degrees(math.atan(omega * tau)),
-                      tau * math.log(100))
+    return SteadySine(
+        omega, 1 / math.sqrt(1 + (omega * tau) ** 2), math.degrees(math.atan(omega * tau)), tau * math.log(100)
+    )
 
 
 def _as_solved(cls: Classification, solution: Solution, model: Model) -> Classification:
@@ -309,8 +347,9 @@ def _singular_point(cls: Classification, values, x: sp.Symbol, grid: np.ndarray)
         if current == 0:
             return float(b)
         if math.isfinite(current) and math.isfinite(previous) and current * previous < 0:
-            return float(optimize.brentq(f, float(a), float(b), xtol=1e-12 * float(b - a),
-                                         maxiter=ROOT_ITERATIONS, disp=False))
+            return float(
+                optimize.brentq(f, float(a), float(b), xtol=1e-12 * float(b - a), maxiter=ROOT_ITERATIONS, disp=False)
+            )
         if math.isfinite(current):
             previous = current
     return None
@@ -318,12 +357,14 @@ def _singular_point(cls: Classification, values, x: sp.Symbol, grid: np.ndarray)
 
 def safe_function(f):
     """f(x) as a float, NaN where it cannot be evaluated (a log of a negative number, an overflow)."""
+
     def call(value: float) -> float:
         try:
             result = complex(f(value))
         except (ArithmeticError, ValueError, TypeError):
             return math.nan
         return result.real if result.imag == 0 else math.nan
+
     return call
 
 
@@ -367,6 +408,7 @@ def _steps_settled(expr: sp.Expr, x: sp.Symbol) -> sp.Expr:
 
     sympy's limit is slow on step functions; their arguments here are linear in x.
     """
+
     def settle(argument):
         slope = sp.diff(argument, x)
         if slope.is_number and not slope.has(x) and slope != 0:
@@ -430,15 +472,24 @@ def _root(g, a: float, b: float, ga_scan: float, gb_scan: float) -> float:
     """
     ga, gb = g(a), g(b)
     if math.isfinite(ga) and math.isfinite(gb) and ga * gb < 0:
-        root, info = optimize.brentq(g, a, b, xtol=1e-13 * max(b - a, 1e-300), rtol=1e-14,
-                                     maxiter=ROOT_ITERATIONS, full_output=True, disp=False)
+        root, info = optimize.brentq(
+            g, a, b, xtol=1e-13 * max(b - a, 1e-300), rtol=1e-14, maxiter=ROOT_ITERATIONS, full_output=True, disp=False
+        )
         return float(root)
     return a + (b - a) * ga_scan / (ga_scan - gb_scan)
 
 
-def verdict_for(criterion: Criterion, y, grid, samples, tau, final,
-                valid_until: tuple[float, str] | None = None, not_valid: tuple[str, ...] = (),
-                search: ExtremeSearch | None = None) -> Verdict:
+def verdict_for(
+    criterion: Criterion,
+    y,
+    grid,
+    samples,
+    tau,
+    final,
+    valid_until: tuple[float, str] | None = None,
+    not_valid: tuple[str, ...] = (),
+    search: ExtremeSearch | None = None,
+) -> Verdict:
     """PASS or FAIL, or not assessed: when the model is not valid for the case, or the criterion needs
     the response past the kind's validity limit (a tank that has overflowed)."""
     verdict = _verdict(criterion, Response(y, grid, samples, tau, final, search))
@@ -483,8 +534,9 @@ def _verdict(criterion: Criterion, response: Response) -> Verdict:
     if actual is None and not subject.absent_is_never:  # the quantity does not exist for this response
         return Verdict(criterion, None, False, extreme=extreme)
     compared = math.inf if actual is None else actual  # a level never reached is reached at infinity
-    return Verdict(criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)),
-                   extreme=extreme)
+    return Verdict(
+        criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)), extreme=extreme
+    )
 
 
 def _needs_past(criterion: Criterion, verdict: Verdict, limit: float) -> bool:

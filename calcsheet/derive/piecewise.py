@@ -14,8 +14,15 @@ import numpy as np
 
 from calcsheet.derive.derivation import Derivation, derive
 from calcsheet.derive.extremes import ExtremeSearch, Piece
-from calcsheet.derive.numbers import (SEARCH_SCALES, Numbers, ValueAt, asks_for_extremes, extremes_shown, reach_for,
-                                      verdict_for)
+from calcsheet.derive.numbers import (
+    SEARCH_SCALES,
+    Numbers,
+    ValueAt,
+    asks_for_extremes,
+    extremes_shown,
+    reach_for,
+    verdict_for,
+)
 from calcsheet.derive.switched_checks import SwitchedVerification, verify_switched
 from calcsheet.model import Model, Point
 from calcsheet.source.units import from_si, registry
@@ -53,12 +60,20 @@ def derive_piecewise(model: Model) -> SwitchedDerivation:
     reaches = tuple(reach_for(level, y, grid, samples, last.final_value) for level in model.reach)
     search = _extreme_search(model, intervals, y, grid, last.final_value) if asks_for_extremes(model) else None
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
-    verdicts = tuple(verdict_for(c, y, grid, samples, last.time_constant, last.final_value, search=search)
-                     for c in model.criteria)
+    verdicts = tuple(
+        verdict_for(c, y, grid, samples, last.time_constant, last.final_value, search=search) for c in model.criteria
+    )
     curve = tuple(point for i in intervals for point in i.derivation.curve)
     span = (model.initial_at.si, curve[-1][0])
-    numbers = replace(last, values=values, reach=reaches, verdicts=verdicts, span=span, sine=None,
-                      extremes=extremes_shown(asked, verdicts))
+    numbers = replace(
+        last,
+        values=values,
+        reach=reaches,
+        verdicts=verdicts,
+        span=span,
+        sine=None,
+        extremes=extremes_shown(asked, verdicts),
+    )
     checked = sorted({v.at.si for v in values} | {x for x, _ in curve[:: max(len(curve) // 16, 1)]})
     verification = verify_switched(model, intervals, y, checked)
     return SwitchedDerivation(model, _with_final_quadrature(intervals), numbers, verification, curve)
@@ -90,24 +105,41 @@ def _derive_intervals(model: Model) -> tuple[Interval, ...]:
         if end is not None:
             value = d.response(end)
             shown = from_si(value, unit)
-            y_start = Point(f"{shown:.6g} {model.unknown.unit_text} (end of interval {k + 1})",
-                            registry().Quantity(shown, unit), value)
+            y_start = Point(
+                f"{shown:.6g} {model.unknown.unit_text} (end of interval {k + 1})",
+                registry().Quantity(shown, unit),
+                value,
+            )
     return tuple(intervals)
 
 
 def _extreme_search(model: Model, intervals, y, grid, final) -> ExtremeSearch:
     """Extremes across the switches: each interval searched with its own law, the switch instants compared too."""
-    pieces = [Piece(i.derivation.model, i.derivation.solution, i.derivation.classification, i.derivation.response,
-                    i.start, i.end, scale=i.derivation.numbers.scale) for i in intervals]
-    return ExtremeSearch(pieces, y, (model.initial_at.si, float(grid[-1])), final,
-                         switches=tuple(s.at.si for s in model.switches))
+    pieces = [
+        Piece(
+            i.derivation.model,
+            i.derivation.solution,
+            i.derivation.classification,
+            i.derivation.response,
+            i.start,
+            i.end,
+            scale=i.derivation.numbers.scale,
+        )
+        for i in intervals
+    ]
+    return ExtremeSearch(
+        pieces, y, (model.initial_at.si, float(grid[-1])), final, switches=tuple(s.at.si for s in model.switches)
+    )
 
 
 def _with_final_quadrature(intervals) -> tuple[Interval, ...]:
     """Each interval with its quadrature log as it stands once every evaluation across the switches is done."""
-    return tuple(i if i.derivation.quadrature is None
-                 else replace(i, derivation=replace(i.derivation, quadrature=i.derivation.response.log))
-                 for i in intervals)
+    return tuple(
+        i
+        if i.derivation.quadrature is None
+        else replace(i, derivation=replace(i.derivation, quadrature=i.derivation.response.log))
+        for i in intervals
+    )
 
 
 def _point(si: float, declared) -> Point:

@@ -16,9 +16,23 @@ import mpmath
 import sympy as sp
 
 from calcsheet.derive.safe_numeric import NotFinite, real_float
-from calcsheet.derive.verify import (AGREEMENT, ATOL_SHARE, CONTINUITY, EACH_INTERVAL, ODE, ODE_METHOD, RTOL,
-                                     STIFF_METHOD, STIFF_RATIO, SWITCHED_INTEGRATION, Check, IntegrationFailed,
-                                     difference_measure, integrate_pieces, slope_function)
+from calcsheet.derive.verify import (
+    AGREEMENT,
+    ATOL_SHARE,
+    CONTINUITY,
+    EACH_INTERVAL,
+    ODE,
+    ODE_METHOD,
+    RTOL,
+    STIFF_METHOD,
+    STIFF_RATIO,
+    SWITCHED_INTEGRATION,
+    Check,
+    IntegrationFailed,
+    difference_measure,
+    integrate_pieces,
+    slope_function,
+)
 from calcsheet.model import Model
 
 CONTINUITY_LIMIT = 1e-9  # both sides are the same closed form to about 1e-12 (QUADPACK's rtol for integral terms)
@@ -44,8 +58,9 @@ class SwitchedVerification:
 
 def verify_switched(model: Model, intervals, y, points: list[float]) -> SwitchedVerification:
     integration, compared = check_switched_integration(model, intervals, y, points)
-    return SwitchedVerification(check_each_interval(intervals), check_continuity(model, intervals), integration,
-                                compared)
+    return SwitchedVerification(
+        check_each_interval(intervals), check_continuity(model, intervals), integration, compared
+    )
 
 
 def check_each_interval(intervals) -> Check:
@@ -65,15 +80,24 @@ def check_continuity(model: Model, intervals) -> Check:
         compared.append((before.end, right, left))
         sizes.append(max(size, abs(left) if math.isfinite(left) else 0.0))
     worst = difference_measure(compared, sizes)
-    return Check(CONTINUITY, worst <= CONTINUITY_LIMIT, "closed_form_at_switch", worst, CONTINUITY_LIMIT,
-                 len(compared), (("digits", DIGITS), ("atol_share", ATOL_SHARE)))
+    return Check(
+        CONTINUITY,
+        worst <= CONTINUITY_LIMIT,
+        "closed_form_at_switch",
+        worst,
+        CONTINUITY_LIMIT,
+        len(compared),
+        (("digits", DIGITS), ("atol_share", ATOL_SHARE)),
+    )
 
 
 def particular_at(model: Model, solution, x: float) -> float:
     """y(x) from the Solution's particular form and the Model's own values, by substitution: no code of
     the evaluator that computed the derived values. NaN where it gives no finite real number."""
-    exact = {symbol: sp.Float(value, DIGITS) for symbol, value in
-             {**model.numeric_values(), **solution.initial_values(model)}.items()}
+    exact = {
+        symbol: sp.Float(value, DIGITS)
+        for symbol, value in {**model.numeric_values(), **solution.initial_values(model)}.items()
+    }
     exact[model.variable.symbol] = sp.Float(x, DIGITS)
     expr = solution.particular.subs(exact)
     integrals = expr.atoms(sp.Integral)
@@ -91,7 +115,7 @@ def particular_at(model: Model, solution, x: float) -> float:
 def _integral_value(integral: sp.Integral) -> sp.Expr:
     """A definite integral by tanh-sinh quadrature on QUAD_PIECES pieces of bounded degree (a fixed
     ceiling on the work); NaN when its own error estimate says it did not converge."""
-    (variable, low, high), = integral.limits
+    ((variable, low, high),) = integral.limits
     f = sp.lambdify(variable, integral.function, modules="mpmath")
     with mpmath.workdps(DIGITS):
         a, b = mpmath.mpf(real_float(sp.N(low, DIGITS))), mpmath.mpf(real_float(sp.N(high, DIGITS)))
@@ -128,8 +152,13 @@ def check_switched_integration(model: Model, intervals, y, points: list[float]):
         try:
             found = integrate_pieces(local, slope, interval.start, state, targets, y, method)
         except IntegrationFailed as failure:
-            return Check(SWITCHED_INTEGRATION, False, ODE, limit=AGREEMENT,
-                         facts=_facts(methods) + failure.facts + (("interval", k),)), ()
+            return Check(
+                SWITCHED_INTEGRATION,
+                False,
+                ODE,
+                limit=AGREEMENT,
+                facts=_facts(methods) + failure.facts + (("interval", k),),
+            ), ()
         for x, integrated, reached in found:
             size = max(size, reached)
             if x in inside:
@@ -137,8 +166,9 @@ def check_switched_integration(model: Model, intervals, y, points: list[float]):
                 sizes.append(size)
         state = found[-1][1]
     worst = difference_measure(compared, sizes)
-    return Check(SWITCHED_INTEGRATION, worst <= AGREEMENT, ODE, worst, AGREEMENT, len(compared),
-                 _facts(methods)), tuple(compared)
+    return Check(
+        SWITCHED_INTEGRATION, worst <= AGREEMENT, ODE, worst, AGREEMENT, len(compared), _facts(methods)
+    ), tuple(compared)
 
 
 def _method(slope, targets: list[float], span: float) -> str:

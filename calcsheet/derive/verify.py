@@ -36,11 +36,21 @@ MAX_SLOPE_CALLS = 2_000_000  # the bound on the integrator's work
 SUBSTITUTION, INITIAL_CONDITION, INTEGRATION = "substitution", "initial_condition", "integration"
 EACH_INTERVAL, CONTINUITY, SWITCHED_INTEGRATION = "each_interval", "continuity", "switched_integration"
 SYMBOLIC, NUMERIC_POINTS, SYMBOLIC_AND_NUMERIC, NUMERIC, ODE = (
-    "symbolic", "numeric_points", "symbolic_and_numeric", "numeric", "ode")
+    "symbolic",
+    "numeric_points",
+    "symbolic_and_numeric",
+    "numeric",
+    "ode",
+)
 # Why the independent integration could not be completed (fact "failure").
 NOT_FINITE_START, TOO_MUCH_WORK, SLOPE_NOT_FINITE, SOLVER_STOPPED, VALUES_NOT_FINITE, OVERFLOW = (
-    "initial_value_not_finite", "too_much_work", "slope_not_finite", "solver_stopped", "values_not_finite",
-    "overflow")
+    "initial_value_not_finite",
+    "too_much_work",
+    "slope_not_finite",
+    "solver_stopped",
+    "values_not_finite",
+    "overflow",
+)
 
 
 @dataclass(frozen=True)
@@ -107,8 +117,15 @@ def check_substitution(model: Model, solution: Solution, points: list[float]) ->
             if math.isfinite(relative):
                 break
         worst = max(worst, relative) if math.isfinite(relative) else math.inf
-    return Check(SUBSTITUTION, worst <= RESIDUAL_TOLERANCE, NUMERIC_POINTS, worst, RESIDUAL_TOLERANCE,
-                 len(_sample_points(points)), (("simplify_finished", done),))
+    return Check(
+        SUBSTITUTION,
+        worst <= RESIDUAL_TOLERANCE,
+        NUMERIC_POINTS,
+        worst,
+        RESIDUAL_TOLERANCE,
+        len(_sample_points(points)),
+        (("simplify_finished", done),),
+    )
 
 
 def check_initial_condition(model: Model, solution: Solution, y, points: list[float]) -> Check:
@@ -121,8 +138,15 @@ def check_initial_condition(model: Model, solution: Solution, y, points: list[fl
     size = max([abs(target)] + [abs(v) for v in map(y, _sample_points(points)) if math.isfinite(v)])
     numeric_gap = abs(value - target) / max(size, 1e-300)
     names = (("unknown", model.unknown.name), ("x0", str(solution.x0)), ("y0", str(solution.y0)))
-    return Check(INITIAL_CONDITION, numeric_gap <= RESIDUAL_TOLERANCE, SYMBOLIC_AND_NUMERIC if zero else NUMERIC,
-                 numeric_gap, RESIDUAL_TOLERANCE, 1, names)
+    return Check(
+        INITIAL_CONDITION,
+        numeric_gap <= RESIDUAL_TOLERANCE,
+        SYMBOLIC_AND_NUMERIC if zero else NUMERIC,
+        numeric_gap,
+        RESIDUAL_TOLERANCE,
+        1,
+        names,
+    )
 
 
 def vanishes(expr: sp.Expr) -> tuple[bool, bool]:
@@ -149,17 +173,26 @@ def _integration(model: Model, y, points: list[float]) -> dict:
     slope = slope_function(model, scale=max(span, 1e-300))
     ratio = _stiffness(model, slope, targets, span)
     method = STIFF_METHOD if ratio > STIFF_RATIO else ODE_METHOD
-    facts = (("integrator", method), ("rtol", RTOL), ("atol_share", ATOL_SHARE),
-             ("restarted", bool(_jumps(model, x0, targets[-1]))), ("stiff_ratio", ratio))
+    facts = (
+        ("integrator", method),
+        ("rtol", RTOL),
+        ("atol_share", ATOL_SHARE),
+        ("restarted", bool(_jumps(model, x0, targets[-1]))),
+        ("stiff_ratio", ratio),
+    )
     try:
         integrated = integrate_pieces(model, slope, x0, y0, targets, y, method)
     except IntegrationFailed as failure:
-        return {"integration": Check(INTEGRATION, False, ODE, limit=AGREEMENT,
-                                     facts=facts + failure.facts), "compared": ()}
+        return {
+            "integration": Check(INTEGRATION, False, ODE, limit=AGREEMENT, facts=facts + failure.facts),
+            "compared": (),
+        }
     compared = tuple((xi, y(xi), yi) for xi, yi, _ in integrated)
     worst = difference_measure(compared, [size for _, _, size in integrated])
-    return {"integration": Check(INTEGRATION, worst <= AGREEMENT, ODE, worst, AGREEMENT, len(compared), facts),
-            "compared": compared}
+    return {
+        "integration": Check(INTEGRATION, worst <= AGREEMENT, ODE, worst, AGREEMENT, len(compared), facts),
+        "compared": compared,
+    }
 
 
 def difference_measure(compared, sizes) -> float:
@@ -187,8 +220,9 @@ class IntegrationFailed(Exception):
         self.facts = (("failure", failure),) + tuple(more.items())
 
 
-def integrate_pieces(model: Model, slope, x0: float, y0: float, targets: list[float], size_hint=None,
-                     method: str = ODE_METHOD) -> list[tuple[float, float, float]]:
+def integrate_pieces(
+    model: Model, slope, x0: float, y0: float, targets: list[float], size_hint=None, method: str = ODE_METHOD
+) -> list[tuple[float, float, float]]:
     """(x, y, size) at each target: the equation integrated from the initial point, restarted at every
     jump of the forcing and at every target, the state carried across.
 
@@ -213,8 +247,9 @@ def integrate_pieces(model: Model, slope, x0: float, y0: float, targets: list[fl
         with warnings.catch_warnings(record=True) as caught, np.errstate(all="ignore"):
             warnings.simplefilter("always")
             try:
-                result = solve_ivp(counted, (a, b), [state], method=method, t_eval=[b],
-                                   rtol=RTOL, atol=RTOL * ATOL_SHARE * size)
+                result = solve_ivp(
+                    counted, (a, b), [state], method=method, t_eval=[b], rtol=RTOL, atol=RTOL * ATOL_SHARE * size
+                )
             except _TooMuchWork:
                 raise IntegrationFailed(TOO_MUCH_WORK, calls=MAX_SLOPE_CALLS) from None
             except (ValueError, ArithmeticError):  # an implicit method met a slope that is not finite
@@ -334,7 +369,7 @@ def _integral_value(integral: sp.Integral) -> sp.Expr:
 
     (sympy.N would raise its precision until satisfied, without any bound on the time taken.)
     """
-    (variable, low, high), = integral.limits
+    ((variable, low, high),) = integral.limits
     f = sp.lambdify(variable, integral.function, modules="mpmath")
     with mpmath.workdps(20):
         a, b = mpmath.mpf(real_float(sp.N(low, 20))), mpmath.mpf(real_float(sp.N(high, 20)))

@@ -11,8 +11,17 @@ from importlib import import_module
 
 # One module per kind, named as the kind; the order is the catalogue's order.
 KIND_MODULES = (
-    "series_rc", "series_rc_charge", "series_rl", "lumped_body", "mixing_tank", "mixing_tank_concentration",
-    "linear_reservoir", "first_order_sensor", "rotating_inertia", "mass_with_drag", "pipe_temperature",
+    "series_rc",
+    "series_rc_charge",
+    "series_rl",
+    "lumped_body",
+    "mixing_tank",
+    "mixing_tank_concentration",
+    "linear_reservoir",
+    "first_order_sensor",
+    "rotating_inertia",
+    "mass_with_drag",
+    "pipe_temperature",
 )
 
 

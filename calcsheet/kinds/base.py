@@ -163,4 +163,6 @@ def check_slot_dimension(kind: Kind, slot: Slot, quantity, where: str) -> None:
     if not units.same_dimension(quantity.units, expected):
         raise InputError(
             f"kind {kind.name} expects {slot.name} ({slot.meaning}) with the dimension of {slot.unit} "
-            f"({units.dimension_text(expected)}), got {units.dimension_text(quantity.units)}", where)
+            f"({units.dimension_text(expected)}), got {units.dimension_text(quantity.units)}",
+            where,
+        )

@@ -16,10 +16,17 @@ def catalogue_lines() -> list[str]:
 
 def describe(name: str) -> list[str]:
     kind = kind_named(name, "calcsheet kinds NAME")
-    lines = [f"{kind.title} ({kind.name})", f"  {kind.summary}", "", f"Governing law: {kind.law}",
-             f"Equation: {kind.equation}",
-             f"Unknown: {kind.unknown.name} [{kind.unknown.unit}] - {kind.unknown.meaning}",
-             f"Variable: {kind.variable.name} [{kind.variable.unit}] - {kind.variable.meaning}", "", "Parameters:"]
+    lines = [
+        f"{kind.title} ({kind.name})",
+        f"  {kind.summary}",
+        "",
+        f"Governing law: {kind.law}",
+        f"Equation: {kind.equation}",
+        f"Unknown: {kind.unknown.name} [{kind.unknown.unit}] - {kind.unknown.meaning}",
+        f"Variable: {kind.variable.name} [{kind.variable.unit}] - {kind.variable.meaning}",
+        "",
+        "Parameters:",
+    ]
     for slot in kind.slots:
         unit = slot.unit or "any unit"
         extra = f"; default {slot.default}" if slot.default is not None else ""
@@ -32,19 +39,20 @@ def describe(name: str) -> list[str]:
 def starter_text(name: str) -> str:
     """A commented input for the kind, with example values, that builds as it stands."""
     kind = kind_named(name, "calcsheet new NAME")
-    parameters = "\n".join(f'{slot.name} = {{ value = "{slot.example}", source = "example value: replace" }}'
-                           f"  # {slot.meaning}" for slot in kind.slots)
+    parameters = "\n".join(
+        f'{slot.name} = {{ value = "{slot.example}", source = "example value: replace" }}  # {slot.meaning}'
+        for slot in kind.slots
+    )
     return (
         f"# Starter input for the kind {kind.name}: {kind.title}.\n"
         f"# Governing law: {kind.law}.\n"
         f"# The example values are invented; replace them and the texts with your own.\n\n"
         f"{_sheet_header(kind)}\n\n{kind.starter.requests.strip()}\n\n"
-        f"[model]\nkind = \"{kind.name}\"\n"
-        f"unknown = \"{kind.unknown.name} [{kind.unknown.unit}]\"    # {kind.unknown.meaning}\n"
-        f"variable = \"{kind.variable.name} [{kind.variable.unit}]\"   # {kind.variable.meaning}\n\n"
+        f'[model]\nkind = "{kind.name}"\n'
+        f'unknown = "{kind.unknown.name} [{kind.unknown.unit}]"    # {kind.unknown.meaning}\n'
+        f'variable = "{kind.variable.name} [{kind.variable.unit}]"   # {kind.variable.meaning}\n\n'
         f"[parameters]\n{parameters}\n\n"
-        f"[initial]\nat = \"0 {kind.variable.unit}\"\nvalue = \"{kind.unknown.example}\"\n"
-        + _forcing_hint(kind)
+        f'[initial]\nat = "0 {kind.variable.unit}"\nvalue = "{kind.unknown.example}"\n' + _forcing_hint(kind)
     )
 
 
@@ -63,6 +71,8 @@ def _sheet_header(kind: Kind) -> str:
 def _forcing_hint(kind: Kind) -> str:
     if not kind.source:
         return ""
-    return (f"\n# To make {kind.source} vary, remove it from [parameters] and add, for example:\n"
-            f"# [forcing]\n# form = \"step\"          # constant, step, ramp, sine, exponential, pulse, expression\n"
-            f"# after = \"{kind.slot(kind.source).example}\"\n# at = \"1 {kind.variable.unit}\"\n")
+    return (
+        f"\n# To make {kind.source} vary, remove it from [parameters] and add, for example:\n"
+        f'# [forcing]\n# form = "step"          # constant, step, ramp, sine, exponential, pulse, expression\n'
+        f'# after = "{kind.slot(kind.source).example}"\n# at = "1 {kind.variable.unit}"\n'
+    )

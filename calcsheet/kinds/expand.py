@@ -28,8 +28,9 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table, start=None, 
         raise InputError("must be the name of a kind in quotes (see `calcsheet kinds`)", "model.kind")
     kind = kind_named(name.strip())
     if "equation" in model_table:
-        raise InputError(f"give either kind or equation, not both (kind {kind.name} writes its own equation)",
-                         "model.equation")
+        raise InputError(
+            f"give either kind or equation, not both (kind {kind.name} writes its own equation)", "model.equation"
+        )
     unknown = _declared(model_table, "unknown", kind.unknown, kind)
     variable = _declared(model_table, "variable", kind.variable, kind)
     params = dict(parameters)
@@ -39,19 +40,25 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table, start=None, 
         if not kind.source:
             raise InputError(f"kind {kind.name} has no source to drive", "forcing")
         if kind.source in params:
-            raise InputError(f"{kind.source} is given by [forcing]; remove it from [parameters]",
-                             f"parameters.{kind.source}")
+            raise InputError(
+                f"{kind.source} is given by [forcing]; remove it from [parameters]", f"parameters.{kind.source}"
+            )
         source_unit = kind.slot(kind.source).unit
-        forcing = forcing_from_table(forcing_table, kind.source, source_unit, kind.variable.name,
-                                     _unit_of(variable) or kind.variable.unit)
+        forcing = forcing_from_table(
+            forcing_table, kind.source, source_unit, kind.variable.name, _unit_of(variable) or kind.variable.unit
+        )
         for generated in sorted(set(forcing.parameters) & set(params)):
-            raise InputError(f"{generated} is given by [forcing] (the {forcing.form}); remove it from [parameters]",
-                             f"parameters.{generated}")
-        params.update({name: {"value": raw, "source": f"[forcing] {forcing.form}"}
-                       for name, raw in forcing.parameters.items()})
+            raise InputError(
+                f"{generated} is given by [forcing] (the {forcing.form}); remove it from [parameters]",
+                f"parameters.{generated}",
+            )
+        params.update(
+            {name: {"value": raw, "source": f"[forcing] {forcing.form}"} for name, raw in forcing.parameters.items()}
+        )
         # the expression goes in through a function: user text is never read as a replacement template
-        equation = re.sub(rf"(?<![A-Za-z0-9_]){re.escape(kind.source)}(?![A-Za-z0-9_])",
-                          lambda _: forcing.expression, equation)
+        equation = re.sub(
+            rf"(?<![A-Za-z0-9_]){re.escape(kind.source)}(?![A-Za-z0-9_])", lambda _: forcing.expression, equation
+        )
         words, frequency = forcing.words, forcing.frequency
         generated_names = frozenset(forcing.parameters)
     else:
@@ -60,9 +67,17 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table, start=None, 
     if shifted:
         params[START_SLOT] = {"value": start, "source": start_source or "start of the interval"}
     table = {"equation": equation, "unknown": unknown, "variable": variable}
-    use = KindUse(kind.name, kind.title, kind.law, kind.shifted_law_steps if shifted else kind.law_steps,
-                  kind.assumptions, findings=tuple(kind.findings.items()), forcing=words,
-                  frequency=frequency, slot_names=tuple(s.name for s in kind.slots))
+    use = KindUse(
+        kind.name,
+        kind.title,
+        kind.law,
+        kind.shifted_law_steps if shifted else kind.law_steps,
+        kind.assumptions,
+        findings=tuple(kind.findings.items()),
+        forcing=words,
+        frequency=frequency,
+        slot_names=tuple(s.name for s in kind.slots),
+    )
     return Expanded(table, params, use)
 
 
@@ -75,9 +90,11 @@ def kind_checks(use: KindUse, parameters) -> KindUse:
     except (ArithmeticError, ValueError):  # a check dividing by a parameter of zero, say
         zeros = [s.name for s in kind.slots if values.get(s.name) == 0]
         named = f": {', '.join(zeros)} = 0" if zeros else ""
-        raise InputError(f"kind {kind.name}'s checks cannot be worked out with the stated values{named}; "
-                         "give each a value that describes a real case",
-                         f"parameters.{zeros[0]}" if zeros else "parameters") from None
+        raise InputError(
+            f"kind {kind.name}'s checks cannot be worked out with the stated values{named}; "
+            "give each a value that describes a real case",
+            f"parameters.{zeros[0]}" if zeros else "parameters",
+        ) from None
 
 
 def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:
@@ -86,8 +103,11 @@ def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:
         return f"{slot.name} [{slot.unit}]"
     name, unit_text = declared_parts(text, f"model.{key}")
     if name != slot.name:
-        raise InputError(f"kind {kind.name} calls its {key} '{slot.name}' ({slot.meaning}); write "
-                         f"\"{slot.name} [{unit_text or slot.unit}]\"", f"model.{key}")
+        raise InputError(
+            f"kind {kind.name} calls its {key} '{slot.name}' ({slot.meaning}); write "
+            f'"{slot.name} [{unit_text or slot.unit}]"',
+            f"model.{key}",
+        )
     try:
         unit = units.parse_unit(unit_text)
     except InputError as error:
@@ -95,13 +115,17 @@ def _declared(model_table: dict, key: str, slot, kind: Kind) -> str:
     if not slot.unit:  # a quantity of any dimension: the reading of a sensor, say
         return text
     if units.is_angular(units.parse_unit(slot.unit)) != units.is_angular(unit):
-        raise InputError(f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}; '{unit_text}' "
-                         f"{'is not' if units.is_angular(units.parse_unit(slot.unit)) else 'is'} an angular unit, "
-                         "and rad/s and Hz "
-                         "differ by 2 pi although they share a dimension", f"model.{key}")
+        raise InputError(
+            f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}; '{unit_text}' "
+            f"{'is not' if units.is_angular(units.parse_unit(slot.unit)) else 'is'} an angular unit, "
+            "and rad/s and Hz "
+            "differ by 2 pi although they share a dimension",
+            f"model.{key}",
+        )
     if not units.same_dimension(unit, units.parse_unit(slot.unit)):
-        raise InputError(f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}, got '{unit_text}'",
-                         f"model.{key}")
+        raise InputError(
+            f"kind {kind.name} needs {slot.name} in a unit like {slot.unit}, got '{unit_text}'", f"model.{key}"
+        )
     return text
 
 
@@ -119,10 +143,16 @@ def _check_parameters(kind: Kind, params: dict, forcing_table, generated_names: 
             if slot.name == kind.source and forcing_table is not None:
                 continue
             if slot.default is None:
-                alternative = (f", or a [forcing] table that gives {slot.name} as a function of {kind.variable.name}"
-                               if slot.name == kind.source else "")
-                raise InputError(f"kind {kind.name} needs {slot.name} ({slot.meaning}), e.g. "
-                                 f"{slot.name} = \"{slot.example}\" in [parameters]{alternative}", where)
+                alternative = (
+                    f", or a [forcing] table that gives {slot.name} as a function of {kind.variable.name}"
+                    if slot.name == kind.source
+                    else ""
+                )
+                raise InputError(
+                    f"kind {kind.name} needs {slot.name} ({slot.meaning}), e.g. "
+                    f'{slot.name} = "{slot.example}" in [parameters]{alternative}',
+                    where,
+                )
             params[slot.name] = {"value": slot.default, "source": f"default of kind {kind.name}"}
         raw = params[slot.name]
         value = raw.get("value") if isinstance(raw, dict) else raw
@@ -135,11 +165,16 @@ def _check_parameters(kind: Kind, params: dict, forcing_table, generated_names: 
     expression_forcing = isinstance(forcing_table, dict) and forcing_table.get("form") == "expression"
     for name in sorted(others):
         if not expression_forcing:
-            through_forcing = (f"; the values of a [forcing] form are written in [forcing], not as {kind.source}_..."
-                               if kind.source and name.startswith(f"{kind.source}_") else "")
-            raise InputError(f"'{name}' is not a parameter of kind {kind.name} (its parameters: "
-                             f"{', '.join(s.name for s in kind.slots)}){through_forcing}",
-                             f"parameters.{key_part(name)}")
+            through_forcing = (
+                f"; the values of a [forcing] form are written in [forcing], not as {kind.source}_..."
+                if kind.source and name.startswith(f"{kind.source}_")
+                else ""
+            )
+            raise InputError(
+                f"'{name}' is not a parameter of kind {kind.name} (its parameters: "
+                f"{', '.join(s.name for s in kind.slots)}){through_forcing}",
+                f"parameters.{key_part(name)}",
+            )
 
 
 def _nonzero(raw) -> bool:

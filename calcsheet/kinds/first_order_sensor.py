@@ -33,8 +33,13 @@ KIND = Kind(
     variable=Slot("t", "s", "time", "1 s"),
     slots=(
         Slot("tau", "s", "time constant of the probe in the medium; it depends on the flow around the probe", "5 s"),
-        Slot("K", "1", "static gain, reading per input; 1 for a probe that reads the medium temperature", "1.0",
-             default="1.0"),
+        Slot(
+            "K",
+            "1",
+            "static gain, reading per input; 1 for a probe that reads the medium temperature",
+            "1.0",
+            default="1.0",
+        ),
         Slot("T_m", "K", "temperature of the medium the probe measures", "80 degC"),
     ),
     equation="tau*dT/dt + T = K*T_m",
@@ -53,23 +58,24 @@ KIND = Kind(
     checks=_checks,
     findings={
         "first_order_sensor.tau_not_positive": "the time constant tau must be positive; with tau <= 0 the equation "
-                                               "does not describe a sensor that settles.",
+        "does not describe a sensor that settles.",
         "first_order_sensor.response_times": "Step response times: t50 = ln 2 * tau = {t50} s, "
-                                             "t90 = ln 10 * tau = {t90} s.",
+        "t90 = ln 10 * tau = {t90} s.",
         "first_order_sensor.gain_not_one": "K = {K} multiplies the absolute temperature in kelvin; a probe that "
-                                           "reads the medium's temperature has K = 1, and a calibration error is "
-                                           "better stated as an offset.",
+        "reads the medium's temperature has K = 1, and a calibration error is "
+        "better stated as an offset.",
     },
     starter=Starter(
         title="Probe plunged into a hot rinse bath (example, edit)",
         number="IN-101",
         purpose="Time for a probe at 20 degC, plunged into a bath at 80 degC, to read within 1 K of the bath.",
-        requests='''[evaluate]
+        requests="""[evaluate]
 at = ["5 s", "10 s", "30 s"]
 reach = ["79 degC"]
 
 [[criteria]]
 text = "Reading within 1 K of the bath within 30 s"
 check = "reach(79 degC) <= 30 s"
-'''),
+""",
+    ),
 )

@@ -30,27 +30,60 @@ class Form:
     template: str  # expression with {<suffix>} for parameter names and {x} for the variable
 
 
-FORMS = {form.name: form for form in (
-    Form("constant", "a constant", (Role("value", "val", "source"),), "{val}"),
-    Form("step", "a step", (Role("before", "before", "source", "0"), Role("after", "after", "source"),
-                            Role("at", "at", "variable")),
-         "{before} + ({after} - {before})*step({x} - {at})"),
-    Form("ramp", "a ramp", (Role("start", "start", "source", "0"), Role("rate", "rate", "rate"),
-                            Role("from", "from", "variable", "0")),
-         "{start} + {rate}*({x} - {from})*step({x} - {from})"),
-    Form("sine", "a sinusoid", (Role("amplitude", "amp", "source", difference=True),
-                                Role("frequency", "freq", "frequency"),
-                                Role("phase", "phase", "angle", "0"), Role("offset", "offset", "source", "0")),
-         "{offset} + {amp}*sin(2*pi*{freq}*{x} + {phase})"),
-    Form("exponential", "a decaying exponential",
-         (Role("initial", "initial", "source"), Role("final", "final", "source", "0"),
-          Role("time_constant", "tau", "variable")),
-         "{final} + ({initial} - {final})*exp(-({x})/{tau})"),
-    Form("pulse", "a rectangular pulse", (Role("base", "base", "source", "0"),
-                                          Role("height", "height", "source", difference=True),
-                                          Role("start", "start", "variable"), Role("width", "width", "variable")),
-         "{base} + {height}*(step({x} - {start}) - step({x} - {start} - {width}))"),
-)}
+FORMS = {
+    form.name: form
+    for form in (
+        Form("constant", "a constant", (Role("value", "val", "source"),), "{val}"),
+        Form(
+            "step",
+            "a step",
+            (Role("before", "before", "source", "0"), Role("after", "after", "source"), Role("at", "at", "variable")),
+            "{before} + ({after} - {before})*step({x} - {at})",
+        ),
+        Form(
+            "ramp",
+            "a ramp",
+            (
+                Role("start", "start", "source", "0"),
+                Role("rate", "rate", "rate"),
+                Role("from", "from", "variable", "0"),
+            ),
+            "{start} + {rate}*({x} - {from})*step({x} - {from})",
+        ),
+        Form(
+            "sine",
+            "a sinusoid",
+            (
+                Role("amplitude", "amp", "source", difference=True),
+                Role("frequency", "freq", "frequency"),
+                Role("phase", "phase", "angle", "0"),
+                Role("offset", "offset", "source", "0"),
+            ),
+            "{offset} + {amp}*sin(2*pi*{freq}*{x} + {phase})",
+        ),
+        Form(
+            "exponential",
+            "a decaying exponential",
+            (
+                Role("initial", "initial", "source"),
+                Role("final", "final", "source", "0"),
+                Role("time_constant", "tau", "variable"),
+            ),
+            "{final} + ({initial} - {final})*exp(-({x})/{tau})",
+        ),
+        Form(
+            "pulse",
+            "a rectangular pulse",
+            (
+                Role("base", "base", "source", "0"),
+                Role("height", "height", "source", difference=True),
+                Role("start", "start", "variable"),
+                Role("width", "width", "variable"),
+            ),
+            "{base} + {height}*(step({x} - {start}) - step({x} - {start} - {width}))",
+        ),
+    )
+}
 
 
 @dataclass(frozen=True)
@@ -76,16 +109,28 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
         if key not in allowed:
             raise InputError(f"unknown key for a {name} (expected: {', '.join(sorted(allowed))})", f"forcing.{key}")
     if not source_unit:  # a source of any dimension takes the unit of the first value given for it
-        source_unit = next((_unit_text(table[r.key], f"forcing.{r.key}") for r in form.roles
-                            if r.dimension == "source" and r.key in table), "")
-    expected = {"source": source_unit, "variable": variable_unit, "rate": f"({source_unit})/({variable_unit})",
-                "frequency": f"1/({variable_unit})", "angle": "rad"}
+        source_unit = next(
+            (
+                _unit_text(table[r.key], f"forcing.{r.key}")
+                for r in form.roles
+                if r.dimension == "source" and r.key in table
+            ),
+            "",
+        )
+    expected = {
+        "source": source_unit,
+        "variable": variable_unit,
+        "rate": f"({source_unit})/({variable_unit})",
+        "frequency": f"1/({variable_unit})",
+        "angle": "rad",
+    }
     parameters, names = {}, {"x": variable}
     for role in form.roles:
         raw = table.get(role.key, None)
         if raw is None:
-            if role.default is None or (role.dimension == "source" and not role.difference
-                                        and _is_temperature(expected["source"])):
+            if role.default is None or (
+                role.dimension == "source" and not role.difference and _is_temperature(expected["source"])
+            ):
                 # a level of an absolute temperature has no sensible default (0 K is absolute zero)
                 raise InputError(f"a {name} needs '{role.key}'", f"forcing.{role.key}")
             unit = "" if role.dimension == "angle" or "()" in expected[role.dimension] else expected[role.dimension]
@@ -96,10 +141,16 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
         parameter = f"{source}_{role.suffix}"
         parameters[parameter] = raw
         names[role.suffix] = parameter
-    words = f"{source} is {form.words}: " + ", ".join(f"{r.key} {parameters[f'{source}_{r.suffix}']}"
-                                                      for r in form.roles)
-    return Forcing(f"({form.template.format(**names)})", parameters, words, name,
-                   frequency=f"{source}_freq" if name == "sine" else "")
+    words = f"{source} is {form.words}: " + ", ".join(
+        f"{r.key} {parameters[f'{source}_{r.suffix}']}" for r in form.roles
+    )
+    return Forcing(
+        f"({form.template.format(**names)})",
+        parameters,
+        words,
+        name,
+        frequency=f"{source}_freq" if name == "sine" else "",
+    )
 
 
 def role_keys(table, source: str) -> dict[str, str]:
@@ -115,7 +166,7 @@ def _expression(table: dict, source: str) -> Forcing:
             raise InputError("unknown key for an expression (expected: expression)", f"forcing.{key}")
     text = table.get("expression")
     if not isinstance(text, str) or not text.strip():
-        raise InputError("give the forcing as text in quotes, e.g. \"V_0*(1 - exp(-t/T_r))\"", "forcing.expression")
+        raise InputError('give the forcing as text in quotes, e.g. "V_0*(1 - exp(-t/T_r))"', "forcing.expression")
     _check_expression(text)
     return Forcing(f"({text.strip()})", {}, f"{source} is given by the expression {text.strip()}", "expression")
 
@@ -131,8 +182,9 @@ def _check_expression(text: str) -> None:
         raise error.located(key="forcing.expression")
     found = ex.derivatives_in(node)
     if found:
-        raise InputError(f"'{found[0].text}' is a derivative; a forcing is a function of the variable only",
-                         "forcing.expression")
+        raise InputError(
+            f"'{found[0].text}' is a derivative; a forcing is a function of the variable only", "forcing.expression"
+        )
 
 
 def _is_temperature(unit_text: str) -> bool:
@@ -160,13 +212,22 @@ def _check(raw, expected_unit: str, role: Role, form: str) -> None:
     except InputError as error:
         raise error.located(key=where)
     if role.dimension == "angle" and quantity.magnitude != 0 and not units.is_angular(quantity.units):
-        raise InputError(f"'{raw}' needs an angle unit: a bare number would be read as radians, so write "
-                         f"\"{raw} deg\" or \"{raw} rad\"", where)
+        raise InputError(
+            f"'{raw}' needs an angle unit: a bare number would be read as radians, so write "
+            f'"{raw} deg" or "{raw} rad"',
+            where,
+        )
     if "()" in expected_unit or not expected_unit:
         return  # a source of any dimension: the equation's unit check decides
     if not units.same_dimension(quantity.units, units.parse_unit(expected_unit)):
-        raise InputError(f"the {role.key} of a {form} needs the dimension of {expected_unit}, got "
-                         f"{units.dimension_text(quantity.units)}", where)
+        raise InputError(
+            f"the {role.key} of a {form} needs the dimension of {expected_unit}, got "
+            f"{units.dimension_text(quantity.units)}",
+            where,
+        )
     if role.dimension == "frequency" and isinstance(raw, str) and ("rad" in raw or "rpm" in raw):
-        raise InputError("give the frequency in cycles (Hz, 1/s, 1/min); an angular speed in rad/s "
-                         "would be taken as cycles per second", where)
+        raise InputError(
+            "give the frequency in cycles (Hz, 1/s, 1/min); an angular speed in rad/s "
+            "would be taken as cycles per second",
+            where,
+        )

@@ -28,7 +28,7 @@ KIND = Kind(
     title="Lumped body heated or cooled by convection",
     summary="temperature T of a body of uniform temperature exchanging heat by convection with an ambient T_inf",
     law="energy balance on the body: rate of change of stored heat = heat input - convective loss, "
-        "with Newton's law of cooling for the loss",
+    "with Newton's law of cooling for the loss",
     unknown=Slot("T", "degC", "body temperature", "20 degC"),
     variable=Slot("t", "s", "time", "1 s"),
     slots=(
@@ -43,12 +43,15 @@ KIND = Kind(
     ),
     equation="rho*c_p*V*dT/dt = Q - h*A*(T - T_inf)",
     law_steps=(
-        (r"\frac{dE}{dt} = \dot{Q}_{in} - \dot{Q}_{conv}",
-         "dE/dt = Q_in - Q_conv   (energy balance on the body)"),
-        (r"E = \rho\, c_{p} V\, T, \quad \dot{Q}_{in} = Q, \quad \dot{Q}_{conv} = h A \left(T - T_{\infty}\right)",
-         "E = rho*c_p*V*T, Q_in = Q, Q_conv = h*A*(T - T_inf)   (stored heat; Newton's law of cooling)"),
-        (r"\rho\, c_{p} V \frac{dT}{dt} = Q - h A \left(T - T_{\infty}\right)",
-         "rho*c_p*V*dT/dt = Q - h*A*(T - T_inf)"),
+        (r"\frac{dE}{dt} = \dot{Q}_{in} - \dot{Q}_{conv}", "dE/dt = Q_in - Q_conv   (energy balance on the body)"),
+        (
+            r"E = \rho\, c_{p} V\, T, \quad \dot{Q}_{in} = Q, \quad \dot{Q}_{conv} = h A \left(T - T_{\infty}\right)",
+            "E = rho*c_p*V*T, Q_in = Q, Q_conv = h*A*(T - T_inf)   (stored heat; Newton's law of cooling)",
+        ),
+        (
+            r"\rho\, c_{p} V \frac{dT}{dt} = Q - h A \left(T - T_{\infty}\right)",
+            "rho*c_p*V*dT/dt = Q - h*A*(T - T_inf)",
+        ),
     ),
     assumptions=(
         "The body's temperature is uniform at every instant (lumped capacitance; see the Biot check).",
@@ -59,20 +62,20 @@ KIND = Kind(
     source="T_inf",
     checks=_checks,
     findings={
-        "lumped_body.properties_not_positive":
-            "V, A and k must be positive for the Biot number Bi = h*Lc/k, Lc = V/A; a body with them zero or "
-            "negative is not a physical body, and the validity of the lumped model cannot be checked.",
+        "lumped_body.properties_not_positive": "V, A and k must be positive for the Biot number Bi = h*Lc/k, "
+        "Lc = V/A; a body with them zero or negative is not a physical body, and the validity of the lumped model "
+        "cannot be checked.",
         "lumped_body.biot": "Biot number Bi = h*Lc/k = {biot} with characteristic length Lc = V/A = {length} m; "
-                            "the lumped model holds for Bi <= {limit:1} (common practice in heat transfer).",
+        "the lumped model holds for Bi <= {limit:1} (common practice in heat transfer).",
         "lumped_body.biot_exceeded": "Bi = {biot} exceeds {limit:1}: the temperature inside the body is not "
-                                     "uniform, so the lumped model is not valid; a transient conduction analysis "
-                                     "is needed.",
+        "uniform, so the lumped model is not valid; a transient conduction analysis "
+        "is needed.",
     },
     starter=Starter(
         title="Warm-up of a steel mounting block carrying a 10 W heater (example, edit)",
         number="TH-101",
         purpose="Temperature of a 100 x 50 x 20 mm steel block with a 10 W heater pad, in still air at 20 degC.",
-        requests='''[evaluate]
+        requests="""[evaluate]
 at = ["10 min", "30 min", "2 h"]
 reach = ["40 degC"]
 
@@ -83,5 +86,6 @@ check = "final_value <= 60 degC"
 [[criteria]]
 text = "Block below 40 degC for the first 15 min"
 check = "reach(40 degC) >= 15 min"
-'''),
+""",
+    ),
 )

@@ -18,8 +18,13 @@ KIND = Kind(
     slots=(
         Slot("m", "kg", "moving mass", "40 kg"),
         Slot("c", "N*s/m", "linear drag coefficient (drag or damper force per unit speed)", "200 N*s/m"),
-        Slot("F", "N", "driving force along the line of motion, net of any constant resisting force "
-                       "(0 N for coasting)", "100 N", default="0 N"),
+        Slot(
+            "F",
+            "N",
+            "driving force along the line of motion, net of any constant resisting force (0 N for coasting)",
+            "100 N",
+            default="0 N",
+        ),
     ),
     equation="m*du/dt + c*u = F",
     law_steps=(
@@ -38,16 +43,16 @@ KIND = Kind(
     checks=_checks,
     findings={
         "mass_with_drag.c_zero": "c = 0: without drag the body has no terminal speed and keeps accelerating "
-                                 "under a steady force.",
+        "under a steady force.",
         "mass_with_drag.c_negative": "c is negative; drag opposes the motion, so c is positive (with c < 0 the "
-                                     "speed grows instead of settling).",
+        "speed grows instead of settling).",
         "mass_with_drag.m_negative": "m is negative; a mass is positive, so check the sign.",
     },
     starter=Starter(
         title="Test-rig carriage pushed against an oil damper",
         number="ME-401",
         purpose="Speed of the carriage under the actuator's steady push, and the time to reach 90 % of it.",
-        requests='''[evaluate]
+        requests="""[evaluate]
 at = ["0.1 s", "0.2 s", "0.5 s", "1 s"]
 reach = ["0.45 m/s"]
 
@@ -58,5 +63,6 @@ check = "reach(0.45 m/s) <= 1 s"
 [[criteria]]
 text = "Steady speed within the 0.6 m/s rating of the damper"
 check = "final_value <= 0.6 m/s"
-'''),
+""",
+    ),
 )

@@ -11,11 +11,16 @@ def _equation(clock: Clock) -> str:
 
 def _law_steps(clock: Clock) -> tuple[tuple[str, str], ...]:
     return (
-        (r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",
-         "dm/dt = q_in*c_in - q_out*c   (mass balance: accumulation = in - out)"),
+        (
+            r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - q_{\mathrm{out}}\,c",
+            "dm/dt = q_in*c_in - q_out*c   (mass balance: accumulation = in - out)",
+        ),
         tank.volume_balance_step(clock, r"c = \frac{m}{V}, \quad ", "c = m/V (well mixed); "),
-        (r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - "
-         r"\frac{q_{\mathrm{out}}\,m}{" + tank.volume_tex(clock) + "}", _equation(clock)),
+        (
+            r"\frac{dm}{dt} = q_{\mathrm{in}}\,c_{\mathrm{in}} - "
+            r"\frac{q_{\mathrm{out}}\,m}{" + tank.volume_tex(clock) + "}",
+            _equation(clock),
+        ),
     )
 
 
@@ -23,9 +28,9 @@ KIND = Kind(
     name="mixing_tank",
     title="Well-mixed tank (solute mass)",
     summary="mass m of a dissolved substance in a well-mixed tank with inflow q_in at concentration c_in "
-            "and outflow q_out",
+    "and outflow q_out",
     law="the mass balance of the dissolved substance (accumulation = mass in - mass out), with the "
-        "volume balance of the liquid and the outflow at the tank's own concentration",
+    "volume balance of the liquid and the outflow at the tank's own concentration",
     unknown=Slot("m", "kg", "mass of the dissolved substance in the tank", "0 kg"),
     variable=Slot("t", "s", "time", "1 min"),
     slots=tank.tank_slots("0.9 m^3/min", "0.6 m^3/min", "0.5 kg/m^3", "12 m^3", "30 m^3"),
@@ -43,7 +48,7 @@ KIND = Kind(
         title="Salt mass in the brine make-up tank during topping up",
         number="PR-214",
         purpose="Salt held in the make-up tank while it is topped up, and the time to reach the dosing level.",
-        requests='''[evaluate]
+        requests="""[evaluate]
 at = ["10 min", "30 min", "60 min"]
 reach = ["5 kg"]
 
@@ -54,5 +59,6 @@ check = "reach(5 kg) <= 20 min"
 [[criteria]]
 text = "At most 15 kg of salt when the tank is full (60 min)"
 check = "m(60 min) <= 15 kg"
-'''),
+""",
+    ),
 )

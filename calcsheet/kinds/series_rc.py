@@ -29,12 +29,13 @@ KIND = Kind(
         title="Charging of the hold-up capacitor of a door controller",
         number="EL-101",
         purpose="Time for the hold-up capacitor to charge to 20 V after power-up.",
-        requests='''[evaluate]
+        requests="""[evaluate]
 at = ["1 s", "5 s", "10 s"]
 reach = ["20 V"]
 
 [[criteria]]
 text = "Capacitor above 20 V within 15 s of power-up"
 check = "reach(20 V) <= 15 s"
-'''),
+""",
+    ),
 )

@@ -23,11 +23,12 @@ KIND = Kind(
         title="Charge delivered to the hold-up capacitor of a door controller",
         number="EL-102",
         purpose="Charge stored in the hold-up capacitor ten seconds after power-up.",
-        requests='''[evaluate]
+        requests="""[evaluate]
 at = ["1 s", "5 s", "10 s"]
 
 [[criteria]]
 text = "At least 9 mC stored 10 s after power-up"
 check = "q(10 s) >= 9 mC"
-'''),
+""",
+    ),
 )

@@ -16,11 +16,20 @@ KIND = Kind(
     unknown=Slot("i", "A", "inductor current (the loop current)", "0 A"),
     variable=Slot("t", "s", "time", "1 s"),
     slots=(
-        Slot("R", "ohm", "loop resistance (include the winding resistance and the source's internal resistance)",
-             "120 ohm"),
+        Slot(
+            "R",
+            "ohm",
+            "loop resistance (include the winding resistance and the source's internal resistance)",
+            "120 ohm",
+        ),
         Slot("L", "H", "inductance", "0.6 H"),
-        Slot("V_s", "V", "source voltage (0 V for the decay once the source is replaced by a short circuit)", "24 V",
-             default="0 V"),
+        Slot(
+            "V_s",
+            "V",
+            "source voltage (0 V for the decay once the source is replaced by a short circuit)",
+            "24 V",
+            default="0 V",
+        ),
     ),
     equation="L*di/dt + R*i = V_s",
     law_steps=(
@@ -37,17 +46,17 @@ KIND = Kind(
     checks=_checks,
     findings={
         "series_rl.R_zero": "R = 0: with no resistance in the loop the current never settles and rises without "
-                            "limit under a steady source; include the winding resistance of the coil and the "
-                            "internal resistance of the source in R.",
+        "limit under a steady source; include the winding resistance of the coil and the "
+        "internal resistance of the source in R.",
         "series_rl.R_negative": "R is negative; a passive resistance is positive, so check the sign (with R < 0 the "
-                                "current grows instead of settling).",
+        "current grows instead of settling).",
         "series_rl.L_negative": "L is negative; the inductance of a coil is positive, so check the sign.",
     },
     starter=Starter(
         title="Current rise in the coil of a 24 V solenoid valve",
         number="EL-201",
         purpose="Time for the coil current to reach the 0.15 A pull-in current after the supply is switched on.",
-        requests='''[evaluate]
+        requests="""[evaluate]
 at = ["2 ms", "5 ms", "10 ms", "25 ms"]
 reach = ["0.15 A"]
 
@@ -58,5 +67,6 @@ check = "reach(0.15 A) <= 10 ms"
 [[criteria]]
 text = "Steady coil current within the 0.25 A rating of the driver"
 check = "final_value <= 0.25 A"
-'''),
+""",
+    ),
 )

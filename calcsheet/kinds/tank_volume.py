@@ -37,8 +37,10 @@ def volume_text(clock: Clock) -> str:
 
 def volume_balance_step(clock: Clock, prefix_tex: str = "", prefix_text: str = "") -> tuple[str, str]:
     """The law step from dV/dt = q_in - q_out to the volume at time t."""
-    return (prefix_tex + r"\frac{dV}{dt} = q_{\mathrm{in}} - q_{\mathrm{out}} \;\Rightarrow\; V = " + volume_tex(clock),
-            f"{prefix_text}dV/dt = q_in - q_out, so V = {volume_text(clock)}   (volume balance)")
+    return (
+        prefix_tex + r"\frac{dV}{dt} = q_{\mathrm{in}} - q_{\mathrm{out}} \;\Rightarrow\; V = " + volume_tex(clock),
+        f"{prefix_text}dV/dt = q_in - q_out, so V = {volume_text(clock)}   (volume balance)",
+    )
 
 
 ASSUMPTIONS = (
@@ -56,8 +58,13 @@ def tank_slots(q_in: str, q_out: str, c_in: str, v_0: str, v_max: str) -> tuple[
         Slot("q_out", "m^3/s", "volumetric outflow rate", q_out),
         Slot("c_in", "kg/m^3", "concentration of the substance in the inflow", c_in),
         Slot("V_0", "m^3", "liquid volume in the tank at the initial point (at a switch: carried over)", v_0),
-        Slot("V_max", "m^3", "capacity of the tank up to its overflow; 0 m^3 means not stated (no overflow check)",
-             v_max, default="0 m^3"),
+        Slot(
+            "V_max",
+            "m^3",
+            "capacity of the tank up to its overflow; 0 m^3 means not stated (no overflow check)",
+            v_max,
+            default="0 m^3",
+        ),
     )
 
 
@@ -66,20 +73,20 @@ def findings(unknown: str) -> dict[str, str]:
     law = "Volume law: V(t) = V_0 + (q_in - q_out)*{t_V:clock}"
     return {
         "tank_no_liquid": "the volume V_0 = {V_0} m^3 at the start is not positive; a well-mixed tank needs liquid "
-                          "in it (the concentration m/V is undefined at V = 0).",
+        "in it (the concentration m/V is undefined at V = 0).",
         "tank_negative_flow": "a flow rate is negative; q_in and q_out are the sizes of the inflow and the outflow "
-                              "and must be zero or positive.",
+        "and must be zero or positive.",
         "tank_volume_constant": law + "; here q_in = q_out, so the volume stays V_0 = {V_0} m^3 and the coefficient "
-                                      "of the equation is constant.",
+        "of the equation is constant.",
         "tank_fills": law + " = {V_0} m^3 + {rate} m^3/s * {t_V:clock}; the tank fills, so the coefficient of "
-                            f"{unknown} varies with t.",
+        f"{unknown} varies with t.",
         "tank_drains": law + " = {V_0} m^3 - {rate} m^3/s * {t_V:clock}; the tank drains, so the coefficient of "
-                             f"{unknown} varies with t.",
+        f"{unknown} varies with t.",
         "tank_over_capacity": "the volume V_0 = {V_0} m^3 at the start exceeds the capacity V_max = {V_max} m^3.",
         "tank_capacity_not_stated": "No capacity V_max was stated, so the time at which the tank overflows is not "
-                                    "checked.",
+        "checked.",
         "tank_overflows": "The tank overflows at {at:since}, from (V_max - V_0)/(q_in - q_out); past that time the "
-                          "overflow is an outflow the model leaves out, so the results hold only before it.",
+        "overflow is an outflow the model leaves out, so the results hold only before it.",
         "tank_empties": "the tank empties at {at:since}, from V_0/(q_out - q_in); the solution stops there.",
         "limit.tank_overflows": "the tank overflows",  # where the model stops holding (volume_limit)
         "limit.tank_runs_empty": "the tank runs empty",

@@ -20,8 +20,18 @@ from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.load import sheet_keys
 from calcsheet.load.overrides import apply_overrides
-from calcsheet.model import (Criterion, Declared, ExtremeRequest, IntervalLaw, Model, Parameter, Point, SheetInfo,
-                             Switch, Window)
+from calcsheet.model import (
+    Criterion,
+    Declared,
+    ExtremeRequest,
+    IntervalLaw,
+    Model,
+    Parameter,
+    Point,
+    SheetInfo,
+    Switch,
+    Window,
+)
 from calcsheet.source import expressions as ex
 from calcsheet.source import units
 from calcsheet.source.declared import declared_parts
@@ -30,12 +40,22 @@ from calcsheet.source.singular import Values, check_equation_values
 from calcsheet.source.symbolic import to_sympy
 from calcsheet.source.text_rules import MAX_FILE_BYTES, check_raw, toml_kind
 from calcsheet.source.tolerances import RANGE_KEYS, read_range
-from calcsheet.subjects import CONDITION_SUBJECT, UNKNOWN, VARIABLE, WINDOW, reserved_words, spellings, \
-    written_subject
+from calcsheet.subjects import CONDITION_SUBJECT, UNKNOWN, VARIABLE, WINDOW, reserved_words, spellings, written_subject
 
 TABLES = {
-    "sheet": {"title", "number", "revision", "project", "originator", "purpose", "references", "assumptions",
-              "date", "style", "status"},
+    "sheet": {
+        "title",
+        "number",
+        "revision",
+        "project",
+        "originator",
+        "purpose",
+        "references",
+        "assumptions",
+        "date",
+        "style",
+        "status",
+    },
     "model": {"equation", "unknown", "variable", "kind"},
     "forcing": None,  # keys depend on the form; checked in kinds/forcing.py
     "parameters": None,  # any parameter name
@@ -50,16 +70,23 @@ TABLES = {
 LISTS = {"criteria", "revisions", "switch"}  # written as [[name]]
 RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | reserved_words()
 # Applied to stripped text: one optional group between single runs of spaces, so it is linear.
-_CHECK = re.compile(r"(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\((?P<argument>[^()]*)\)\s*)?(?P<op><=|>=|<|>)(?P<limit>.*)",
-                    re.DOTALL)
+_CHECK = re.compile(
+    r"(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\((?P<argument>[^()]*)\)\s*)?"
+    r"(?P<op><=|>=|<|>)(?P<limit>.*)",
+    re.DOTALL,
+)
 _SECOND_COMPARISON = re.compile(r"[<>=]|\b(?:and|or)\b")
 # A condition over a window: "T <= 90 degC for t in 0 s .. 10 min" or, to the end of the range, "for t >= 5 s".
 _FOR = re.compile(r"\s+for\s+")
-_FOR_CLAUSE = re.compile(r"(?P<name>[A-Za-z][A-Za-z0-9_]*)\s*(?:in\s+(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)"
-                         r"|>=\s*(?P<open>.+))", re.DOTALL)
+_FOR_CLAUSE = re.compile(
+    r"(?P<name>[A-Za-z][A-Za-z0-9_]*)\s*(?:in\s+(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)"
+    r"|>=\s*(?P<open>.+))",
+    re.DOTALL,
+)
 # [evaluate] extremes: "max", "min 0 s .. 60 s", "max from 5 s"
-_EXTREME = re.compile(r"(?P<kind>max|min)(?:\s+(?:from\s+(?P<open>.+)|(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)))?",
-                      re.DOTALL)
+_EXTREME = re.compile(
+    r"(?P<kind>max|min)(?:\s+(?:from\s+(?P<open>.+)|(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)))?", re.DOTALL
+)
 _TOML_POSITION = re.compile(r"\(at line (\d+), column (\d+)\)$")
 MAX_STYLE_NAME = 200
 
@@ -133,7 +160,7 @@ def _read_toml(path: Path) -> dict:
         position = _TOML_POSITION.search(message)
         if position:
             line, column = int(position.group(1)), int(position.group(2))
-            raise InputError(f"not valid TOML: {message[:position.start()].strip()}", line=line, column=column)
+            raise InputError(f"not valid TOML: {message[: position.start()].strip()}", line=line, column=column)
         raise InputError(f"not valid TOML: {message}")
     except RecursionError:
         raise InputError("not valid here: lists or tables are nested too deeply to be read") from None
@@ -170,36 +197,49 @@ class _Builder:
         parameters = errors.attempt(lambda: self.parameters({d.name for d in (unknown, variable) if d}))
         equation_text = equation = None
         if model_table is not None:
-            equation_text = errors.attempt(lambda: self.string(model_table, "equation", "model.equation",
-                                                               required=True))
+            equation_text = errors.attempt(
+                lambda: self.string(model_table, "equation", "model.equation", required=True)
+            )
         initial = errors.attempt(lambda: self.table("initial", required=True))
         initial_at = initial_value = None
         if initial is not None and variable:
             initial_at = errors.attempt(
-                lambda: self.point(initial.get("at", f"0 {variable.unit_text}"), variable, "initial.at"))
+                lambda: self.point(initial.get("at", f"0 {variable.unit_text}"), variable, "initial.at")
+            )
         if initial is not None and unknown:
             initial_value = errors.attempt(
-                lambda: self.point(self.required(initial, "value", "initial.value"), unknown, "initial.value"))
+                lambda: self.point(self.required(initial, "value", "initial.value"), unknown, "initial.value")
+            )
         if equation_text is not None and unknown and variable:
             names = frozenset(p.name for p in parameters or ()) | frozenset(self.table("parameters"))
-            equation = errors.attempt(lambda: _wrap_key(lambda: ex.parse_equation(equation_text, names),
-                                                        "model.equation"))
+            equation = errors.attempt(
+                lambda: _wrap_key(lambda: ex.parse_equation(equation_text, names), "model.equation")
+            )
         symbolic = None
         if equation is not None and unknown and variable and parameters is not None:
             derivative = sp.Symbol(f"d{unknown.name}/d{variable.name}", real=True)
-            symbolic = errors.attempt(lambda: _wrap_key(
-                lambda: _symbolic_equation(equation, unknown, variable, parameters, derivative, initial_at),
-                "model.equation"))
+            symbolic = errors.attempt(
+                lambda: _wrap_key(
+                    lambda: _symbolic_equation(equation, unknown, variable, parameters, derivative, initial_at),
+                    "model.equation",
+                )
+            )
         evaluate = self.table("evaluate")
         evaluate_at = errors.attempt(lambda: self.points(evaluate, "at", variable), ()) if variable else ()
         for index, point in enumerate(evaluate_at if initial_at else ()):
             if point.si < initial_at.si:
-                errors.add(InputError(f"'{point.text}' lies before the initial point {initial_at.text}; the "
-                                      "sheet solves forward from the initial condition", f"evaluate.at[{index + 1}]"))
+                errors.add(
+                    InputError(
+                        f"'{point.text}' lies before the initial point {initial_at.text}; the "
+                        "sheet solves forward from the initial condition",
+                        f"evaluate.at[{index + 1}]",
+                    )
+                )
         reach = errors.attempt(lambda: self.points(evaluate, "reach", unknown), ()) if unknown else ()
         extremes = errors.attempt(lambda: self.extremes(evaluate, variable, initial_at), ()) if variable else ()
-        criteria = errors.attempt(lambda: self.criteria(unknown, variable, initial_at), ()) \
-            if unknown and variable else ()
+        criteria = (
+            errors.attempt(lambda: self.criteria(unknown, variable, initial_at), ()) if unknown and variable else ()
+        )
         plot_to = errors.attempt(lambda: self.plot_end(initial_at, variable)) if variable else None
         kind = None
         if kind_use is not None and parameters is not None:
@@ -211,11 +251,25 @@ class _Builder:
             raise InputError("the model could not be read", "model")
         lhs, rhs, unused = symbolic
         model = Model(
-            path=self.file, sheet=sheet, equation_text=equation_text, equation=equation,
-            unknown=unknown, variable=variable, derivative=derivative, lhs=lhs, rhs=rhs,
-            parameters=parameters, initial_at=initial_at, initial_value=initial_value,
-            evaluate_at=evaluate_at, reach=reach, extremes=extremes, criteria=criteria, unused_parameters=unused,
-            plot_to=plot_to, kind=kind,
+            path=self.file,
+            sheet=sheet,
+            equation_text=equation_text,
+            equation=equation,
+            unknown=unknown,
+            variable=variable,
+            derivative=derivative,
+            lhs=lhs,
+            rhs=rhs,
+            parameters=parameters,
+            initial_at=initial_at,
+            initial_value=initial_value,
+            evaluate_at=evaluate_at,
+            reach=reach,
+            extremes=extremes,
+            criteria=criteria,
+            unused_parameters=unused,
+            plot_to=plot_to,
+            kind=kind,
         )
         return replace(model, switches=self.switches(model)) if self.original.get("switch") else model
 
@@ -236,12 +290,15 @@ class _Builder:
             changes = self.switch_changes(entry, first, where)
             carried = _carried_states(previous, at)
             for name in sorted(set(changes) & set(carried)):
-                raise InputError(f"{name} is carried over the switch from the state reached there; it cannot "
-                                 "be set at a switch", f"{where}.parameters.{name}")
+                raise InputError(
+                    f"{name} is carried over the switch from the state reached there; it cannot be set at a switch",
+                    f"{where}.parameters.{name}",
+                )
             parameters = {**parameters, **changes, **{name: value for name, (value, _) in carried.items()}}
             forcing = entry.get("forcing", forcing)
-            raw = {k: v for k, v in self.original.items() if k not in ("evaluate", "criteria", "plot", "switch",
-                                                                        "forcing")}
+            raw = {
+                k: v for k, v in self.original.items() if k not in ("evaluate", "criteria", "plot", "switch", "forcing")
+            }
             raw["parameters"] = parameters
             raw["initial"] = {"at": entry["at"], "value": self.original.get("initial", {}).get("value")}
             if forcing is not None:
@@ -260,18 +317,27 @@ class _Builder:
         """The parameters a switch sets: each must name a parameter of the model, stated as in [parameters]."""
         changes = entry.get("parameters", {})
         if not isinstance(changes, dict):
-            raise InputError("must be a table of parameter values, e.g. parameters = { R = \"80 ohm\" }",
-                             f"{where}.parameters")
+            raise InputError(
+                'must be a table of parameter values, e.g. parameters = { R = "80 ohm" }', f"{where}.parameters"
+            )
         known = _switchable(first, self.original.get("parameters", {}))
         errors = []
         for name, value in changes.items():
             key = f"{where}.parameters.{name}"
             if name not in known:
-                errors.append(InputError(f"'{name}' is not a parameter of this model (its parameters: "
-                                         f"{', '.join(sorted(known))})", key))
+                errors.append(
+                    InputError(
+                        f"'{name}' is not a parameter of this model (its parameters: {', '.join(sorted(known))})", key
+                    )
+                )
             elif not (isinstance(value, str) or (isinstance(value, dict) and "value" in value)):
-                errors.append(InputError("state the new value as text with its unit, \"80 ohm\", or as a "
-                                         "table { value = \"80 ohm\", source = \"...\" }", key))
+                errors.append(
+                    InputError(
+                        'state the new value as text with its unit, "80 ohm", or as a '
+                        'table { value = "80 ohm", source = "..." }',
+                        key,
+                    )
+                )
         if errors:
             raise ErrorList(errors)
         return changes
@@ -294,8 +360,10 @@ class _Builder:
         if "kind" in model_table:
             model_table, kind_use = self.apply_kind(model_table)
         elif "forcing" in self.raw:
-            raise InputError("a [forcing] table goes with a model kind; in an equation, write the "
-                             "function of the variable directly", "forcing")
+            raise InputError(
+                "a [forcing] table goes with a model kind; in an equation, write the function of the variable directly",
+                "forcing",
+            )
         return model_table, kind_use
 
     def check_keys(self) -> None:
@@ -314,8 +382,13 @@ class _Builder:
                 if not isinstance(entry, dict):
                     errors.append(InputError(f"must be a table, but found {toml_kind(entry)}", where))
                 elif allowed is not None:
-                    errors.extend(InputError(f"unknown key (expected one of: {', '.join(sorted(allowed))})",
-                                             f"{where}.{key_part(k)}") for k in entry if k not in allowed)
+                    errors.extend(
+                        InputError(
+                            f"unknown key (expected one of: {', '.join(sorted(allowed))})", f"{where}.{key_part(k)}"
+                        )
+                        for k in entry
+                        if k not in allowed
+                    )
         for key in LISTS:
             if key in self.raw and not isinstance(self.raw[key], list):
                 errors.append(InputError(f"write {key} as [[{key}]] tables", key))
@@ -352,8 +425,7 @@ class _Builder:
             raise InputError(f"must be a list of texts in quotes, but found {toml_kind(value)}", where)
         for index, item in enumerate(value):
             if not isinstance(item, str):
-                raise InputError(f"must be a list of texts in quotes, but item {index + 1} is {toml_kind(item)}",
-                                 where)
+                raise InputError(f"must be a list of texts in quotes, but item {index + 1} is {toml_kind(item)}", where)
         return tuple(v.strip() for v in value)
 
     # ----------------------------------------------------------------------- sections
@@ -361,8 +433,10 @@ class _Builder:
         """[sheet], [signoff] and [[revisions]]: each key is checked, and every problem is reported."""
         table = self.table("sheet", required=True)
         errors = _Errors()
-        text = {k: errors.attempt(lambda k=k: self.string(table, k, f"sheet.{k}"), "") for k in
-                ("number", "revision", "project", "originator", "purpose")}
+        text = {
+            k: errors.attempt(lambda k=k: self.string(table, k, f"sheet.{k}"), "")
+            for k in ("number", "revision", "project", "originator", "purpose")
+        }
         title = errors.attempt(lambda: self.string(table, "title", "sheet.title", required=True), "")
         if not title and "title" in table and isinstance(table["title"], str):
             errors.add(InputError("must not be empty", "sheet.title"))
@@ -388,8 +462,7 @@ class _Builder:
         if not text:
             return ""
         if len(text) > MAX_STYLE_NAME:
-            raise InputError(f"a style folder name of {len(text)} characters; at most {MAX_STYLE_NAME}",
-                             "sheet.style")
+            raise InputError(f"a style folder name of {len(text)} characters; at most {MAX_STYLE_NAME}", "sheet.style")
         home = Path(self.file).parent
         try:
             base = home.resolve()
@@ -397,12 +470,16 @@ class _Builder:
             inside = not Path(text).is_absolute() and folder.is_relative_to(base)
             found = inside and folder.is_dir()
         except (OSError, RuntimeError, ValueError) as exc:  # a name too long for the system, a symlink loop
-            raise InputError(f"the style folder '{text}' cannot be looked up ({getattr(exc, 'strerror', '') or exc})",
-                             "sheet.style") from None
+            raise InputError(
+                f"the style folder '{text}' cannot be looked up ({getattr(exc, 'strerror', '') or exc})", "sheet.style"
+            ) from None
         if not inside:
-            raise InputError(f"the style folder '{text}' lies outside the input file's folder ({base}); a style "
-                             "named in an input must be inside that folder tree; give --style on the command "
-                             "line to use a style kept elsewhere", "sheet.style")
+            raise InputError(
+                f"the style folder '{text}' lies outside the input file's folder ({base}); a style "
+                "named in an input must be inside that folder tree; give --style on the command "
+                "line to use a style kept elsewhere",
+                "sheet.style",
+            )
         if not found:
             raise InputError(f"no style folder '{text}' next to the input (looked for {home / text})", "sheet.style")
         return str(home / text)
@@ -415,8 +492,15 @@ class _Builder:
             raise InputError(f"'{name}' is a reserved name", where)
         unit = _wrap_key(lambda: units.parse_unit(unit_text), where)
         scale, offset = units.scale_and_offset(unit)
-        return Declared(name, unit, unit_text, sp.Symbol(name, real=True), scale, offset,
-                        is_time=units.same_dimension(unit, units.parse_unit("s")))
+        return Declared(
+            name,
+            unit,
+            unit_text,
+            sp.Symbol(name, real=True),
+            scale,
+            offset,
+            is_time=units.same_dimension(unit, units.parse_unit("s")),
+        )
 
     def parameters(self, taken: set[str]) -> tuple[Parameter, ...]:
         """Every parameter, each checked on its own; ``taken``: the names of the unknown and the variable."""
@@ -441,10 +525,12 @@ class _Builder:
             unknown_keys = set(entry) - {"value", "source", "note", *RANGE_KEYS}
             if unknown_keys:
                 shown = key_part(sorted(unknown_keys)[0])
-                raise InputError(f"unknown key {shown if shown.startswith(chr(34)) else repr(shown)} "
-                                 "(expected value, source, note, tolerance, min, max)")
+                raise InputError(
+                    f"unknown key {shown if shown.startswith(chr(34)) else repr(shown)} "
+                    "(expected value, source, note, tolerance, min, max)"
+                )
             if "value" not in entry:
-                raise InputError("the table needs a value, e.g. { value = \"47 kohm\" }")
+                raise InputError('the table needs a value, e.g. { value = "47 kohm" }')
             source, note = (self.string(entry, k, f"parameters.{name}.{k}") for k in ("source", "note"))
         table, entry = (entry, entry["value"]) if isinstance(entry, dict) else ({}, entry)
         quantity = units.parse_quantity(entry)
@@ -453,17 +539,31 @@ class _Builder:
         units.check_magnitude(si_value, text.strip())
         spread = read_range(table, quantity, si_value, f"parameters.{key_part(name)}")
         scale, offset = units.scale_and_offset(quantity.units)
-        return Parameter(name=name, text=text.strip(), quantity=quantity, si=si_value,
-                         si_unit=units.si_unit(quantity.units), symbol=_parameter_symbol(name, si_value, spread),
-                         source=source, note=note, low=spread.low, high=spread.high, spread=spread.spread,
-                         unit_text=_unit_as_written(text), scale=scale, offset=offset)
+        return Parameter(
+            name=name,
+            text=text.strip(),
+            quantity=quantity,
+            si=si_value,
+            si_unit=units.si_unit(quantity.units),
+            symbol=_parameter_symbol(name, si_value, spread),
+            source=source,
+            note=note,
+            low=spread.low,
+            high=spread.high,
+            spread=spread.spread,
+            unit_text=_unit_as_written(text),
+            scale=scale,
+            offset=offset,
+        )
 
     def point(self, raw: Any, like: Declared, where: str) -> Point:
         quantity = _wrap_key(lambda: units.parse_quantity(raw), where)
         if not units.same_dimension(quantity.units, like.unit):
             raise InputError(
                 f"'{shortened(raw)}' has dimension {units.dimension_text(quantity.units)}, but {like.name} is in "
-                f"{like.unit_text or 'no unit'} ({units.dimension_text(like.unit)})", where)
+                f"{like.unit_text or 'no unit'} ({units.dimension_text(like.unit)})",
+                where,
+            )
         text = raw if isinstance(raw, str) else f"{raw:g}"
         si_value = units.to_si(quantity)
         _wrap_key(lambda: units.check_magnitude(si_value, text.strip()), where)
@@ -475,8 +575,10 @@ class _Builder:
         if not isinstance(raw, list):
             raw = [raw]
         errors = _Errors()
-        result = tuple(errors.attempt(lambda i=i, item=item: self.point(item, like, f"evaluate.{key}[{i + 1}]"))
-                       for i, item in enumerate(raw))
+        result = tuple(
+            errors.attempt(lambda i=i, item=item: self.point(item, like, f"evaluate.{key}[{i + 1}]"))
+            for i, item in enumerate(raw)
+        )
         errors.raise_any()
         return result
 
@@ -484,8 +586,13 @@ class _Builder:
         """Replace a kind by its equation and checked parameters, and remember what to say about it."""
         initial = self.raw.get("initial", {})
         start = initial.get("at") if isinstance(initial, dict) else None
-        expanded = expand_kind(model_table, self.raw.get("parameters", {}), self.raw.get("forcing"), start,
-                               self.start_source or "the initial point")
+        expanded = expand_kind(
+            model_table,
+            self.raw.get("parameters", {}),
+            self.raw.get("forcing"),
+            start,
+            self.start_source or "the initial point",
+        )
         self.raw = {**self.raw, "parameters": expanded.parameters}
         return expanded.model_table, expanded.use
 
@@ -513,14 +620,23 @@ class _Builder:
     def extreme_request(self, item: Any, variable: Declared, initial_at: Point | None, where: str) -> ExtremeRequest:
         match = _EXTREME.fullmatch(item.strip()) if isinstance(item, str) else None
         if match is None:
-            raise InputError(f"'{shortened(item)}' must read \"max\" or \"min\", over a window \"max 0 s .. 60 s\", "
-                             "or to the end of the range \"max from 5 s\"", where)
-        window = self.window(match.group("start"), match.group("end"), match.group("open"), variable, initial_at,
-                             where)
+            raise InputError(
+                f'\'{shortened(item)}\' must read "max" or "min", over a window "max 0 s .. 60 s", '
+                'or to the end of the range "max from 5 s"',
+                where,
+            )
+        window = self.window(match.group("start"), match.group("end"), match.group("open"), variable, initial_at, where)
         return ExtremeRequest(match.group("kind"), window, item.strip())
 
-    def window(self, start: str | None, end: str | None, open_from: str | None, variable: Declared,
-               initial_at: Point | None, where: str) -> Window:
+    def window(
+        self,
+        start: str | None,
+        end: str | None,
+        open_from: str | None,
+        variable: Declared,
+        initial_at: Point | None,
+        where: str,
+    ) -> Window:
         """A window on the variable: its ends in the variable's dimension, in order, after the initial point."""
         if open_from is not None:
             window = Window(self.point(open_from.strip(), variable, where), None, open_ended=True)
@@ -529,8 +645,11 @@ class _Builder:
         else:
             return Window()
         if initial_at is not None and window.start.si < initial_at.si:
-            raise InputError(f"the window starts at '{window.start.text}', before the initial point "
-                             f"{initial_at.text}; the sheet solves forward from the initial condition", where)
+            raise InputError(
+                f"the window starts at '{window.start.text}', before the initial point "
+                f"{initial_at.text}; the sheet solves forward from the initial condition",
+                where,
+            )
         if window.end is not None and not window.end.si > window.start.si:
             raise InputError(f"the window '{window.start.text} .. {window.end.text}' must end after it starts", where)
         return window
@@ -543,56 +662,84 @@ class _Builder:
             text = errors.attempt(lambda: self.string(entry, "text", f"{where}.text"), "")
             check = errors.attempt(lambda: self.string(entry, "check", f"{where}.check", required=True))
             if check is not None:
-                result.append(errors.attempt(
-                    lambda: self.criterion(text or check, check, unknown, variable, f"{where}.check", initial_at)))
+                result.append(
+                    errors.attempt(
+                        lambda: self.criterion(text or check, check, unknown, variable, f"{where}.check", initial_at)
+                    )
+                )
         errors.raise_any()
         return tuple(result)
 
-    def condition(self, text: str, check: str, unknown: Declared, variable: Declared, where: str,
-                  initial_at: Point | None) -> Criterion:
+    def condition(
+        self, text: str, check: str, unknown: Declared, variable: Declared, where: str, initial_at: Point | None
+    ) -> Criterion:
         """A condition over a window, "T <= 90 degC for t in 0 s .. 10 min": the extreme that decides it."""
         head, clause = _FOR.split(check.strip(), maxsplit=1)
         match, window = _CHECK.fullmatch(head.strip()), _FOR_CLAUSE.fullmatch(clause.strip())
         if window is None or window.group("name") != variable.name:
-            raise InputError(f"'{shortened(check)}': write the window as \"for {variable.name} in 0 s .. 10 min\" or "
-                             f"\"for {variable.name} >= 5 s\"", where)
+            raise InputError(
+                f"'{shortened(check)}': write the window as \"for {variable.name} in 0 s .. 10 min\" or "
+                f'"for {variable.name} >= 5 s"',
+                where,
+            )
         if match is None or match.group("subject") != unknown.name or match.group("argument") is not None:
-            raise InputError(f"'{shortened(check)}': a condition over a window compares {unknown.name} itself, as in "
-                             f"\"{unknown.name} <= 90 degC for {variable.name} in 0 s .. 10 min\"", where)
+            raise InputError(
+                f"'{shortened(check)}': a condition over a window compares {unknown.name} itself, as in "
+                f'"{unknown.name} <= 90 degC for {variable.name} in 0 s .. 10 min"',
+                where,
+            )
         if _SECOND_COMPARISON.search(match.group("limit")):
-            raise InputError(f"'{shortened(check)}' holds more than one comparison; write each as its own "
-                             "[[criteria]] table", where)
+            raise InputError(
+                f"'{shortened(check)}' holds more than one comparison; write each as its own [[criteria]] table", where
+            )
         operator = match.group("op")
         return Criterion(
-            text=text, check=check, subject=CONDITION_SUBJECT[operator], argument=None, operator=operator,
+            text=text,
+            check=check,
+            subject=CONDITION_SUBJECT[operator],
+            argument=None,
+            operator=operator,
             limit=self.point(match.group("limit").strip(), unknown, where),
-            window=self.window(window.group("start"), window.group("end"), window.group("open"), variable,
-                               initial_at, where))
+            window=self.window(
+                window.group("start"), window.group("end"), window.group("open"), variable, initial_at, where
+            ),
+        )
 
-    def windowed(self, subject: str, argument: str, unknown: Declared, variable: Declared,
-                 initial_at: Point | None, where: str) -> Window:
+    def windowed(
+        self, subject: str, argument: str, unknown: Declared, variable: Declared, initial_at: Point | None, where: str
+    ) -> Window:
         """The argument of max(T) or max(T, 0 s, 60 s): the unknown's name, then no window or both its ends."""
         parts = [part.strip() for part in argument.split(",")]
         if parts[0] != unknown.name or len(parts) not in (1, 3):
-            raise InputError(f"'{subject}({shortened(argument)})' must read {subject}({unknown.name}) or "
-                             f"{subject}({unknown.name}, 0 s, 60 s)", where)
+            raise InputError(
+                f"'{subject}({shortened(argument)})' must read {subject}({unknown.name}) or "
+                f"{subject}({unknown.name}, 0 s, 60 s)",
+                where,
+            )
         if len(parts) == 1:
             return Window()
         return self.window(parts[1], parts[2], None, variable, initial_at, where)
 
-    def criterion(self, text: str, check: str, unknown: Declared, variable: Declared, where: str,
-                  initial_at: Point | None = None) -> Criterion:
+    def criterion(
+        self, text: str, check: str, unknown: Declared, variable: Declared, where: str, initial_at: Point | None = None
+    ) -> Criterion:
         if _FOR.search(check.strip()):
             return self.condition(text, check, unknown, variable, where, initial_at)
         match = _CHECK.fullmatch(check.strip())
         if not match:
-            raise InputError(f"'{shortened(check)}' must read like \"{unknown.name}(60 s) <= 50 V\", "
-                             f"\"reach(50 V) <= 60 s\", \"max({unknown.name}, 0 s, 60 s) <= 50 V\" or "
-                             f"\"{unknown.name} <= 50 V for {variable.name} in 0 s .. 60 s\"", where)
+            raise InputError(
+                f"'{shortened(check)}' must read like \"{unknown.name}(60 s) <= 50 V\", "
+                f'"reach(50 V) <= 60 s", "max({unknown.name}, 0 s, 60 s) <= 50 V" or '
+                f'"{unknown.name} <= 50 V for {variable.name} in 0 s .. 60 s"',
+                where,
+            )
         if _SECOND_COMPARISON.search(match.group("limit")):
-            raise InputError(f"'{shortened(check)}' holds more than one comparison; a check is one comparison, so write "
-                             "each as its own [[criteria]] table (e.g. one \"v(1 min) >= 5 V\", another "
-                             "\"v(2 min) <= 10 V\")", where)
+            raise InputError(
+                f"'{shortened(check)}' holds more than one comparison; a check is one comparison, "
+                'so write each as its own [[criteria]] table (e.g. one "v(1 min) >= 5 V", another '
+                '"v(2 min) <= 10 V")',
+                where,
+            )
         subject, argument = match.group("subject"), match.group("argument")
         argument = None if argument is None else argument.strip()
         found = written_subject(subject, unknown.name)
@@ -601,18 +748,30 @@ class _Builder:
         like = {UNKNOWN: unknown, VARIABLE: variable}
         if found.argument == WINDOW:
             if argument is None:
-                raise InputError(f"'{subject}' needs an argument: {subject}({unknown.name}) or "
-                                 f"{subject}({unknown.name}, 0 s, 60 s)", where)
+                raise InputError(
+                    f"'{subject}' needs an argument: {subject}({unknown.name}) or {subject}({unknown.name}, 0 s, 60 s)",
+                    where,
+                )
             window = self.windowed(subject, argument, unknown, variable, initial_at, where)
-            return Criterion(text=text, check=check, subject=found.name, argument=None, operator=match.group("op"),
-                             limit=self.point(match.group("limit").strip(), like[found.found], where), window=window)
+            return Criterion(
+                text=text,
+                check=check,
+                subject=found.name,
+                argument=None,
+                operator=match.group("op"),
+                limit=self.point(match.group("limit").strip(), like[found.found], where),
+                window=window,
+            )
         argument_like, limit_like = like.get(found.argument), like[found.found]
         if (argument_like is None) != (argument is None):
             raise InputError(f"'{subject}' {'takes no' if argument_like is None else 'needs an'} argument", where)
         return Criterion(
-            text=text, check=check, subject=found.name,
+            text=text,
+            check=check,
+            subject=found.name,
             argument=None if argument is None else self.point(argument, argument_like, where),
-            operator=match.group("op"), limit=self.point(match.group("limit").strip(), limit_like, where),
+            operator=match.group("op"),
+            limit=self.point(match.group("limit").strip(), limit_like, where),
         )
 
 
@@ -633,15 +792,23 @@ def _parameter_symbol(name: str, value: float, spread=None) -> sp.Symbol:
     return sp.Symbol(name, real=True)
 
 
-def _symbolic_equation(equation: ex.Equation, unknown: Declared, variable: Declared,
-                       parameters: tuple[Parameter, ...], derivative: sp.Symbol, initial_at: Point | None = None):
+def _symbolic_equation(
+    equation: ex.Equation,
+    unknown: Declared,
+    variable: Declared,
+    parameters: tuple[Parameter, ...],
+    derivative: sp.Symbol,
+    initial_at: Point | None = None,
+):
     """Refuse what is not a single first-order ODE in the unknown, check units and values, build sympy."""
     _refuse_wrong_derivatives(equation, unknown, variable)
     known = {p.name: p for p in parameters}
     used = ex.names_in(equation.left) | ex.names_in(equation.right)
     for name in sorted(used - set(known) - {unknown.name, variable.name, "pi"}):
-        raise InputError(f"'{name}' is not a parameter, the unknown ({unknown.name}) or the variable "
-                         f"({variable.name}); a second unknown would make this more than one ODE")
+        raise InputError(
+            f"'{name}' is not a parameter, the unknown ({unknown.name}) or the variable "
+            f"({variable.name}); a second unknown would make this more than one ODE"
+        )
     si = {p.name: p.si_unit for p in parameters}
     si[unknown.name] = units.si_unit(unknown.unit)
     si[variable.name] = units.si_unit(variable.unit)
@@ -651,9 +818,15 @@ def _symbolic_equation(equation: ex.Equation, unknown: Declared, variable: Decla
     if units.is_offset(unknown.unit):
         absolute[unknown.name] = f"the unknown, in {unknown.unit_text}"
     refuse_absolute_sums(equation, absolute, frozenset(known))
-    check_equation_values(equation, Values(
-        {p.name: (p.si, p.text) for p in parameters}, variable.name,
-        None if initial_at is None else initial_at.si, "" if initial_at is None else initial_at.text))
+    check_equation_values(
+        equation,
+        Values(
+            {p.name: (p.si, p.text) for p in parameters},
+            variable.name,
+            None if initial_at is None else initial_at.si,
+            "" if initial_at is None else initial_at.text,
+        ),
+    )
     symbols = {p.name: p.symbol for p in parameters}
     symbols[unknown.name] = unknown.symbol
     symbols[variable.name] = variable.symbol
@@ -666,17 +839,23 @@ def _symbolic_equation(equation: ex.Equation, unknown: Declared, variable: Decla
 def _refuse_wrong_derivatives(equation: ex.Equation, unknown: Declared, variable: Declared) -> None:
     found = ex.derivatives_in(equation.left) + ex.derivatives_in(equation.right)
     if not found:
-        raise ModelRefused(f"no derivative d{unknown.name}/d{variable.name} appears: this is an algebraic "
-                           "equation, not a differential equation")
+        raise ModelRefused(
+            f"no derivative d{unknown.name}/d{variable.name} appears: this is an algebraic "
+            "equation, not a differential equation"
+        )
     for d in found:
         if d.of != unknown.name:
-            raise ModelRefused(f"'{d.text}' is a derivative of '{d.of}', but the unknown is '{unknown.name}': "
-                               "more than one unknown needs a system of equations, which this tool does not solve")
+            raise ModelRefused(
+                f"'{d.text}' is a derivative of '{d.of}', but the unknown is '{unknown.name}': "
+                "more than one unknown needs a system of equations, which this tool does not solve"
+            )
         if d.wrt != variable.name:
             raise InputError(f"'{d.text}' is taken with respect to '{d.wrt}', but the variable is '{variable.name}'")
         if d.order != 1:
-            raise ModelRefused(f"'{d.text}' is a second derivative: the equation is of order 2, and only "
-                               "first-order equations are solved by an integrating factor")
+            raise ModelRefused(
+                f"'{d.text}' is a second derivative: the equation is of order 2, and only "
+                "first-order equations are solved by an integrating factor"
+            )
 
 
 def _prefixed(error, where: str):
@@ -689,8 +868,15 @@ def _prefixed(error, where: str):
 
 def _law_of(model: Model) -> IntervalLaw:
     """What a switch puts in force: the equation and parameters, without the model's start value."""
-    return IntervalLaw(equation_text=model.equation_text, equation=model.equation, lhs=model.lhs, rhs=model.rhs,
-                       parameters=model.parameters, kind=model.kind, unused_parameters=model.unused_parameters)
+    return IntervalLaw(
+        equation_text=model.equation_text,
+        equation=model.equation,
+        lhs=model.lhs,
+        rhs=model.rhs,
+        parameters=model.parameters,
+        kind=model.kind,
+        unused_parameters=model.unused_parameters,
+    )
 
 
 def _switchable(first: Model, stated: dict) -> set[str]:
@@ -714,8 +900,10 @@ def _carried_states(previous: Model, at: Point) -> dict[str, tuple[str, str]]:
     carried = {}
     for name, value in kind.carry(values, at.si).items():
         unit = units.unit_label(units.si_unit(units.parse_unit(kind.slot(name).unit)))
-        carried[name] = ({"value": f"{value!r} {unit}", "source": f"reached at the switch at {at.text}, carried over"},
-                         f"{value:.6g} {unit}")
+        carried[name] = (
+            {"value": f"{value!r} {unit}", "source": f"reached at the switch at {at.text}, carried over"},
+            f"{value:.6g} {unit}",
+        )
     return carried
 
 

@@ -33,8 +33,13 @@ def apply_overrides(raw: dict, assignments: tuple[tuple[str, str], ...]) -> tupl
             errors.append(InputError("is set twice", key))
             continue
         if name not in known:
-            errors.append(InputError(f"'{shortened(name)}' is not a parameter of this model (its parameters: "
-                                     f"{', '.join(sorted(known)) or 'none'})", key))
+            errors.append(
+                InputError(
+                    f"'{shortened(name)}' is not a parameter of this model (its parameters: "
+                    f"{', '.join(sorted(known)) or 'none'})",
+                    key,
+                )
+            )
             continue
         try:
             _check_like(value, known[name], key)
@@ -76,8 +81,11 @@ def _check_like(value: str, like, key: str) -> None:
             return  # the input's own value is wrong: reported where it is written
         raise error.located(key=key)
     if reference is not None and not units.same_dimension(quantity.units, reference.units):
-        raise InputError(f"'{shortened(value)}' has dimension {units.dimension_text(quantity.units)}, but the input's "
-                         f"value is in {units.dimension_text(reference.units)}", key)
+        raise InputError(
+            f"'{shortened(value)}' has dimension {units.dimension_text(quantity.units)}, but the input's "
+            f"value is in {units.dimension_text(reference.units)}",
+            key,
+        )
 
 
 def reference_failed(like) -> bool:

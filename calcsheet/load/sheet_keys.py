@@ -51,14 +51,16 @@ def _signoff_row(table: dict, role: str, originator: str) -> SignOff:
     if isinstance(entry, str):
         entry = {"name": entry}
     if not isinstance(entry, dict) or set(entry) - {"name", "date", "fingerprint"}:
-        raise InputError("must be a name in quotes or a table { name = \"...\", date = \"YYYY-MM-DD\" }", where)
+        raise InputError('must be a name in quotes or a table { name = "...", date = "YYYY-MM-DD" }', where)
     name = entry.get("name", originator if role == "prepared" else "")
     if not isinstance(name, str):
         raise InputError("the name must be text in quotes", f"{where}.name")
     fingerprint = entry.get("fingerprint", "")
     if "fingerprint" in entry and not (isinstance(fingerprint, str) and _FINGERPRINT.fullmatch(fingerprint)):
-        raise InputError("must be the 64 hexadecimal digits `calcsheet sign` writes; sign again rather than edit it",
-                         f"{where}.fingerprint")
+        raise InputError(
+            "must be the 64 hexadecimal digits `calcsheet sign` writes; sign again rather than edit it",
+            f"{where}.fingerprint",
+        )
     if fingerprint and not name.strip():
         raise InputError("a signed entry needs the signer's name", f"{where}.name")
     return SignOff(role.capitalize(), name.strip(), iso_date(entry.get("date", ""), f"{where}.date"), fingerprint)
@@ -79,18 +81,33 @@ def check_consistency(revision: str, rows: tuple[Revision, ...], signoffs: tuple
     before the revision it signs."""
     errors = []
     if rows and revision != rows[-1].revision:
-        errors.append(InputError(f"'{revision}' differs from the last [[revisions]] row ('{rows[-1].revision}'): "
-                                 "the sheet's revision is its latest row", "sheet.revision"))
+        errors.append(
+            InputError(
+                f"'{revision}' differs from the last [[revisions]] row ('{rows[-1].revision}'): "
+                "the sheet's revision is its latest row",
+                "sheet.revision",
+            )
+        )
     dated = [(index, row) for index, row in enumerate(rows, start=1) if row.date]
     for (_, earlier), (index, row) in zip(dated, dated[1:]):
         if row.date < earlier.date:
-            errors.append(InputError(f"{row.date} comes before the row above it ({earlier.date}): revision rows "
-                                     "go in date order, oldest first", f"revisions[{index}].date"))
+            errors.append(
+                InputError(
+                    f"{row.date} comes before the row above it ({earlier.date}): revision rows "
+                    "go in date order, oldest first",
+                    f"revisions[{index}].date",
+                )
+            )
     current = rows[-1].date if rows else ""
     for line in signoffs:
         if current and line.date and line.date < current:
-            errors.append(InputError(f"{line.date} is before the date of revision {rows[-1].revision} ({current}): "
-                                     "a sign-off cannot predate what it signs", f"signoff.{line.role.lower()}.date"))
+            errors.append(
+                InputError(
+                    f"{line.date} is before the date of revision {rows[-1].revision} ({current}): "
+                    "a sign-off cannot predate what it signs",
+                    f"signoff.{line.role.lower()}.date",
+                )
+            )
     _raise_all(errors)
 
 

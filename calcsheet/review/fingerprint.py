@@ -34,10 +34,16 @@ def canonical_sheet(sheet: Sheet) -> Sheet:
     block = sheet.title_block
     blank = {name: replace(getattr(block, name), value="") for name in ("revision", "status", "originator")}
     return replace(
-        sheet, title_block=replace(block, **blank), signoff=(), revisions=(), review=Review(),
+        sheet,
+        title_block=replace(block, **blank),
+        signoff=(),
+        revisions=(),
+        review=Review(),
         outcome=replace(sheet.outcome, lines=tuple(sorted(sheet.outcome.lines))),
-        sections=tuple(replace(section, blocks=tuple(_rows_sorted(b) for b in section.blocks))
-                       for section in sheet.sections))
+        sections=tuple(
+            replace(section, blocks=tuple(_rows_sorted(b) for b in section.blocks)) for section in sheet.sections
+        ),
+    )
 
 
 def _rows_sorted(block):
@@ -45,8 +51,11 @@ def _rows_sorted(block):
         return block
     statuses = block.row_status or ("",) * len(block.rows)
     pairs = sorted(zip(block.rows, statuses), key=lambda pair: tuple(_text(cell) for cell in pair[0]))
-    return replace(block, rows=tuple(row for row, _ in pairs),
-                   row_status=tuple(status for _, status in pairs) if block.row_status else ())
+    return replace(
+        block,
+        rows=tuple(row for row, _ in pairs),
+        row_status=tuple(status for _, status in pairs) if block.row_status else (),
+    )
 
 
 def _text(cell) -> str:

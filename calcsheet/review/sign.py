@@ -14,8 +14,9 @@ from calcsheet.review.states import CURRENT, lower_roles, role_states
 from calcsheet.load.sheet_keys import ROLES, iso_date
 
 
-def sign(path: Path, role: str, name: str, date: str | None, accept_failing: bool = False, *,
-         build_sheet, write_file) -> tuple[str, str]:
+def sign(
+    path: Path, role: str, name: str, date: str | None, accept_failing: bool = False, *, build_sheet, write_file
+) -> tuple[str, str]:
     """Write ``signoff.<role> = { name, date, fingerprint }`` into ``path``; returns (fingerprint, date).
     ``build_sheet`` and ``write_file`` are the pipeline's (the command line passes them): review sits beside
     the pipeline and does not import it, so the layers stay one-way."""
@@ -32,16 +33,28 @@ def sign(path: Path, role: str, name: str, date: str | None, accept_failing: boo
     info, value = built.derivation.model.sheet, built.sheet.review.fingerprint
     where = f"signoff.{role}"
     if not built.derivation.passed and not accept_failing:
-        raise InputError("not signed: the sheet's criteria or verification fail (build it to see which); "
-                         "give --accept-failing to sign a failing sheet knowingly", where, str(path))
+        raise InputError(
+            "not signed: the sheet's criteria or verification fail (build it to see which); "
+            "give --accept-failing to sign a failing sheet knowingly",
+            where,
+            str(path),
+        )
     states = {s.role: s for s in role_states(info.signoff, value)}
     for lower in lower_roles(role):
         if states[lower].state != CURRENT:
-            raise InputError(f"not signed: the {lower} sign-off is {states[lower].state}; roles sign in the order "
-                             f"{', '.join(ROLES)}, so sign {lower} for this content first", where, str(path))
+            raise InputError(
+                f"not signed: the {lower} sign-off is {states[lower].state}; roles sign in the order "
+                f"{', '.join(ROLES)}, so sign {lower} for this content first",
+                where,
+                str(path),
+            )
     if info.revisions and info.revisions[-1].date and when < info.revisions[-1].date:
-        raise InputError(f"{when} is before the date of revision {info.revisions[-1].revision} "
-                         f"({info.revisions[-1].date}): a sign-off cannot predate what it signs", "--date", str(path))
+        raise InputError(
+            f"{when} is before the date of revision {info.revisions[-1].revision} "
+            f"({info.revisions[-1].date}): a sign-off cannot predate what it signs",
+            "--date",
+            str(path),
+        )
     text = path.read_text(encoding="utf-8")
     write_file(path, with_signature(text, role, name.strip(), when, value, str(path)))
     return value, when

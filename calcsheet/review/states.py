@@ -31,7 +31,7 @@ def role_states(signoffs: tuple[SignOff, ...], fingerprint: str) -> tuple[RoleSt
 
 def lower_roles(role: str) -> tuple[str, ...]:
     """The roles that sign before ``role``."""
-    return ROLES[:ROLES.index(role)]
+    return ROLES[: ROLES.index(role)]
 
 
 def not_current(states: tuple[RoleState, ...], roles: tuple[str, ...]) -> tuple[RoleState, ...]:

@@ -27,8 +27,16 @@ class SheetStatus:
 
 def sheet_status(built) -> SheetStatus:
     info, review = built.derivation.model.sheet, built.sheet.review
-    return SheetStatus(str(built.path), info.number, info.revision, info.status, bool(built.derivation.passed),
-                       review.fingerprint, role_states(info.signoff, review.fingerprint), review.problem)
+    return SheetStatus(
+        str(built.path),
+        info.number,
+        info.revision,
+        info.status,
+        bool(built.derivation.passed),
+        review.fingerprint,
+        role_states(info.signoff, review.fingerprint),
+        review.problem,
+    )
 
 
 def status_line(s: SheetStatus) -> str:
@@ -41,11 +49,27 @@ def status_line(s: SheetStatus) -> str:
 
 
 def status_json(statuses: list[SheetStatus]) -> str:
-    rows = [{"file": s.file, "number": s.number, "revision": s.revision, "status": s.status,
-             "verdict": "pass" if s.passed else "fail", "fingerprint": s.fingerprint, "problem": s.problem,
-             "signoff": {r.role: {"state": r.state, "name": r.signoff.name, "date": r.signoff.date,
-                                  "signed_fingerprint": r.signoff.fingerprint} for r in s.roles}}
-            for s in statuses]
+    rows = [
+        {
+            "file": s.file,
+            "number": s.number,
+            "revision": s.revision,
+            "status": s.status,
+            "verdict": "pass" if s.passed else "fail",
+            "fingerprint": s.fingerprint,
+            "problem": s.problem,
+            "signoff": {
+                r.role: {
+                    "state": r.state,
+                    "name": r.signoff.name,
+                    "date": r.signoff.date,
+                    "signed_fingerprint": r.signoff.fingerprint,
+                }
+                for r in s.roles
+            },
+        }
+        for s in statuses
+    ]
     return json.dumps({"sheets": rows}, indent=2, sort_keys=True, ensure_ascii=False) + "\n"
 
 

@@ -12,10 +12,26 @@ from calcsheet.mathtext import derivative_latex, symbol_latex
 from calcsheet.source import expressions as ex
 
 _LEVEL = {"+": 1, "-": 1, "*": 2, "/": 2, "^": 4}
-_CALLS = {"exp": r"\exp", "log": r"\ln", "ln": r"\ln", "log10": r"\log_{10}", "sin": r"\sin", "cos": r"\cos",
-          "tan": r"\tan", "asin": r"\arcsin", "acos": r"\arccos", "atan": r"\arctan", "arcsin": r"\arcsin",
-          "arccos": r"\arccos", "arctan": r"\arctan", "sinh": r"\sinh", "cosh": r"\cosh", "tanh": r"\tanh",
-          "erf": r"\operatorname{erf}", "step": r"\operatorname{step}"}
+_CALLS = {
+    "exp": r"\exp",
+    "log": r"\ln",
+    "ln": r"\ln",
+    "log10": r"\log_{10}",
+    "sin": r"\sin",
+    "cos": r"\cos",
+    "tan": r"\tan",
+    "asin": r"\arcsin",
+    "acos": r"\arccos",
+    "atan": r"\arctan",
+    "arcsin": r"\arcsin",
+    "arccos": r"\arccos",
+    "arctan": r"\arctan",
+    "sinh": r"\sinh",
+    "cosh": r"\cosh",
+    "tanh": r"\tanh",
+    "erf": r"\operatorname{erf}",
+    "step": r"\operatorname{step}",
+}
 
 
 def equation_latex(equation: ex.Equation) -> str:

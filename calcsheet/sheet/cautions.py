@@ -6,31 +6,42 @@ from calcsheet.formatting import number
 from calcsheet.model import Model
 from calcsheet.source.units import registry
 
-GENERAL = ("This sheet does not replace review by a licensed engineer. Local codes, standards and "
-           "licensed practice govern any use of its results.")
+GENERAL = (
+    "This sheet does not replace review by a licensed engineer. Local codes, standards and "
+    "licensed practice govern any use of its results."
+)
 
 # Common practice, no source: contact with surfaces much above about 45 degC can burn, so any
 # temperature past that in the model earns the hot-surface note.
 HOT_SURFACE_KELVIN = 318.15
 
-ELECTRICAL = ("Stored electrical energy: treat the circuit as live until its voltage has been "
-              "measured at a safe level with a proven tester; follow the local electrical safety "
-              "rules for isolation and discharge.")
+ELECTRICAL = (
+    "Stored electrical energy: treat the circuit as live until its voltage has been "
+    "measured at a safe level with a proven tester; follow the local electrical safety "
+    "rules for isolation and discharge."
+)
 # Common practice, no source: a coil's current cannot change at once, so opening its circuit drives
 # v = L di/dt across the opening contact until the current finds a path.
-INDUCTIVE = ("Inductive energy: a coil's current cannot stop at once. Opening its circuit, on purpose or by a "
-             "fault, drives a voltage L·di/dt across the opening contact that can far exceed the supply, until "
-             "the current finds a path (an arc, or a person). Give the coil a suppression path rated for its "
-             "current and energy (freewheeling diode, varistor or RC snubber), and follow the local electrical "
-             "safety rules for isolation.")
-HEAT = ("Hot surfaces: parts above about 45 degC can burn on contact; keep guards, warning signs "
-        "and protective equipment as local rules require until the part has been measured cool.")
-PRESSURE = ("Stored pressure energy: do not open or work on the system until it is verified "
-            "depressurised according to the local pressure-equipment rules.")
+INDUCTIVE = (
+    "Inductive energy: a coil's current cannot stop at once. Opening its circuit, on purpose or by a "
+    "fault, drives a voltage L·di/dt across the opening contact that can far exceed the supply, until "
+    "the current finds a path (an arc, or a person). Give the coil a suppression path rated for its "
+    "current and energy (freewheeling diode, varistor or RC snubber), and follow the local electrical "
+    "safety rules for isolation."
+)
+HEAT = (
+    "Hot surfaces: parts above about 45 degC can burn on contact; keep guards, warning signs "
+    "and protective equipment as local rules require until the part has been measured cool."
+)
+PRESSURE = (
+    "Stored pressure energy: do not open or work on the system until it is verified "
+    "depressurised according to the local pressure-equipment rules."
+)
 
 
-def hazard_notes(model: Model, response: tuple[float, ...] = (),
-                 steps: tuple[tuple[str, str, str], ...] = ()) -> tuple[str, ...]:
+def hazard_notes(
+    model: Model, response: tuple[float, ...] = (), steps: tuple[tuple[str, str, str], ...] = ()
+) -> tuple[str, ...]:
     """Hazard notes for what the model holds; ``response`` is the unknown's computed values (SI), ``steps``
     the coil voltage L di/dt just before and just after each switch, as shown ((at, before, after))."""
     dims = {_dim(p.quantity.units) for p in model.parameters} | {_dim(model.unknown.unit)}
@@ -39,8 +50,13 @@ def hazard_notes(model: Model, response: tuple[float, ...] = (),
     if dims & {_dim("F"), _dim("C")} or (dims & {_dim("V"), _dim("A")} and not inductive):  # stored charge
         notes.append(ELECTRICAL)
     if inductive:
-        notes.append(INDUCTIVE + "".join(f" At the switch at {at} the coil voltage L·di/dt steps from {before} to "
-                                         f"{after}." for at, before, after in steps))
+        notes.append(
+            INDUCTIVE
+            + "".join(
+                f" At the switch at {at} the coil voltage L·di/dt steps from {before} to {after}."
+                for at, before, after in steps
+            )
+        )
     if _dim(model.unknown.unit) == _dim("K") and max((_hottest(model),) + tuple(response)) > HOT_SURFACE_KELVIN:
         notes.append(HEAT)
     if dims & {_dim("Pa")}:

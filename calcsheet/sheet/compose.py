@@ -7,11 +7,27 @@ import string
 import sympy as sp
 
 from calcsheet.derive.derivation import Derivation
-from calcsheet.derive.numbers import APPROACHES_FINAL, MODEL_STOPS, MOVES_AWAY, OVERFLOWS, SETTLES_SHORT, \
-    SOLUTION_ENDS, SEARCH_SCALES
+from calcsheet.derive.numbers import (
+    APPROACHES_FINAL,
+    MODEL_STOPS,
+    MOVES_AWAY,
+    OVERFLOWS,
+    SETTLES_SHORT,
+    SOLUTION_ENDS,
+    SEARCH_SCALES,
+)
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, NOT_FINITE_AT_START
-from calcsheet.derive.numbers import FINAL_GROWS, FINAL_LIMIT_OF_R_OVER_P, FINAL_LIMIT_OF_SOLUTION, \
-    FINAL_NOT_DECAYING, FINAL_OSCILLATES, FINAL_OUT_OF_TIME, FINAL_UNDETERMINED, FINAL_UNSETTLED, TAU_VARYING
+from calcsheet.derive.numbers import (
+    FINAL_GROWS,
+    FINAL_LIMIT_OF_R_OVER_P,
+    FINAL_LIMIT_OF_SOLUTION,
+    FINAL_NOT_DECAYING,
+    FINAL_OSCILLATES,
+    FINAL_OUT_OF_TIME,
+    FINAL_UNDETERMINED,
+    FINAL_UNSETTLED,
+    TAU_VARYING,
+)
 from calcsheet.derive.extremes import FINAL_VALUE, FORCING_JUMP, STATIONARY, SWITCH, WINDOW_END
 from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
@@ -19,8 +35,22 @@ from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
 from calcsheet.sheet.as_written import equation_latex
 from calcsheet.sheet.check_words import check_row, checks_lead, quadrature_words
-from calcsheet.sheet.document import (Equation, Field, ItemList, Labels, Math, Note, Outcome, Paragraph, Review,
-                                      Section, Sheet, SignOffLine, Table, TitleBlock)
+from calcsheet.sheet.document import (
+    Equation,
+    Field,
+    ItemList,
+    Labels,
+    Math,
+    Note,
+    Outcome,
+    Paragraph,
+    Review,
+    Section,
+    Sheet,
+    SignOffLine,
+    Table,
+    TitleBlock,
+)
 from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression, reproducing_expression
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_words, whatif_words
@@ -57,7 +87,6 @@ class _Notation:
         return Equation(Math(" = ".join(tex_parts), " = ".join(text_parts)), label)
 
 
-
 def compose(d: Derivation) -> Sheet:
     n = _Notation(d)
     shown = [(key, build) for key, build in STEPS if key not in OPTIONAL_STEPS or OPTIONAL_STEPS[key](d)]
@@ -67,12 +96,19 @@ def compose(d: Derivation) -> Sheet:
         raise AssertionError("a step builder's section key differs from its place in STEPS")
     numbered = tuple(Section(s.key, s.title, s.blocks, n.step_numbers[s.key]) for s in steps)
     response = Section("response", "Response at a glance", (response_figure(d),))
-    return Sheet(title_block=title_block(d.model.sheet), labels=sheet_labels(), outcome=_outcome(d),
-                 sections=(response, _basis(d)) + numbered,
-                 cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)),
-                 signoff=tuple(SignOffLine(s.role, s.name, s.date) for s in d.model.sheet.signoff),
-                 revisions=d.model.sheet.revisions, metadata=_metadata(d), record=build_record(d, n),
-                 source_name=d.model.path, style=d.model.sheet.style)
+    return Sheet(
+        title_block=title_block(d.model.sheet),
+        labels=sheet_labels(),
+        outcome=_outcome(d),
+        sections=(response, _basis(d)) + numbered,
+        cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)),
+        signoff=tuple(SignOffLine(s.role, s.name, s.date) for s in d.model.sheet.signoff),
+        revisions=d.model.sheet.revisions,
+        metadata=_metadata(d),
+        record=build_record(d, n),
+        source_name=d.model.path,
+        style=d.model.sheet.style,
+    )
 
 
 def _metadata(d: Derivation) -> tuple[tuple[str, str], ...]:
@@ -80,8 +116,13 @@ def _metadata(d: Derivation) -> tuple[tuple[str, str], ...]:
     revision = f", revision {info.revision}" if info.revision else ""
     subject = f"Calculation {info.number}{revision}" if info.number else ""
     date = info.date or max((r.date for r in info.revisions if r.date), default="")
-    pairs = (("title", info.title), ("author", info.originator), ("subject", subject),
-             ("keywords", info.number), ("date", date))
+    pairs = (
+        ("title", info.title),
+        ("author", info.originator),
+        ("subject", subject),
+        ("keywords", info.number),
+        ("date", date),
+    )
     return tuple((k, v) for k, v in pairs if v)
 
 
@@ -94,56 +135,102 @@ def reviewed(sheet: Sheet, info, fingerprint: str, states, blockers) -> Sheet:
     """The sheet with its fingerprint and each sign-off's state in words (facts from calcsheet/review/)."""
     shown = fingerprint[:12]
     stale = [s for s in states if s.state == "stale"]
-    lines = tuple(SignOffLine(s.signoff.role, s.signoff.name, s.signoff.date, s.state, _STATE_WORDS[s.state],
-                              _stale_reason(s.signoff, fingerprint) if s.state == "stale" else "") for s in states)
+    lines = tuple(
+        SignOffLine(
+            s.signoff.role,
+            s.signoff.name,
+            s.signoff.date,
+            s.state,
+            _STATE_WORDS[s.state],
+            _stale_reason(s.signoff, fingerprint) if s.state == "stale" else "",
+        )
+        for s in states
+    )
     head = ""
     if stale:
         roles = " and ".join(s.role for s in stale)
-        head = (f"NOT CHECKED: the content changed after the {roles} sign-off{'s' if len(stale) > 1 else ''}; "
-                "those signatures do not cover these results.")
+        head = (
+            f"NOT CHECKED: the content changed after the {roles} sign-off{'s' if len(stale) > 1 else ''}; "
+            "those signatures do not cover these results."
+        )
     problem = ""
     if blockers:
         missing = ", ".join(f"{s.role} is {s.state}" for s in blockers)
-        problem = (f"marked issued, but {missing}: an issued sheet needs current prepared, checked and approved "
-                   "sign-offs")
+        problem = (
+            f"marked issued, but {missing}: an issued sheet needs current prepared, checked and approved sign-offs"
+        )
         head = " ".join(part for part in (head, f"NOT FOR ISSUE: {problem}.") if part)
     outcome = sheet.outcome if not head else Outcome(False, f"{head} {sheet.outcome.text}", sheet.outcome.lines)
     keywords = ", ".join(part for part in (info.number, f"fingerprint {fingerprint}") if part)
     metadata = tuple(pair for pair in sheet.metadata if pair[0] != "keywords") + (("keywords", keywords),)
-    record = {**sheet.record, "fingerprint": fingerprint, "status": info.status,
-              "signoff": [{"role": s.role, "name": s.signoff.name, "date": s.signoff.date, "state": s.state,
-                           "signed_fingerprint": s.signoff.fingerprint} for s in states]}
+    record = {
+        **sheet.record,
+        "fingerprint": fingerprint,
+        "status": info.status,
+        "signoff": [
+            {
+                "role": s.role,
+                "name": s.signoff.name,
+                "date": s.signoff.date,
+                "state": s.state,
+                "signed_fingerprint": s.signoff.fingerprint,
+            }
+            for s in states
+        ],
+    }
     from dataclasses import replace
 
-    return replace(sheet, signoff=lines, outcome=outcome, metadata=metadata, record=record,
-                   review=Review(fingerprint, shown, bool(stale), STALE_MARK if stale else "", problem))
+    return replace(
+        sheet,
+        signoff=lines,
+        outcome=outcome,
+        metadata=metadata,
+        record=record,
+        review=Review(fingerprint, shown, bool(stale), STALE_MARK if stale else "", problem),
+    )
 
 
 def _stale_reason(signoff, fingerprint: str) -> str:
-    return (f"content changed since signed on {signoff.date or 'an unstated date'} "
-            f"(signed {signoff.fingerprint[:12]}…, now {fingerprint[:12]}…): re-check required")
+    return (
+        f"content changed since signed on {signoff.date or 'an unstated date'} "
+        f"(signed {signoff.fingerprint[:12]}…, now {fingerprint[:12]}…): re-check required"
+    )
 
 
 # ----------------------------------------------------------------------------- front matter
 def title_block(info) -> TitleBlock:
     """The sheet's identity from the input's [sheet] table, each entry with its label."""
-    return TitleBlock(info.title, number=Field("Calculation", info.number), revision=Field("Revision", info.revision),
-                      project=Field("Project", info.project), originator=Field("Originator", info.originator),
-                      status=Field("Status", info.status))
+    return TitleBlock(
+        info.title,
+        number=Field("Calculation", info.number),
+        revision=Field("Revision", info.revision),
+        project=Field("Project", info.project),
+        originator=Field("Originator", info.originator),
+        status=Field("Status", info.status),
+    )
 
 
 def sheet_labels() -> Labels:
     """The words every writer shows around the content (headings, table heads, running heads)."""
     return Labels(
-        sheet="Calculation sheet", outcome="Outcome", step="Step",
-        revisions="Revisions", revision_columns=("Revision", "Date", "Description"),
-        signoff="Sign-off", signoff_columns=("Role", "Name", "Date", "Signature"), cautions="Caution",
+        sheet="Calculation sheet",
+        outcome="Outcome",
+        step="Step",
+        revisions="Revisions",
+        revision_columns=("Revision", "Date", "Description"),
+        signoff="Sign-off",
+        signoff_columns=("Role", "Name", "Date", "Signature"),
+        cautions="Caution",
         notes=(("caution", "Caution"), ("warning", "Warning"), ("method", "Method")),
         figure="Figure",
         figure_summary="{title}: {y_label} against {x_label}, from {first:.4g} to {last:.4g}; {curve} curve points, "
-                       "{independent} independent points, {levels} horizontal and {limits} vertical guides",
-        page="Page", of="of", footer="Prepared with calcsheet. Review by a licensed engineer governs any use.",
-        signoff_state="State", fingerprint="Fingerprint")
+        "{independent} independent points, {levels} horizontal and {limits} vertical guides",
+        page="Page",
+        of="of",
+        footer="Prepared with calcsheet. Review by a licensed engineer governs any use.",
+        signoff_state="State",
+        fingerprint="Fingerprint",
+    )
 
 
 def _outcome(d: Derivation) -> Outcome:
@@ -153,16 +240,25 @@ def _outcome(d: Derivation) -> Outcome:
     unassessed = [v for v in verdicts if _status(v) == "not assessed"]
     verified = d.verification.passed
     if not_valid:
-        head = ("The model is not valid for this case: " + " ".join(finding_text(n, d.model.kind) for n in not_valid)
-                + (" The criteria are not assessed." if verdicts else ""))
+        head = (
+            "The model is not valid for this case: "
+            + " ".join(finding_text(n, d.model.kind) for n in not_valid)
+            + (" The criteria are not assessed." if verdicts else "")
+        )
     elif not verdicts:
         head = "No acceptance criteria stated."
     elif failed or unassessed:
-        head = " ".join(part for part in (
-            f"{len(failed)} of {len(verdicts)} criteria FAIL." if failed else "",
-            f"{len(unassessed)} of {len(verdicts)} criteria not assessed: they depend on the response after the "
-            "model stops holding." if unassessed else ""
-        ) if part)
+        head = " ".join(
+            part
+            for part in (
+                f"{len(failed)} of {len(verdicts)} criteria FAIL." if failed else "",
+                f"{len(unassessed)} of {len(verdicts)} criteria not assessed: they depend on the response after the "
+                "model stops holding."
+                if unassessed
+                else "",
+            )
+            if part
+        )
     else:
         head = "The criterion passes." if len(verdicts) == 1 else f"All {len(verdicts)} criteria pass."
     worst, held = outcome_words(d)
@@ -171,8 +267,7 @@ def _outcome(d: Derivation) -> Outcome:
     head = whatif_words(d.model) + head
     head += " Verification passed." if verified else " Verification FAILED: do not rely on these results."
     lines = tuple(f"{_STATUS_WORDS[_status(v)]}: {v.criterion.text}" for v in verdicts)
-    return Outcome(passed=not not_valid and not failed and not unassessed and verified and held, text=head,
-                   lines=lines)
+    return Outcome(passed=not not_valid and not failed and not unassessed and verified and held, text=head, lines=lines)
 
 
 _STATUS_WORDS = {"pass": "PASS", "fail": "FAIL", "not assessed": "NOT ASSESSED"}
@@ -201,21 +296,39 @@ def _basis(d: Derivation) -> Section:
 # --------------------------------------------------------------------------------- steps
 def _governing(d: Derivation, n: _Notation) -> Section:
     m = d.model
-    rows = tuple((Math(latex(p.symbol), p.name), p.text, f"{number(p.si)} {_si_text(p)}".rstrip(),
-                  p.source or "not stated", p.note) for p in m.parameters)
+    rows = tuple(
+        (
+            Math(latex(p.symbol), p.name),
+            p.text,
+            f"{number(p.si)} {_si_text(p)}".rstrip(),
+            p.source or "not stated",
+            p.note,
+        )
+        for p in m.parameters
+    )
     blocks = _kind_blocks(m.kind) if m.kind else []
     blocks += [
-        Paragraph(f"The model {'this gives' if m.kind else 'as stated in the input'}, with {m.unknown.name} in "
-                  f"{m.unknown.unit_text or 'no unit'} as the unknown and {m.variable.name} in "
-                  f"{m.variable.unit_text or 'no unit'} as the variable:"),
+        Paragraph(
+            f"The model {'this gives' if m.kind else 'as stated in the input'}, with {m.unknown.name} in "
+            f"{m.unknown.unit_text or 'no unit'} as the unknown and {m.variable.name} in "
+            f"{m.variable.unit_text or 'no unit'} as the variable:"
+        ),
         Equation(Math(equation_latex(m.equation), m.equation_text), "from the law" if m.kind else "as stated"),
         Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
-        Table(("Condition", "Value"),
-              ((Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
-                f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}"),),
-              "Initial condition"),
-        Paragraph("Units were checked on every additive term of the equation and on every function argument; "
-                  "all terms share one dimension."),
+        Table(
+            ("Condition", "Value"),
+            (
+                (
+                    Math(rf"{latex(n.y)}\left({latex(d.solution.x0)}\right)", f"{m.unknown.name}({d.solution.x0})"),
+                    f"{m.unknown.name} = {m.initial_value.text} at {m.variable.name} = {m.initial_at.text}",
+                ),
+            ),
+            "Initial condition",
+        ),
+        Paragraph(
+            "Units were checked on every additive term of the equation and on every function argument; "
+            "all terms share one dimension."
+        ),
     ]
     unused = [name for name in m.unused_parameters if not (m.kind and name in m.kind.slot_names)]
     if unused:
@@ -282,17 +395,28 @@ def _classification(d: Derivation, n: _Notation) -> Section:
     y, x = m.unknown.name, m.variable.name
     rows = (
         ("Order", "1", f"the highest derivative is d{y}/d{x}"),
-        ("Linearity", "linear", f"{y} and d{y}/d{x} appear only to the first power, never multiplied together "
-                                "or inside a function"),
+        (
+            "Linearity",
+            "linear",
+            f"{y} and d{y}/d{x} appear only to the first power, never multiplied together or inside a function",
+        ),
         _forcing_row(c, m),
-        ("Coefficients", "constant" if c.constant_coefficients else "varying",
-         f"p does not depend on {x}" if c.constant_coefficients else f"p depends on {x}"),
+        (
+            "Coefficients",
+            "constant" if c.constant_coefficients else "varying",
+            f"p does not depend on {x}" if c.constant_coefficients else f"p depends on {x}",
+        ),
     )
-    return Section("classification", "Classification", (
-        Table(("Property", "Finding", "Reason"), rows),
-        Paragraph("A first-order linear ordinary differential equation: it is solved by the integrating-factor "
-                  "method."),
-    ))
+    return Section(
+        "classification",
+        "Classification",
+        (
+            Table(("Property", "Finding", "Reason"), rows),
+            Paragraph(
+                "A first-order linear ordinary differential equation: it is solved by the integrating-factor method."
+            ),
+        ),
+    )
 
 
 def _forcing_row(c, m) -> tuple[str, str, str]:
@@ -302,27 +426,44 @@ def _forcing_row(c, m) -> tuple[str, str, str]:
     if c.homogeneous:
         return "Forcing", "homogeneous", f"r({x}) = 0: no term free of {y}"
     if c.homogeneous_with_values:
-        zeros = ", ".join(f"{p.name} = {p.text}" for p in m.parameters if p.si == 0 and sp.Symbol(p.name) in
-                          {sp.Symbol(s.name) for s in c.r.free_symbols})
-        return ("Forcing", "forced as written; homogeneous with the stated values",
-                f"r({x}) = {plain(c.r)} has a term free of {y}, which is 0 with the stated values"
-                + (f" ({zeros})" if zeros else "") + ": the response is the natural response alone")
+        zeros = ", ".join(
+            f"{p.name} = {p.text}"
+            for p in m.parameters
+            if p.si == 0 and sp.Symbol(p.name) in {sp.Symbol(s.name) for s in c.r.free_symbols}
+        )
+        return (
+            "Forcing",
+            "forced as written; homogeneous with the stated values",
+            f"r({x}) = {plain(c.r)} has a term free of {y}, which is 0 with the stated values"
+            + (f" ({zeros})" if zeros else "")
+            + ": the response is the natural response alone",
+        )
     return "Forcing", "forced", f"a term free of {y} drives the response"
 
 
 def _standard_form(d: Derivation, n: _Notation) -> Section:
     c = d.classification
     p, r = sp.Symbol("p"), sp.Symbol("r")
-    return Section("standard_form", "Standard form", (
-        Paragraph(f"Divide by the coefficient of {n.dy.text}, a = {plain(c.a)}, and collect the terms in "
-                  f"{d.model.unknown.name} on the left (from this step on, terms and factors are in the order the "
-                  "algebra gives them, no longer as written):"),
-        n.eq(rf"{n.dy.latex} + p\,{latex(n.y)}", f"{n.dy.text} + p*{n.y}", (r"r", "r"), label="form"),
-        n.eq(latex(p), "p", c.p),
-        n.eq(latex(r), "r", c.r),
-        n.eq(rf"{n.dy.latex} + {n.tex(_times(c.p, n.y))}", f"{n.dy.text} + {plain(_times(c.p, n.y))}", c.r,
-             label="standard form"),
-    ))
+    return Section(
+        "standard_form",
+        "Standard form",
+        (
+            Paragraph(
+                f"Divide by the coefficient of {n.dy.text}, a = {plain(c.a)}, and collect the terms in "
+                f"{d.model.unknown.name} on the left (from this step on, terms and factors are in the order the "
+                "algebra gives them, no longer as written):"
+            ),
+            n.eq(rf"{n.dy.latex} + p\,{latex(n.y)}", f"{n.dy.text} + p*{n.y}", (r"r", "r"), label="form"),
+            n.eq(latex(p), "p", c.p),
+            n.eq(latex(r), "r", c.r),
+            n.eq(
+                rf"{n.dy.latex} + {n.tex(_times(c.p, n.y))}",
+                f"{n.dy.text} + {plain(_times(c.p, n.y))}",
+                c.r,
+                label="standard form",
+            ),
+        ),
+    )
 
 
 def _integrating_factor(d: Derivation, n: _Notation) -> Section:
@@ -331,17 +472,31 @@ def _integrating_factor(d: Derivation, n: _Notation) -> Section:
     blocks = []
     if s.special_case:
         taken = ", ".join(f"{k} = {v}" for k, v in s.special_case)
-        blocks.append(Note("method", f"The general integral of p divides by a quantity that the stated values make "
-                                     f"zero; the solution therefore takes {taken}, which gives p = {plain(s.p)} and "
-                                     f"r = {plain(s.r)}."))
+        blocks.append(
+            Note(
+                "method",
+                f"The general integral of p divides by a quantity that the stated values make "
+                f"zero; the solution therefore takes {taken}, which gives p = {plain(s.p)} and "
+                f"r = {plain(s.r)}.",
+            )
+        )
     blocks += [
         Paragraph(f"The integrating factor is the exponential of the integral of p over {x}:"),
-        n.eq(latex(mu), "mu", (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
-             *_distinct(sp.exp(s.P, evaluate=False), s.mu)),
-        Paragraph(f"Since dμ/d{x} = p μ, multiplying the standard form by μ turns its left side into an "
-                  "exact derivative:"),
-        n.eq(rf"\frac{{d}}{{d{latex(x)}}}\left(\mu\,{latex(n.y)}\right)", f"d(mu*{n.y})/d{x}",
-             (r"\mu\,r", "mu*r"), s.mu_r),
+        n.eq(
+            latex(mu),
+            "mu",
+            (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
+            *_distinct(sp.exp(s.P, evaluate=False), s.mu),
+        ),
+        Paragraph(
+            f"Since dμ/d{x} = p μ, multiplying the standard form by μ turns its left side into an exact derivative:"
+        ),
+        n.eq(
+            rf"\frac{{d}}{{d{latex(x)}}}\left(\mu\,{latex(n.y)}\right)",
+            f"d(mu*{n.y})/d{x}",
+            (r"\mu\,r", "mu*r"),
+            s.mu_r,
+        ),
     ]
     return Section("integrating_factor", "Integrating factor", tuple(blocks))
 
@@ -350,20 +505,32 @@ def _integration(d: Derivation, n: _Notation) -> Section:
     s, x = d.solution, n.x
     blocks = [
         Paragraph(f"Integrate both sides over {x}; {s.constant} is the constant of integration:"),
-        n.eq(rf"\mu\,{latex(n.y)}", f"mu*{n.y}", (rf"\int \mu\,r\,d{latex(x)} + {latex(s.constant)}",
-                                                 f"integral of mu*r d{x} + {s.constant}"),
-             s.antiderivative + s.constant),
+        n.eq(
+            rf"\mu\,{latex(n.y)}",
+            f"mu*{n.y}",
+            (rf"\int \mu\,r\,d{latex(x)} + {latex(s.constant)}", f"integral of mu*r d{x} + {s.constant}"),
+            s.antiderivative + s.constant,
+        ),
         Paragraph("Divide by μ for the general solution:"),
         n.eq(n.yx_latex, n.yx_text, s.general, label="general solution"),
     ]
     if not s.closed_form:
         reasons = "; ".join(_FALLBACK_WORDS[code] for code in s.fallback_codes)
-        blocks.append(Note("method", f"No closed form for part of the integral: {reasons}. That part is "
-                                     "kept as a definite integral from the initial point and evaluated numerically "
-                                     f"(step {n.step_numbers['numbers']})."))
+        blocks.append(
+            Note(
+                "method",
+                f"No closed form for part of the integral: {reasons}. That part is "
+                "kept as a definite integral from the initial point and evaluated numerically "
+                f"(step {n.step_numbers['numbers']}).",
+            )
+        )
     if s.branches:
-        blocks.append(Note("method", "sympy split the integral into cases; the stated values select the case "
-                                     + "; ".join(s.branches) + "."))
+        blocks.append(
+            Note(
+                "method",
+                "sympy split the integral into cases; the stated values select the case " + "; ".join(s.branches) + ".",
+            )
+        )
     return Section("integration", "Integration and general solution", tuple(blocks))
 
 
@@ -371,9 +538,12 @@ def _initial_condition(d: Derivation, n: _Notation) -> Section:
     s, m = d.solution, d.model
     y0 = (latex(s.y0), s.y0.name)
     blocks = [
-        Paragraph(f"The input gives {m.unknown.name} = {m.initial_value.text} at {m.variable.name} = "
-                  f"{m.initial_at.text}; write it {s.y0.name}" + ("" if s.x0 == 0 else f" at {s.x0}") +
-                  f" and solve the general solution there for {s.constant}:"),
+        Paragraph(
+            f"The input gives {m.unknown.name} = {m.initial_value.text} at {m.variable.name} = "
+            f"{m.initial_at.text}; write it {s.y0.name}"
+            + ("" if s.x0 == 0 else f" at {s.x0}")
+            + f" and solve the general solution there for {s.constant}:"
+        ),
         n.eq(rf"{latex(n.y)}\left({latex(s.x0)}\right)", f"{m.unknown.name}({s.x0})", y0),
         n.eq(latex(s.constant), s.constant.name, s.constant_value),
         Paragraph("The particular solution:"),
@@ -386,16 +556,20 @@ def _split(d: Derivation, n: _Notation) -> Section:
     s, m, num = d.solution, d.model, d.numbers
     name = m.unknown.name
     blocks = [
-        Paragraph(f"Natural response: the part of the form {s.constant}/μ, fixed by the initial condition, that the "
-                  "system produces on its own. Forced response: the part sustained by the forcing r."),
+        Paragraph(
+            f"Natural response: the part of the form {s.constant}/μ, fixed by the initial condition, that the "
+            "system produces on its own. Forced response: the part sustained by the forcing r."
+        ),
         n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", s.natural, label="natural"),
         n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
     ]
     how = _FINAL_WORDS[num.final_value_note].format(x=m.variable.name)
     if num.final_value is None and num.valid_until is not None:  # not "grows without bound": the model ends first
         at, why = num.valid_until
-        how = (f"none within the model: {limit_words(m.kind, why)} at {m.variable.name} = "
-               f"{in_units(at, m.variable)}, and the model says nothing after that")
+        how = (
+            f"none within the model: {limit_words(m.kind, why)} at {m.variable.name} = "
+            f"{in_units(at, m.variable)}, and the model says nothing after that"
+        )
     if num.final_value is not None:
         blocks.append(Paragraph(f"Final value: {name} tends to {in_units(num.final_value, m.unknown)} ({how})."))
     else:
@@ -408,23 +582,41 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
     values = {**m.numeric_values(), **s.initial_values(m)}
     si_y, si_x = _si_unit_text(m.unknown), _si_unit_text(m.variable)
     blocks = [
-        Paragraph(f"Values substituted in SI units ({m.variable.name} in {si_x or 'no unit'}, "
-                  f"{m.unknown.name} in {si_y or 'no unit'}); results are converted back to the units asked for."),
-        n.eq(n.yx_latex, n.yx_text, reproducing_expression(
-            s.particular, values, n.x, [(v.at.si, in_units(v.y, m.unknown)) for v in num.values], m.unknown)),
+        Paragraph(
+            f"Values substituted in SI units ({m.variable.name} in {si_x or 'no unit'}, "
+            f"{m.unknown.name} in {si_y or 'no unit'}); results are converted back to the units asked for."
+        ),
+        n.eq(
+            n.yx_latex,
+            n.yx_text,
+            reproducing_expression(
+                s.particular, values, n.x, [(v.at.si, in_units(v.y, m.unknown)) for v in num.values], m.unknown
+            ),
+        ),
     ]
     blocks += _time_constant_blocks(d, n, values)
     if num.sine is not None:
         blocks.append(_steady_sine_table(d))
     if d.quadrature is not None:
-        blocks.append(Note("method", f"The integral term is evaluated by {quadrature_words()}. Largest error "
-                                     "estimate over every evaluation made for this sheet: "
-                                     f"{bound(d.quadrature.largest_error)} {si_y}".rstrip() + "."))
+        blocks.append(
+            Note(
+                "method",
+                f"The integral term is evaluated by {quadrature_words()}. Largest error "
+                "estimate over every evaluation made for this sheet: "
+                f"{bound(d.quadrature.largest_error)} {si_y}".rstrip()
+                + ".",
+            )
+        )
         if getattr(d.quadrature, "troubled", 0):
-            blocks.append(Note("warning", f"In {d.quadrature.troubled} of {d.quadrature.evaluations} evaluations the "
-                                          "quadrature reported that it could not reach its tolerance within its "
-                                          "bound of work; those values may be less accurate than stated. The "
-                                          "independent integration in the verification step decides."))
+            blocks.append(
+                Note(
+                    "warning",
+                    f"In {d.quadrature.troubled} of {d.quadrature.evaluations} evaluations the "
+                    "quadrature reported that it could not reach its tolerance within its "
+                    "bound of work; those values may be less accurate than stated. The "
+                    "independent integration in the verification step decides.",
+                )
+            )
     if num.values:
         blocks.append(values_table(m, num.values))
     if num.reach:
@@ -433,12 +625,22 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
         at, why = num.valid_until
         what = limit_words(m.kind, why)
         late = [v.at.text for v in num.values if v.at.si > at]
-        blocks.append(Note("warning", f"{what.capitalize()} at {m.variable.name} = {in_units(at, m.variable)}; the "
-                                      "model does not hold after that, so the plot and the level search stop there"
-                                      + (f". Values past it ({', '.join(late)}) do not apply." if late else ".")))
+        blocks.append(
+            Note(
+                "warning",
+                f"{what.capitalize()} at {m.variable.name} = {in_units(at, m.variable)}; the "
+                "model does not hold after that, so the plot and the level search stop there"
+                + (f". Values past it ({', '.join(late)}) do not apply." if late else "."),
+            )
+        )
     if num.domain_end is not None:
-        blocks.append(Note("warning", f"The solution stops existing near {m.variable.name} = "
-                                      f"{in_units(num.domain_end, m.variable)} (a coefficient becomes singular)."))
+        blocks.append(
+            Note(
+                "warning",
+                f"The solution stops existing near {m.variable.name} = "
+                f"{in_units(num.domain_end, m.variable)} (a coefficient becomes singular).",
+            )
+        )
     if num.verdicts:
         blocks.append(criteria_table(m, num.verdicts))
     return Section("numbers", "Numbers", tuple(blocks))
@@ -452,16 +654,24 @@ def values_table(m, values) -> Table:
     past = [not getattr(v, "applies", True) for v in values]
     if not any(past):
         return Table((m.variable.name, m.unknown.name), rows, f"Values of {m.unknown.name}")
-    return Table((m.variable.name, m.unknown.name, "Remark"),
-                 tuple(row + (PAST_LIMIT if late else "",) for row, late in zip(rows, past)),
-                 f"Values of {m.unknown.name}", row_status=tuple("fail" if late else "" for late in past),
-                 status_column=2)
+    return Table(
+        (m.variable.name, m.unknown.name, "Remark"),
+        tuple(row + (PAST_LIMIT if late else "",) for row, late in zip(rows, past)),
+        f"Values of {m.unknown.name}",
+        row_status=tuple("fail" if late else "" for late in past),
+        status_column=2,
+    )
 
 
 def reach_table(m, reaches) -> Table:
-    return Table(("Level", f"First reached at {m.variable.name} =", "Remark"),
-                 tuple((r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached",
-                        _reach_remark(r, m)) for r in reaches), "Levels reached after the initial point")
+    return Table(
+        ("Level", f"First reached at {m.variable.name} =", "Remark"),
+        tuple(
+            (r.level.text, in_units(r.x, m.variable) if r.x is not None else "not reached", _reach_remark(r, m))
+            for r in reaches
+        ),
+        "Levels reached after the initial point",
+    )
 
 
 def _reach_remark(r, m) -> str:
@@ -471,12 +681,16 @@ def _reach_remark(r, m) -> str:
         return ""
     searched = f"up to {SEARCH_SCALES} natural scales past the initial point"
     if code == MODEL_STOPS:
-        return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the model stops "
-                f"holding ({limit_words(m.kind, m.kind.limit[1] if m.kind and m.kind.limit else '')}); the model says "
-                "nothing after that")
+        return (
+            f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the model stops "
+            f"holding ({limit_words(m.kind, m.kind.limit[1] if m.kind and m.kind.limit else '')}); the model says "
+            "nothing after that"
+        )
     if code == OVERFLOWS:
-        return (f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the response grows "
-                "past the floating-point range")
+        return (
+            f"not reached before {m.variable.name} = {in_units(r.stop, m.variable)}, where the response grows "
+            "past the floating-point range"
+        )
     if code == SOLUTION_ENDS:
         return f"not reached before the solution stops existing near {m.variable.name} = {in_units(r.stop, m.variable)}"
     if code == APPROACHES_FINAL:
@@ -484,16 +698,20 @@ def _reach_remark(r, m) -> str:
     if code == SETTLES_SHORT:
         return f"not reached {searched}; the response settles at its final value short of it"
     if code == MOVES_AWAY:
-        return ("not reached after the initial point: the response starts on this level and leaves it without "
-                "coming back across it")
+        return (
+            "not reached after the initial point: the response starts on this level and leaves it without "
+            "coming back across it"
+        )
     return f"not reached {searched}"
 
 
 def criteria_table(m, verdicts) -> Table:
-    return Table(("Criterion", "Check", "Found", "Result"),
-                 tuple((v.criterion.text, v.criterion.check, _found(v, m), _result(v)) for v in verdicts),
-                 "Acceptance criteria",
-                 row_status=tuple({"pass": "pass", "fail": "fail"}.get(_status(v), "") for v in verdicts))
+    return Table(
+        ("Criterion", "Check", "Found", "Result"),
+        tuple((v.criterion.text, v.criterion.check, _found(v, m), _result(v)) for v in verdicts),
+        "Acceptance criteria",
+        row_status=tuple({"pass": "pass", "fail": "fail"}.get(_status(v), "") for v in verdicts),
+    )
 
 
 def _result(verdict) -> str:
@@ -504,22 +722,39 @@ def _result(verdict) -> str:
 
 
 def checks_table(checks, caption: str = "") -> Table:
-    return Table(("Check", "Method", "Result", "Detail"), tuple(check_row(c) for c in checks), caption,
-                 row_status=tuple("pass" if c.passed else "fail" for c in checks), status_column=2)
+    return Table(
+        ("Check", "Method", "Result", "Detail"),
+        tuple(check_row(c) for c in checks),
+        caption,
+        row_status=tuple("pass" if c.passed else "fail" for c in checks),
+        status_column=2,
+    )
 
 
 def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
     num, m = d.numbers, d.model
     if num.time_constant is None:
         word = _constant_word(d)
-        why = (f"p varies with {m.variable.name}, so there is no single {word}" if num.time_constant_note == TAU_VARYING
-               else f"p is not positive: the natural response does not decay, so there is no {word}")
+        why = (
+            f"p varies with {m.variable.name}, so there is no single {word}"
+            if num.time_constant_note == TAU_VARYING
+            else f"p is not positive: the natural response does not decay, so there is no {word}"
+        )
         return [Paragraph(f"{word.capitalize()}: none; {why}.")]
     shown = in_units(num.time_constant, m.variable)
     tau = sp.Symbol("tau")
     by_hand = _by_hand(num.time_constant_expr, m)
-    return [n.eq(latex(tau), "tau", (r"\frac{1}{p}", "1/p"), *_distinct(tau, num.time_constant_expr)[1:],
-                 *([by_hand] if by_hand else []), (_quantity_latex(shown), shown), label=_constant_word(d))]
+    return [
+        n.eq(
+            latex(tau),
+            "tau",
+            (r"\frac{1}{p}", "1/p"),
+            *_distinct(tau, num.time_constant_expr)[1:],
+            *([by_hand] if by_hand else []),
+            (_quantity_latex(shown), shown),
+            label=_constant_word(d),
+        )
+    ]
 
 
 def _by_hand(expr, m):
@@ -554,8 +789,11 @@ def _steady_sine_table(d: Derivation) -> Table:
         ("Phase lag", "atan(ωτ)", f"{number(sine.phase_lag_deg)} deg"),
         ("Transient below 1 %", "τ ln 100", in_units(sine.settled_after, m.variable)),
     )
-    return Table(("Quantity", "Formula", "Value"), rows,
-                 "Steady sinusoidal response of the lag, per unit static gain (first-order lag; common practice)")
+    return Table(
+        ("Quantity", "Formula", "Value"),
+        rows,
+        "Steady sinusoidal response of the lag, per unit static gain (first-order lag; common practice)",
+    )
 
 
 def _constant_word(d: Derivation) -> str:
@@ -571,7 +809,7 @@ _FALLBACK_WORDS = {
     NO_CLOSED_FORM: "sympy found no closed form for this integral",
     BUDGET_EXCEEDED: f"symbolic integration did not finish within its budget of {INTEGRATE_SECONDS:g} s",
     NOT_FINITE_AT_START: "the antiderivative found has no finite value at the initial point, so the constant of "
-                         "integration cannot be taken from it there",
+    "integration cannot be taken from it there",
 }
 _FINAL_WORDS = {
     FINAL_LIMIT_OF_SOLUTION: "limit of the particular solution as {x} grows without bound",
@@ -605,8 +843,13 @@ def difference(si: float, declared) -> str:
 
 
 # How an extreme was found (derive/extremes.py codes), in the sheet's and the record's words.
-EXTREME_METHOD_WORDS = {STATIONARY: "stationary point", FORCING_JUMP: "jump in the forcing", SWITCH: "switch",
-                        WINDOW_END: "end of window", FINAL_VALUE: "final value"}
+EXTREME_METHOD_WORDS = {
+    STATIONARY: "stationary point",
+    FORCING_JUMP: "jump in the forcing",
+    SWITCH: "switch",
+    WINDOW_END: "end of window",
+    FINAL_VALUE: "final value",
+}
 _EXTREME_KIND_WORDS = {"max": "largest", "min": "smallest"}
 
 
@@ -628,34 +871,55 @@ def extreme_window(e, m) -> str:
 def extremes_blocks(m, extremes, slope_equations=()) -> list:
     """The Extremes step's content: the derivative, the stationary points, each extreme with how it was found."""
     y, x = m.unknown.name, m.variable.name
-    blocks = [Paragraph(f"Over a window, {y} is largest or smallest where d{y}/d{x} = 0 (a stationary point), where "
-                        f"d{y}/d{x} jumps (a step or pulse edge in the forcing, a switch), or at an end of the window. "
-                        + ("The derivative of the particular solution:" if slope_equations else
-                           "Each interval's particular solution gives d{y}/d{x} there, and the switch instants are "
-                           "compared too.".format(y=y, x=x))), *slope_equations]
+    blocks = [
+        Paragraph(
+            f"Over a window, {y} is largest or smallest where d{y}/d{x} = 0 (a stationary point), where "
+            f"d{y}/d{x} jumps (a step or pulse edge in the forcing, a switch), or at an end of the window. "
+            + (
+                "The derivative of the particular solution:"
+                if slope_equations
+                else "Each interval's particular solution gives d{y}/d{x} there, and the switch instants are "
+                "compared too.".format(y=y, x=x)
+            )
+        ),
+        *slope_equations,
+    ]
     corners = sorted({(c, how) for e in extremes for c, how in e.corners})
     if corners:
-        blocks.append(Paragraph(f"d{y}/d{x} jumps at " + ", ".join(
-            f"{x} = {in_units(c, m.variable)} ({EXTREME_METHOD_WORDS[how]})" for c, how in corners)
-            + "; the response is compared there too."))
+        blocks.append(
+            Paragraph(
+                f"d{y}/d{x} jumps at "
+                + ", ".join(f"{x} = {in_units(c, m.variable)} ({EXTREME_METHOD_WORDS[how]})" for c, how in corners)
+                + "; the response is compared there too."
+            )
+        )
     points = sorted({(s.at, s.value, s.root) for e in extremes for s in e.stationary}, key=lambda p: p[0])
     solved = all(e.solved for e in extremes)
-    how = ("sympy solved d{y}/d{x} = 0 between the jumps" if solved else
-           "the sign changes of d{y}/d{x} were bracketed on a grid between the jumps and each refined by Brent's "
-           "method (scipy brentq)").format(y=y, x=x)
+    how = (
+        "sympy solved d{y}/d{x} = 0 between the jumps"
+        if solved
+        else "the sign changes of d{y}/d{x} were bracketed on a grid between the jumps and each refined by Brent's "
+        "method (scipy brentq)"
+    ).format(y=y, x=x)
     if points:
-        rows = tuple((in_units(at, m.variable), in_units(value, m.unknown),
-                      plain(root) if root is not None else "bracketed and refined") for at, value, root in points)
-        blocks.append(Table((f"{x}", f"{y}", f"Root of d{y}/d{x} = 0 (SI)"), rows,
-                            f"Stationary points: {how}"))
+        rows = tuple(
+            (
+                in_units(at, m.variable),
+                in_units(value, m.unknown),
+                plain(root) if root is not None else "bracketed and refined",
+            )
+            for at, value, root in points
+        )
+        blocks.append(Table((f"{x}", f"{y}", f"Root of d{y}/d{x} = 0 (SI)"), rows, f"Stationary points: {how}"))
     else:
         blocks.append(Paragraph(f"No stationary point inside the windows: {how}, and found none."))
     rows = []
     for e in extremes:
         value = in_units(e.value, m.unknown) if e.value is not None else "does not exist (grows without bound)"
         at = in_units(e.at, m.variable) if e.at is not None else "-"
-        rows.append((f"{_EXTREME_KIND_WORDS[e.kind]} {y}", extreme_window(e, m), value, at,
-                     EXTREME_METHOD_WORDS[e.method]))
+        rows.append(
+            (f"{_EXTREME_KIND_WORDS[e.kind]} {y}", extreme_window(e, m), value, at, EXTREME_METHOD_WORDS[e.method])
+        )
     blocks.append(Table(("Extreme", f"Over {x}", "Value", f"At {x} =", "Given by"), tuple(rows), f"Extremes of {y}"))
     for e in extremes:
         if e.open_ended:
@@ -668,17 +932,25 @@ def _tail_note(e, m) -> Note:
     response is monotone, so it lies between its value there and its final value."""
     y, x = m.unknown.name, m.variable.name
     tail = in_units(e.tail_from, m.variable)
-    lead = (f"For {x} >= {in_units(e.start, m.variable)}: past {x} = {tail} (the last stationary point, jump or the "
-            f"window's start) d{y}/d{x} keeps one sign, so {y} is monotone there and lies between its value at "
-            f"{x} = {tail} and its limit.")
+    lead = (
+        f"For {x} >= {in_units(e.start, m.variable)}: past {x} = {tail} (the last stationary point, jump or the "
+        f"window's start) d{y}/d{x} keeps one sign, so {y} is monotone there and lies between its value at "
+        f"{x} = {tail} and its limit."
+    )
     if e.method == FINAL_VALUE and e.value is not None:
-        return Note("method", f"{lead} It moves towards its final value, {in_units(e.value, m.unknown)}, up to the end "
-                              f"of the analysed range ({x} = {in_units(e.end, m.variable)}): the final value decides "
-                              f"the {_EXTREME_KIND_WORDS[e.kind]} value, approached but never reached.")
+        return Note(
+            "method",
+            f"{lead} It moves towards its final value, {in_units(e.value, m.unknown)}, up to the end "
+            f"of the analysed range ({x} = {in_units(e.end, m.variable)}): the final value decides "
+            f"the {_EXTREME_KIND_WORDS[e.kind]} value, approached but never reached.",
+        )
     if e.method == FINAL_VALUE:
         return Note("warning", f"{lead} It has no final value: the {_EXTREME_KIND_WORDS[e.kind]} value does not exist.")
-    return Note("method", f"{lead} The {_EXTREME_KIND_WORDS[e.kind]} value is taken before the tail, at {x} = "
-                          f"{in_units(e.at, m.variable)}.")
+    return Note(
+        "method",
+        f"{lead} The {_EXTREME_KIND_WORDS[e.kind]} value is taken before the tail, at {x} = "
+        f"{in_units(e.at, m.variable)}.",
+    )
 
 
 def _extremes(d: Derivation, n: _Notation) -> Section:
@@ -686,12 +958,25 @@ def _extremes(d: Derivation, n: _Notation) -> Section:
     values = {**m.numeric_values(), **s.initial_values(m)}
     if s.closed_form:
         slope = sp.diff(s.particular, n.x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
-        equations = [n.eq(n.dy.latex, n.dy.text, numeric_expression(slope, values),
-                          label="derivative" + (" away from the jumps" if s.particular.has(sp.Heaviside) else ""))]
+        equations = [
+            n.eq(
+                n.dy.latex,
+                n.dy.text,
+                numeric_expression(slope, values),
+                label="derivative" + (" away from the jumps" if s.particular.has(sp.Heaviside) else ""),
+            )
+        ]
     else:
         p, r = (s.p if s.p is not None else c.p), (s.r if s.r is not None else c.r)
-        equations = [n.eq(n.dy.latex, n.dy.text, (rf"r - p\,{latex(n.y)}", f"r - p*{n.y}"),
-                          numeric_expression(r - p * n.y, values), label="from the standard form")]
+        equations = [
+            n.eq(
+                n.dy.latex,
+                n.dy.text,
+                (rf"r - p\,{latex(n.y)}", f"r - p*{n.y}"),
+                numeric_expression(r - p * n.y, values),
+                label="from the standard form",
+            )
+        ]
     return Section("extremes", "Extremes", tuple(extremes_blocks(m, d.numbers.extremes, equations)))
 
 
@@ -721,16 +1006,29 @@ def _si_unit_text(declared) -> str:
 
 
 def _verification(d: Derivation, n: _Notation) -> Section:
-    return Section("verification", "Verification", (
-        Paragraph(checks_lead(len(d.verification.checks))),
-        checks_table(d.verification.checks),
-    ))
+    return Section(
+        "verification",
+        "Verification",
+        (
+            Paragraph(checks_lead(len(d.verification.checks))),
+            checks_table(d.verification.checks),
+        ),
+    )
 
 
 # The numbered steps in their order: (section key, builder). Cross-references use the numbers this gives.
-STEPS = (("governing", _governing), ("classification", _classification), ("standard_form", _standard_form),
-         ("integrating_factor", _integrating_factor), ("integration", _integration),
-         ("initial_condition", _initial_condition), ("split", _split), ("numbers", _numbers),
-         ("extremes", _extremes), ("margin", lambda d, n: margin_section(d)), ("verification", _verification))
+STEPS = (
+    ("governing", _governing),
+    ("classification", _classification),
+    ("standard_form", _standard_form),
+    ("integrating_factor", _integrating_factor),
+    ("integration", _integration),
+    ("initial_condition", _initial_condition),
+    ("split", _split),
+    ("numbers", _numbers),
+    ("extremes", _extremes),
+    ("margin", lambda d, n: margin_section(d)),
+    ("verification", _verification),
+)
 # shown only when the input asks for them (extremes), or gives parameters ranges (margin)
 OPTIONAL_STEPS = {"extremes": lambda d: bool(d.numbers.extremes), "margin": has_margin}

@@ -14,12 +14,12 @@ def response_figure(d) -> Figure:
     curve = tuple((x_of(x), y_of(y)) for x, y in d.curve)
     start, end = num.span[0], d.curve[-1][0]
     independent = tuple((x_of(x), y_of(yi)) for x, _, yi in d.verification.compared if start <= x <= end)
-    points = tuple((x_of(v.at.si), y_of(v.y), f"{m.unknown.name}({v.at.text})") for v in num.values
-                   if start <= v.at.si <= end)  # a point past the plotted range stays in the tables only
+    points = tuple(
+        (x_of(v.at.si), y_of(v.y), f"{m.unknown.name}({v.at.text})") for v in num.values if start <= v.at.si <= end
+    )  # a point past the plotted range stays in the tables only
     extremes = _extreme_marks(m, num, start, end, x_of, y_of)
     levels = [Guide(y_of(r.level.si), f"level {r.level.text}", "") for r in num.reach]
-    crossings = tuple((x_of(r.x), y_of(r.level.si), "") for r in num.reach
-                      if r.x is not None and start <= r.x <= end)
+    crossings = tuple((x_of(r.x), y_of(r.level.si), "") for r in num.reach if r.x is not None and start <= r.x <= end)
     limits, point_limits = [], []
     beyond = [f"{m.unknown.name}({v.at.text})" for v in num.values if not start <= v.at.si <= end]
     for v in num.verdicts:
@@ -29,8 +29,15 @@ def response_figure(d) -> Figure:
             if not start <= c.argument.si <= end:
                 beyond.append(c.check)
             else:
-                point_limits.append(PointLimit(x_of(c.argument.si), y_of(c.limit.si), f"limit {c.check}", status,
-                                               "below" if c.operator in ("<", "<=") else "above"))
+                point_limits.append(
+                    PointLimit(
+                        x_of(c.argument.si),
+                        y_of(c.limit.si),
+                        f"limit {c.check}",
+                        status,
+                        "below" if c.operator in ("<", "<=") else "above",
+                    )
+                )
         elif subject.guide == "level":
             levels.append(Guide(y_of(c.limit.si), f"limit {c.check}", status))
         else:
@@ -39,19 +46,28 @@ def response_figure(d) -> Figure:
             levels.append(Guide(y_of(c.argument.si), f"level {c.argument.text}", ""))
     return Figure(
         title=f"Response of {m.unknown.name}",
-        x_label=_axis(m.variable), y_label=_axis(m.unknown),
-        curve=curve, independent=independent, points=points, levels=tuple(levels), limits=tuple(limits),
-        extremes=extremes, point_limits=tuple(point_limits), crossings=crossings,
+        x_label=_axis(m.variable),
+        y_label=_axis(m.unknown),
+        curve=curve,
+        independent=independent,
+        points=points,
+        levels=tuple(levels),
+        limits=tuple(limits),
+        extremes=extremes,
+        point_limits=tuple(point_limits),
+        crossings=crossings,
         switches=tuple((x_of(s.at.si), s.text) for s in m.switches if start <= s.at.si <= end),
-        caption=(f"Line: the particular solution; open circles: the independent numerical integration; "
-                 f"filled dots: the values asked for{'; triangles: the extremes found' if extremes else ''}"
-                 f"{'; crosses: where a level is first reached' if crossings else ''}"
-                 f"{'; dash-dotted grey lines: the switches' if m.switches else ''}"
-                 f"{'; a short bar: a limit at one point, coloured by its verdict' if point_limits else ''}. "
-                 f"Horizontal lines mark levels and limits on "
-                 f"{m.unknown.name}, vertical lines limits on {m.variable.name}: dotted grey for a level, "
-                 "solid green for a limit that passes, dashed red for one that fails."
-                 + (f" Past the plotted range, in the tables only: {', '.join(beyond)}." if beyond else "")),
+        caption=(
+            f"Line: the particular solution; open circles: the independent numerical integration; "
+            f"filled dots: the values asked for{'; triangles: the extremes found' if extremes else ''}"
+            f"{'; crosses: where a level is first reached' if crossings else ''}"
+            f"{'; dash-dotted grey lines: the switches' if m.switches else ''}"
+            f"{'; a short bar: a limit at one point, coloured by its verdict' if point_limits else ''}. "
+            f"Horizontal lines mark levels and limits on "
+            f"{m.unknown.name}, vertical lines limits on {m.variable.name}: dotted grey for a level, "
+            "solid green for a limit that passes, dashed red for one that fails."
+            + (f" Past the plotted range, in the tables only: {', '.join(beyond)}." if beyond else "")
+        ),
     )
 
 

@@ -8,8 +8,23 @@ from __future__ import annotations
 
 import math
 
-from calcsheet.derive.margin import (AT_EXTREME, BRACKETED, CORNERS, DIFFERENCE, FAILS_THROUGHOUT, HOLDS_THROUGHOUT,
-                                     IMPLICIT, MAX, MIN, SEARCHED, SOLVED, SYMBOLIC, TOO_MANY, Margin, limit_symbol)
+from calcsheet.derive.margin import (
+    AT_EXTREME,
+    BRACKETED,
+    CORNERS,
+    DIFFERENCE,
+    FAILS_THROUGHOUT,
+    HOLDS_THROUGHOUT,
+    IMPLICIT,
+    MAX,
+    MIN,
+    SEARCHED,
+    SOLVED,
+    SYMBOLIC,
+    TOO_MANY,
+    Margin,
+    limit_symbol,
+)
 from calcsheet.mathtext import latex, plain
 from calcsheet.sheet.document import Equation, Math, Note, Paragraph, Section, Table
 from calcsheet.sheet.quantities import in_units, number, record_value, rounded
@@ -21,12 +36,17 @@ SENSITIVITY_WORDS = {
     AT_EXTREME: "symbolic: ∂y/∂p at the point that gives the extreme",
     DIFFERENCE: "central difference of the numeric evaluation",
 }
-LIMIT_WORDS = {SOLVED: "solved in symbols (sympy), root checked numerically",
-               BRACKETED: "bracketed, then Brent's method on the numeric evaluation",
-               HOLDS_THROUGHOUT: "none: the criterion holds over the whole range searched",
-               FAILS_THROUGHOUT: "none: the criterion fails over the whole range searched"}
-WORST_WORDS = {CORNERS: "at a corner of the tolerance box", SEARCHED: "searched inside the box (signs change)",
-               TOO_MANY: "searched: more than 10 toleranced parameters"}
+LIMIT_WORDS = {
+    SOLVED: "solved in symbols (sympy), root checked numerically",
+    BRACKETED: "bracketed, then Brent's method on the numeric evaluation",
+    HOLDS_THROUGHOUT: "none: the criterion holds over the whole range searched",
+    FAILS_THROUGHOUT: "none: the criterion fails over the whole range searched",
+}
+WORST_WORDS = {
+    CORNERS: "at a corner of the tolerance box",
+    SEARCHED: "searched inside the box (signs change)",
+    TOO_MANY: "searched: more than 10 toleranced parameters",
+}
 
 
 def has_margin(d) -> bool:
@@ -37,17 +57,37 @@ def has_margin(d) -> bool:
 def margin_section(d, key: str = "margin", title: str = "Sensitivity and tolerances") -> Section:
     mg: Margin = d.margin
     m = d.model
-    blocks = [Paragraph("The input gives these parameters a range. Each result below is taken again with the "
-                        "parameters moved within their ranges; the symbolic solution above holds for every value "
-                        "in them, so it is evaluated with the new numbers rather than solved again."),
-              Table(("Parameter", "Nominal", "Range as stated", "Lowest", "Highest"),
-                    tuple((_parameter_name(t), t.parameter.text, t.parameter.spread, _shown(t, t.parameter.low),
-                           _shown(t, t.parameter.high)) for t in mg.parameters), "Tolerances")]
+    blocks = [
+        Paragraph(
+            "The input gives these parameters a range. Each result below is taken again with the "
+            "parameters moved within their ranges; the symbolic solution above holds for every value "
+            "in them, so it is evaluated with the new numbers rather than solved again."
+        ),
+        Table(
+            ("Parameter", "Nominal", "Range as stated", "Lowest", "Highest"),
+            tuple(
+                (
+                    _parameter_name(t),
+                    t.parameter.text,
+                    t.parameter.spread,
+                    _shown(t, t.parameter.low),
+                    _shown(t, t.parameter.high),
+                )
+                for t in mg.parameters
+            ),
+            "Tolerances",
+        ),
+    ]
     blocks += _sensitivity_blocks(mg, m)
     if mg.switched:
-        blocks.append(Note("method", "Switched model: every sensitivity is a central difference across the whole "
-                                     "switched response (each interval evaluated with the changed values and the next "
-                                     "started from where it ends), since each interval depends on those before it."))
+        blocks.append(
+            Note(
+                "method",
+                "Switched model: every sensitivity is a central difference across the whole "
+                "switched response (each interval evaluated with the changed values and the next "
+                "started from where it ends), since each interval depends on those before it.",
+            )
+        )
     if m.criteria:
         blocks += _worst_blocks(mg, m, d.numbers.verdicts)
         blocks += _limit_blocks(mg, m, d.numbers.verdicts)
@@ -61,20 +101,37 @@ def _sensitivity_blocks(mg: Margin, m) -> list:
         like = _like(m, probe.subject)
         unit = ratio_unit(like.unit_text, t.parameter.unit_text)
         derivative = s.derivative * like.scale / t.parameter.scale
-        rows.append((quantity_text(probe, m), _parameter_name(t), f"{number(derivative)} {unit}",
-                     "n/a (the quantity is zero)" if s.normalised is None else number(s.normalised, 3),
-                     SENSITIVITY_WORDS[s.method]))
+        rows.append(
+            (
+                quantity_text(probe, m),
+                _parameter_name(t),
+                f"{number(derivative)} {unit}",
+                "n/a (the quantity is zero)" if s.normalised is None else number(s.normalised, 3),
+                SENSITIVITY_WORDS[s.method],
+            )
+        )
         if s.expression is not None and s.expression != 0:
             shown.append((probe, t, s.expression))
-    blocks = [Paragraph("Sensitivities: the change of each result per unit change of each parameter, and normalised "
-                        "(∂y/∂p · p/y: per cent change of the result per per cent change of the parameter)."),
-              Table(("Result", "Parameter", "∂y/∂p", "Normalised", "How"), tuple(rows), "Sensitivities")]
+    blocks = [
+        Paragraph(
+            "Sensitivities: the change of each result per unit change of each parameter, and normalised "
+            "(∂y/∂p · p/y: per cent change of the result per per cent change of the parameter)."
+        ),
+        Table(("Result", "Parameter", "∂y/∂p", "Normalised", "How"), tuple(rows), "Sensitivities"),
+    ]
     for probe, t, expression in shown:
         name = "τ" if probe.subject == "time_constant" else "y_∞"
         tex = r"\tau" if probe.subject == "time_constant" else r"y_{\infty}"
-        blocks.append(Equation(Math(rf"\frac{{\partial {tex}}}{{\partial {latex(t.parameter.symbol)}}} = "
-                                    f"{latex(expression)}", f"d{name}/d{t.parameter.name} = {plain(expression)}"),
-                               "sensitivity"))
+        blocks.append(
+            Equation(
+                Math(
+                    rf"\frac{{\partial {tex}}}{{\partial {latex(t.parameter.symbol)}}} = "
+                    f"{latex(expression)}",
+                    f"d{name}/d{t.parameter.name} = {plain(expression)}",
+                ),
+                "sensitivity",
+            )
+        )
     return blocks
 
 
@@ -88,18 +145,35 @@ def _worst_blocks(mg: Margin, m, verdicts) -> list:
             continue
         value = in_units(w.value, like) if w.value is not None else _absent(v.criterion)
         margin = "n/a" if w.margin is None else difference_text(w.margin, like)
-        rows.append((v.criterion.check, in_units(v.actual, like) if v.actual is not None else _absent(v.criterion),
-                     value, corner_text(mg, w), "PASS" if w.passed else "FAIL", margin))
+        rows.append(
+            (
+                v.criterion.check,
+                in_units(v.actual, like) if v.actual is not None else _absent(v.criterion),
+                value,
+                corner_text(mg, w),
+                "PASS" if w.passed else "FAIL",
+                margin,
+            )
+        )
         status.append("pass" if w.passed else "fail")
     methods = sorted({w.method for w in mg.worst if w is not None})
-    blocks = [Paragraph(f"Worst case: each criterion is evaluated at every corner of the tolerance box "
-                        f"(2^{len(mg.parameters)} = {2 ** len(mg.parameters)} corners). The worst corner is taken as "
-                        "the worst case when each parameter moves the criterion the same way along every edge of the "
-                        f"box and none of {mg.interior_points} interior points spread evenly through it (a Halton "
-                        "sequence) is worse; otherwise the box is searched numerically (Powell's method, bounded), "
-                        "and the table says so. A criterion that fails at its worst case makes the sheet FAIL."),
-              Table(("Criterion", "Nominal", "Worst case", "At", "Verdict", "Margin"), tuple(rows),
-                    "Criteria at worst case", row_status=tuple(status), status_column=4)]
+    blocks = [
+        Paragraph(
+            f"Worst case: each criterion is evaluated at every corner of the tolerance box "
+            f"(2^{len(mg.parameters)} = {2 ** len(mg.parameters)} corners). The worst corner is taken as "
+            "the worst case when each parameter moves the criterion the same way along every edge of the "
+            f"box and none of {mg.interior_points} interior points spread evenly through it (a Halton "
+            "sequence) is worse; otherwise the box is searched numerically (Powell's method, bounded), "
+            "and the table says so. A criterion that fails at its worst case makes the sheet FAIL."
+        ),
+        Table(
+            ("Criterion", "Nominal", "Worst case", "At", "Verdict", "Margin"),
+            tuple(rows),
+            "Criteria at worst case",
+            row_status=tuple(status),
+            status_column=4,
+        ),
+    ]
     if any(mth != CORNERS for mth in methods):
         blocks.append(Note("method", "; ".join(f"{WORST_WORDS[mth]}" for mth in methods) + "."))
     return blocks
@@ -110,21 +184,41 @@ def _limit_blocks(mg: Margin, m, verdicts) -> list:
     for v, limits in zip(verdicts, mg.limits):
         for lv in limits:
             t = _toleranced(mg, lv.parameter)
-            rows.append((v.criterion.check, _parameter_name(t), _shown(t, lv.value) if lv.value is not None else "-",
-                         limit_reading(v, lv, t), LIMIT_WORDS[lv.method]))
+            rows.append(
+                (
+                    v.criterion.check,
+                    _parameter_name(t),
+                    _shown(t, lv.value) if lv.value is not None else "-",
+                    limit_reading(v, lv, t),
+                    LIMIT_WORDS[lv.method],
+                )
+            )
             if lv.equation is not None:
                 equations.append((v, t, lv))
-    blocks = [Paragraph("Limiting values: for each criterion and each parameter, the value at which the criterion "
-                        "just holds with every other parameter at its nominal value."),
-              Table(("Criterion", "Parameter", "Limiting value", "Reading", "How"), tuple(rows), "Limiting values")]
+    blocks = [
+        Paragraph(
+            "Limiting values: for each criterion and each parameter, the value at which the criterion "
+            "just holds with every other parameter at its nominal value."
+        ),
+        Table(("Criterion", "Parameter", "Limiting value", "Reading", "How"), tuple(rows), "Limiting values"),
+    ]
     for v, t, lv in equations:
         c = v.criterion
         at, level = (c.argument, c.limit) if c.subject == "value" else (c.limit, c.argument)
         start = f", {d_y0(mg, m)}" if c.subject != "time_constant" else ""
-        where = (f"with {m.variable.name} = {at.text}, {limit_symbol(m).name} = {level.text}{start}"
-                 if c.subject != "time_constant" else f"with τ = {c.limit.text}")
-        blocks.append(Equation(Math(f"{latex(t.parameter.symbol)} = {latex(lv.equation)}",
-                                    f"{t.parameter.name} = {plain(lv.equation)}"), f"limit of {c.check}"))
+        where = (
+            f"with {m.variable.name} = {at.text}, {limit_symbol(m).name} = {level.text}{start}"
+            if c.subject != "time_constant"
+            else f"with τ = {c.limit.text}"
+        )
+        blocks.append(
+            Equation(
+                Math(
+                    f"{latex(t.parameter.symbol)} = {latex(lv.equation)}", f"{t.parameter.name} = {plain(lv.equation)}"
+                ),
+                f"limit of {c.check}",
+            )
+        )
         blocks.append(Paragraph(f"{where}: {t.parameter.name} = {_shown(t, lv.value)}."))
     return blocks
 
@@ -156,13 +250,14 @@ def outcome_words(d) -> tuple[str, bool]:
     failing = [k for k in passing if mg.worst[k] is not None and not mg.worst[k].passed]
     if not passing:
         return "", mg.passed
-    head = (f"{len(passing)} {'criterion passes' if len(passing) == 1 else 'criteria pass'} at nominal; ")
+    head = f"{len(passing)} {'criterion passes' if len(passing) == 1 else 'criteria pass'} at nominal; "
     if not failing:
-        return head + ("it holds at worst case too." if len(passing) == 1 else "all hold at worst case too."), \
-            mg.passed
+        return head + ("it holds at worst case too." if len(passing) == 1 else "all hold at worst case too."), mg.passed
     corners = "; ".join(f"{verdicts[k].criterion.check} at {corner_text(mg, mg.worst[k])}" for k in failing)
-    return head + f"{len(failing)} of them {'fails' if len(failing) == 1 else 'fail'} at worst case ({corners}).", \
-        mg.passed
+    return (
+        head + f"{len(failing)} of them {'fails' if len(failing) == 1 else 'fail'} at worst case ({corners}).",
+        mg.passed,
+    )
 
 
 def whatif_words(m) -> str:
@@ -251,19 +346,30 @@ def margin_record(d) -> dict:
     if not has_margin(d):
         return {**record, "tolerances": [], "sensitivities": []}
     mg = d.margin
-    record["tolerances"] = [{"name": _parameter_name(t), "nominal": _param_value(t, t.nominal),
-                             "min": _param_value(t, t.parameter.low), "max": _param_value(t, t.parameter.high),
-                             "as_stated": t.parameter.spread} for t in mg.parameters]
+    record["tolerances"] = [
+        {
+            "name": _parameter_name(t),
+            "nominal": _param_value(t, t.nominal),
+            "min": _param_value(t, t.parameter.low),
+            "max": _param_value(t, t.parameter.high),
+            "as_stated": t.parameter.spread,
+        }
+        for t in mg.parameters
+    ]
     sensitivities = []
     for s in mg.sensitivities:
         probe, t = mg.quantities[s.quantity], _toleranced(mg, s.parameter)
         like = _like(m, probe.subject)
         unit = ratio_unit(like.unit_text, t.parameter.unit_text)
-        sensitivities.append({"quantity": quantity_text(probe, m), "parameter": _parameter_name(t),
-                              "derivative": {"value": rounded(s.derivative * like.scale / t.parameter.scale),
-                                             "unit": unit},
-                              "normalised": None if s.normalised is None else rounded(s.normalised),
-                              "method": s.method})
+        sensitivities.append(
+            {
+                "quantity": quantity_text(probe, m),
+                "parameter": _parameter_name(t),
+                "derivative": {"value": rounded(s.derivative * like.scale / t.parameter.scale), "unit": unit},
+                "normalised": None if s.normalised is None else rounded(s.normalised),
+                "method": s.method,
+            }
+        )
     record["sensitivities"] = sensitivities
     return record
 
@@ -276,15 +382,33 @@ def criteria_margin(d, criteria: list[dict]) -> list[dict]:
     result = []
     for entry, v, w, limits in zip(criteria, d.numbers.verdicts, mg.worst, mg.limits):
         like = _like(m, v.criterion.subject)
-        worst = None if w is None else {
-            "value": record_value(w.value, like), "verdict": "pass" if w.passed else "fail",
-            "margin": None if w.margin is None else {"value": rounded(w.margin * like.scale),
-                                                     "unit": _difference_unit(like.unit_text)},
-            "corner": {_parameter_name(_toleranced(mg, k)): side for k, side in w.corner}, "method": w.method}
-        result.append({**entry, "worst_case": worst, "limiting_values": [
-            {"parameter": _parameter_name(_toleranced(mg, lv.parameter)),
-             "value": _param_value(_toleranced(mg, lv.parameter), lv.value), "method": lv.method}
-            for lv in limits]})
+        worst = (
+            None
+            if w is None
+            else {
+                "value": record_value(w.value, like),
+                "verdict": "pass" if w.passed else "fail",
+                "margin": None
+                if w.margin is None
+                else {"value": rounded(w.margin * like.scale), "unit": _difference_unit(like.unit_text)},
+                "corner": {_parameter_name(_toleranced(mg, k)): side for k, side in w.corner},
+                "method": w.method,
+            }
+        )
+        result.append(
+            {
+                **entry,
+                "worst_case": worst,
+                "limiting_values": [
+                    {
+                        "parameter": _parameter_name(_toleranced(mg, lv.parameter)),
+                        "value": _param_value(_toleranced(mg, lv.parameter), lv.value),
+                        "method": lv.method,
+                    }
+                    for lv in limits
+                ],
+            }
+        )
     return result
 
 
@@ -292,4 +416,3 @@ def _param_value(t, si: float | None) -> dict | None:
     if si is None or not math.isfinite(si):
         return None
     return {"value": rounded(t.parameter.shown(si)), "unit": t.parameter.unit_text}
-

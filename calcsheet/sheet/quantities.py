@@ -41,8 +41,7 @@ def rounded(value: float) -> float:
 def numeric_expression(expr: sp.Expr, values: dict, digits: int = SIGNIFICANT) -> sp.Expr:
     """An expression with SI numbers in place of symbols, each shown to ``digits`` significant figures."""
     numeric = sp.N(expr.subs(values), 15)
-    return numeric.xreplace({f: sp.Float(float(f"{float(f):.{digits}g}"), digits)
-                             for f in numeric.atoms(sp.Float)})
+    return numeric.xreplace({f: sp.Float(float(f"{float(f):.{digits}g}"), digits) for f in numeric.atoms(sp.Float)})
 
 
 MOST_DIGITS = 10

@@ -15,8 +15,15 @@ from calcsheet.sheet.quantities import record_value, rounded
 RECORD_FORMAT = "calcsheet-record"
 RECORD_VERSION = 2
 SHEET_KEYS = ("title", "number", "revision", "project", "originator", "purpose", "references", "assumptions")
-INTERVAL_KEYS = ("kind", "classification", "solution", "time_constant", "final_value",
-                 "sinusoidal_steady_state", "verification")  # taken from each interval's own record
+INTERVAL_KEYS = (
+    "kind",
+    "classification",
+    "solution",
+    "time_constant",
+    "final_value",
+    "sinusoidal_steady_state",
+    "verification",
+)  # taken from each interval's own record
 
 
 def build_record(d, n) -> dict:
@@ -24,26 +31,41 @@ def build_record(d, n) -> dict:
     record = {
         "format": RECORD_FORMAT,
         "version": RECORD_VERSION,
-        "sheet": {k: getattr(m.sheet, k) if not isinstance(getattr(m.sheet, k), tuple) else list(getattr(m.sheet, k))
-                  for k in SHEET_KEYS},
+        "sheet": {
+            k: getattr(m.sheet, k) if not isinstance(getattr(m.sheet, k), tuple) else list(getattr(m.sheet, k))
+            for k in SHEET_KEYS
+        },
         "model": {
             "equation": m.equation_text,
             "unknown": {"name": m.unknown.name, "unit": m.unknown.unit_text},
             "variable": {"name": m.variable.name, "unit": m.variable.unit_text},
-            "parameters": [{"name": p.name, "value": p.text, "si": rounded(p.si), "source": p.source, "note": p.note}
-                           for p in m.parameters],
-            "initial": {"at": record_value(m.initial_at.si, m.variable),
-                        "value": record_value(m.initial_value.si, m.unknown)},
+            "parameters": [
+                {"name": p.name, "value": p.text, "si": rounded(p.si), "source": p.source, "note": p.note}
+                for p in m.parameters
+            ],
+            "initial": {
+                "at": record_value(m.initial_at.si, m.variable),
+                "value": record_value(m.initial_value.si, m.unknown),
+            },
         },
-        "kind": None if m.kind is None else {
-            "name": m.kind.name, "title": m.kind.title, "law": m.kind.law, "forcing": m.kind.forcing,
+        "kind": None
+        if m.kind is None
+        else {
+            "name": m.kind.name,
+            "title": m.kind.title,
+            "law": m.kind.law,
+            "forcing": m.kind.forcing,
             "findings": [_finding(n, m.kind) for n in m.kind.notes],
             "valid": not m.kind.not_valid,
         },
         "classification": {
-            "order": 1, "linear": True, "homogeneous": c.homogeneous,  # refused otherwise
+            "order": 1,
+            "linear": True,
+            "homogeneous": c.homogeneous,  # refused otherwise
             "homogeneous_with_values": c.homogeneous_with_values,
-            "constant_coefficients": c.constant_coefficients, "p": plain(c.p), "r": plain(c.r),
+            "constant_coefficients": c.constant_coefficients,
+            "p": plain(c.p),
+            "r": plain(c.r),
         },
         "solution": {
             "closed_form": s.closed_form,
@@ -53,13 +75,19 @@ def build_record(d, n) -> dict:
             "particular": {"latex": n.tex(s.particular), "text": plain(s.particular)},
             "natural": {"latex": n.tex(s.natural), "text": plain(s.natural)},
             "forced": {"latex": n.tex(s.forced), "text": plain(s.forced)},
-            "quadrature": None if d.quadrature is None else {
-                "method": quadrature_words(), "largest_error_estimate": bound(d.quadrature.largest_error),
-                "evaluations_with_warnings": getattr(d.quadrature, "troubled", 0)},
+            "quadrature": None
+            if d.quadrature is None
+            else {
+                "method": quadrature_words(),
+                "largest_error_estimate": bound(d.quadrature.largest_error),
+                "evaluations_with_warnings": getattr(d.quadrature, "troubled", 0),
+            },
         },
         "time_constant": record_value(num.time_constant, m.variable),
         "final_value": record_value(num.final_value, m.unknown),
-        "sinusoidal_steady_state": None if num.sine is None else {
+        "sinusoidal_steady_state": None
+        if num.sine is None
+        else {
             "amplitude_ratio": rounded(num.sine.amplitude_ratio),
             "phase_lag": {"value": rounded(num.sine.phase_lag_deg), "unit": "deg"},
             "transient_below_1_percent_after": record_value(num.sine.settled_after, m.variable),
@@ -83,14 +111,33 @@ def _with_margin(d, record: dict, results: dict) -> dict:
 def results_record(m, num) -> dict:
     """Values, levels reached and criteria, each number with its declared unit."""
     return {
-        "values": [{"at": record_value(v.at.si, m.variable), "value": record_value(v.y, m.unknown),
-                    "applies": getattr(v, "applies", True)} for v in num.values],
-        "reach": [{"target": record_value(r.level.si, m.unknown), "at": record_value(r.x, m.variable),
-                   "reason": None if r.x is not None else getattr(r, "code", None)} for r in num.reach],
-        "criteria": [{"text": v.criterion.text, "check": v.criterion.check, "passed": v.passed,
-                      "status": getattr(v, "status", "pass" if v.passed else "fail"),
-                      "not_assessed_because": getattr(v, "code", "") or None,
-                      "found": _found(v, m)} for v in num.verdicts],
+        "values": [
+            {
+                "at": record_value(v.at.si, m.variable),
+                "value": record_value(v.y, m.unknown),
+                "applies": getattr(v, "applies", True),
+            }
+            for v in num.values
+        ],
+        "reach": [
+            {
+                "target": record_value(r.level.si, m.unknown),
+                "at": record_value(r.x, m.variable),
+                "reason": None if r.x is not None else getattr(r, "code", None),
+            }
+            for r in num.reach
+        ],
+        "criteria": [
+            {
+                "text": v.criterion.text,
+                "check": v.criterion.check,
+                "passed": v.passed,
+                "status": getattr(v, "status", "pass" if v.passed else "fail"),
+                "not_assessed_because": getattr(v, "code", "") or None,
+                "found": _found(v, m),
+            }
+            for v in num.verdicts
+        ],
         "extremes": [_extreme(e, m) for e in getattr(num, "extremes", ())],
     }
 
@@ -99,10 +146,16 @@ def _extreme(e, m) -> dict:
     """One extreme: its kind, window and value in declared units, and what gave it (compose's words)."""
     from calcsheet.sheet.compose import EXTREME_METHOD_WORDS  # compose words every code; it imports this module
 
-    return {"type": e.kind, "of": m.unknown.name, "from": record_value(e.start, m.variable),
-            "to": record_value(e.end, m.variable), "open_ended": e.open_ended,
-            "value": record_value(e.value, m.unknown), "at": record_value(e.at, m.variable),
-            "method": EXTREME_METHOD_WORDS[e.method]}
+    return {
+        "type": e.kind,
+        "of": m.unknown.name,
+        "from": record_value(e.start, m.variable),
+        "to": record_value(e.end, m.variable),
+        "open_ended": e.open_ended,
+        "value": record_value(e.value, m.unknown),
+        "at": record_value(e.at, m.variable),
+        "method": EXTREME_METHOD_WORDS[e.method],
+    }
 
 
 def _finding(note, use) -> dict:
@@ -112,8 +165,7 @@ def _finding(note, use) -> dict:
 
 
 def verification_record(verification) -> dict:
-    return {"passed": verification.passed,
-            "checks": [_check_record(ch) for ch in verification.checks]}
+    return {"passed": verification.passed, "checks": [_check_record(ch) for ch in verification.checks]}
 
 
 def _check_record(check) -> dict:
@@ -135,8 +187,10 @@ def build_switched_record(sd, interval_records: list[dict]) -> dict:
         "version": RECORD_VERSION,
         "sheet": first["sheet"],
         "model": {key: first["model"][key] for key in ("unknown", "variable", "initial")},
-        "intervals": [_interval_record(interval, record, previous)
-                      for interval, record, previous in zip(sd.intervals, interval_records, before)],
+        "intervals": [
+            _interval_record(interval, record, previous)
+            for interval, record, previous in zip(sd.intervals, interval_records, before)
+        ],
         "across": {**results_record(m, sd.numbers), "verification": verification_record(sd.verification)},
         "passed": sd.passed,
     }
@@ -162,5 +216,11 @@ def _parameters_in_force(interval, parameters: list[dict], previous) -> list[dic
     before = {} if previous is None else {p.name: (p.text, p.si) for p in previous.derivation.model.parameters}
     now = {p.name: (p.text, p.si) for p in interval.derivation.model.parameters}
     carried = {name for name, _ in interval.carried}
-    return [{**entry, "changed": previous is not None and before.get(entry["name"]) != now[entry["name"]],
-             "carried": entry["name"] in carried} for entry in parameters]
+    return [
+        {
+            **entry,
+            "changed": previous is not None and before.get(entry["name"]) != now[entry["name"]],
+            "carried": entry["name"] in carried,
+        }
+        for entry in parameters
+    ]

@@ -18,8 +18,9 @@ def declared_parts(text, where: str) -> tuple[str, str]:
     if not isinstance(text, str):
         from calcsheet.source.text_rules import toml_kind
 
-        raise InputError(f"must be a name and a unit in brackets, in quotes, e.g. \"v [V]\", but found "
-                         f"{toml_kind(text)}", where)
+        raise InputError(
+            f'must be a name and a unit in brackets, in quotes, e.g. "v [V]", but found {toml_kind(text)}', where
+        )
     match = _DECLARED.fullmatch(text.strip())
     if not match:
         raise InputError(f"'{shortened(text)}' must be a name and a unit in brackets, e.g. \"v [V]\"", where)

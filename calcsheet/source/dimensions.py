@@ -13,8 +13,9 @@ from calcsheet.source.units import dimension_text, registry, same_dimension
 UnitOf = Callable[[str], pint.Unit]
 
 
-def check_equation(equation: ex.Equation, unit_of: UnitOf,
-                   derivative_unit: Callable[[ex.Derivative], pint.Unit]) -> pint.Unit:
+def check_equation(
+    equation: ex.Equation, unit_of: UnitOf, derivative_unit: Callable[[ex.Derivative], pint.Unit]
+) -> pint.Unit:
     """Check that every additive term on both sides has one dimension; return it."""
     terms = ex.additive_terms(equation.left) + ex.additive_terms(equation.right)
     return _common_dimension([node for _, node in terms], _Analyser(unit_of, derivative_unit))
@@ -50,7 +51,7 @@ class _Analyser:
     def call(self, node: ex.Call) -> pint.Unit:
         inner = self.unit(node.argument)
         if node.function in ("sqrt", "abs"):
-            return inner ** 0.5 if node.function == "sqrt" else inner
+            return inner**0.5 if node.function == "sqrt" else inner
         if node.function == "step":  # step(t - t_1): any dimension in, a pure number out
             return registry().dimensionless
         if not _dimensionless(inner):
@@ -64,15 +65,19 @@ class _Analyser:
         base = self.unit(node.left)
         exponent_unit = self.unit(node.right)
         if not _dimensionless(exponent_unit):
-            raise InputError(f"the exponent '{ex.render(node.right)}' must be dimensionless, "
-                             f"but has dimension {dimension_text(exponent_unit)}")
+            raise InputError(
+                f"the exponent '{ex.render(node.right)}' must be dimensionless, "
+                f"but has dimension {dimension_text(exponent_unit)}"
+            )
         if _dimensionless(base):
             return registry().dimensionless
         exponent = constant_value(node.right)
         if exponent is None:
-            raise InputError(f"'{ex.render(node)}': a quantity with dimension "
-                             f"{dimension_text(base)} can only be raised to a fixed number")
-        return base ** exponent
+            raise InputError(
+                f"'{ex.render(node)}': a quantity with dimension "
+                f"{dimension_text(base)} can only be raised to a fixed number"
+            )
+        return base**exponent
 
 
 def _common_dimension(nodes: list[ex.Node], analyser: _Analyser) -> pint.Unit:
@@ -163,10 +168,14 @@ class _AbsoluteSums:
         if second not in self.parameters:
             first, second = second, first  # name the parameter to rewrite, not the unknown
         number, _, unit = self.absolute[second].partition(" ")
-        hint = (f"\"{number} K\" or \"{number} delta_{unit.strip()}\"" if second in self.parameters and unit.strip()
-                else "K or delta_degC")
+        hint = (
+            f'"{number} K" or "{number} delta_{unit.strip()}"'
+            if second in self.parameters and unit.strip()
+            else "K or delta_degC"
+        )
         raise InputError(
             f"'{ex.render(node)}' adds two absolute temperatures ({first} = {self.absolute[first]}, "
             f"{second} = {self.absolute[second]}), and the sum of two temperatures on a scale with an offset "
             f"is no temperature; if {second} is a rise or a difference, write it as one: {hint}",
-            key=f"parameters.{second}" if second in self.parameters else "model.equation")
+            key=f"parameters.{second}" if second in self.parameters else "model.equation",
+        )

@@ -23,8 +23,26 @@ from typing import Union
 from calcsheet.errors import InputError
 
 FUNCTIONS = (
-    "exp", "log", "ln", "log10", "sqrt", "sin", "cos", "tan", "asin", "acos", "atan",
-    "arcsin", "arccos", "arctan", "sinh", "cosh", "tanh", "abs", "erf", "step",
+    "exp",
+    "log",
+    "ln",
+    "log10",
+    "sqrt",
+    "sin",
+    "cos",
+    "tan",
+    "asin",
+    "acos",
+    "atan",
+    "arcsin",
+    "arccos",
+    "arctan",
+    "sinh",
+    "cosh",
+    "tanh",
+    "abs",
+    "erf",
+    "step",
 )
 CONSTANTS = ("pi",)
 NAME_PATTERN = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")
@@ -39,7 +57,8 @@ _NUMBER = re.compile(r"(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?")
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
 _NAME_TEXT = r"[A-Za-z_][A-Za-z0-9_]*"
 _SECOND_DERIVATIVE = re.compile(
-    rf"d(?:\^?2|²)(?P<of>{_NAME_TEXT})\s*/\s*d(?P<wrt>{_NAME_TEXT}?)(?:\^?2|²)(?![A-Za-z0-9_])")
+    rf"d(?:\^?2|²)(?P<of>{_NAME_TEXT})\s*/\s*d(?P<wrt>{_NAME_TEXT}?)(?:\^?2|²)(?![A-Za-z0-9_])"
+)
 _FIRST_DERIVATIVE = re.compile(rf"d(?P<of>{_NAME_TEXT})\s*/\s*d(?P<wrt>{_NAME_TEXT})(?![A-Za-z0-9_])")
 _OPERATORS = ("**", "+", "-", "*", "/", "^", "(", ")", "=")
 
@@ -157,8 +176,10 @@ class _Parser:
         self.nesting += 1
         try:
             if self.nesting > MAX_NESTING:
-                raise InputError(f"the expression nests more than {MAX_NESTING} levels deep (parentheses, "
-                                 f"functions, signs or powers inside each other) in '{_shortened(self.text)}'")
+                raise InputError(
+                    f"the expression nests more than {MAX_NESTING} levels deep (parentheses, "
+                    f"functions, signs or powers inside each other) in '{_shortened(self.text)}'"
+                )
             return rule()
         finally:
             self.nesting -= 1
@@ -279,14 +300,16 @@ def _refuse_deep_tree(node: Node, text: str) -> None:
     while stack:
         current, depth = stack.pop()
         if depth > MAX_TREE_DEPTH:
-            raise InputError(f"the expression is more than {MAX_TREE_DEPTH} operations deep (a sum of more "
-                             f"than {MAX_TREE_DEPTH} terms, say) in '{_shortened(text)}'; write it more simply")
+            raise InputError(
+                f"the expression is more than {MAX_TREE_DEPTH} operations deep (a sum of more "
+                f"than {MAX_TREE_DEPTH} terms, say) in '{_shortened(text)}'; write it more simply"
+            )
         stack.extend((child, depth + 1) for child in children(current))
 
 
 def _shortened(text: str, limit: int = 60) -> str:
     text = " ".join(text.split())
-    return text if len(text) <= limit else text[:limit - 3] + "..."
+    return text if len(text) <= limit else text[: limit - 3] + "..."
 
 
 # -------------------------------------------------------------------------------- walking

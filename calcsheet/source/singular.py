@@ -29,9 +29,21 @@ class Values:
 
 
 _FUNCTIONS = {
-    "exp": math.exp, "log": math.log, "log10": math.log10, "sqrt": math.sqrt, "sin": math.sin,
-    "cos": math.cos, "tan": math.tan, "asin": math.asin, "acos": math.acos, "atan": math.atan,
-    "sinh": math.sinh, "cosh": math.cosh, "tanh": math.tanh, "abs": abs, "erf": math.erf,
+    "exp": math.exp,
+    "log": math.log,
+    "log10": math.log10,
+    "sqrt": math.sqrt,
+    "sin": math.sin,
+    "cos": math.cos,
+    "tan": math.tan,
+    "asin": math.asin,
+    "acos": math.acos,
+    "atan": math.atan,
+    "sinh": math.sinh,
+    "cosh": math.cosh,
+    "tanh": math.tanh,
+    "abs": abs,
+    "erf": math.erf,
     "step": lambda a: 1.0 if a >= 0 else 0.0,
 }
 
@@ -84,8 +96,13 @@ class _Checker:
             return None, varying
         if left is None or right is None:
             return None, varying
-        operation = {"+": lambda a, b: a + b, "-": lambda a, b: a - b, "*": lambda a, b: a * b,
-                     "/": lambda a, b: a / b, "^": _power}[node.op]
+        operation = {
+            "+": lambda a, b: a + b,
+            "-": lambda a, b: a - b,
+            "*": lambda a, b: a * b,
+            "/": lambda a, b: a / b,
+            "^": _power,
+        }[node.op]
         return self.finite(_apply(lambda: operation(left, right)), node, varying)
 
     def finite(self, result, node: ex.Node, varying: bool) -> tuple[float | None, bool]:
@@ -93,8 +110,11 @@ class _Checker:
             return result, varying
         if varying:  # at the initial point only; whether it holds later is the derivation's question
             return None, varying
-        raise InputError(f"'{_short(ex.render(node))}' is not a finite real number with the stated values "
-                         f"({_values_text(node, self.values)}): it {_why(result)}", "model.equation")
+        raise InputError(
+            f"'{_short(ex.render(node))}' is not a finite real number with the stated values "
+            f"({_values_text(node, self.values)}): it {_why(result)}",
+            "model.equation",
+        )
 
     def zero(self, part: ex.Node, varying: bool, what: str) -> None:
         """A zero where the equation divides: refuse it if a parameter's value of 0 causes it."""
@@ -107,10 +127,15 @@ class _Checker:
         term = f"the term '{_short(ex.render(self.term))}'" if self.term is not None else "the equation"
         if zeros:
             name = zeros[0]
-            raise ModelRefused(f"{name} = 0 makes the equation singular: in {term}, {what}{at} "
-                               f"({name} is stated as {self.values.parameters[name][1]})", f"parameters.{name}")
-        raise ModelRefused(f"the stated values ({_values_text(part, self.values)}) make the equation singular: "
-                           f"in {term}, {what}{at}", "model.equation")
+            raise ModelRefused(
+                f"{name} = 0 makes the equation singular: in {term}, {what}{at} "
+                f"({name} is stated as {self.values.parameters[name][1]})",
+                f"parameters.{name}",
+            )
+        raise ModelRefused(
+            f"the stated values ({_values_text(part, self.values)}) make the equation singular: in {term}, {what}{at}",
+            "model.equation",
+        )
 
     def derivative_coefficient(self, term: ex.Node) -> None:
         """The factors multiplying the derivative in a product: none may be zero."""
@@ -123,8 +148,11 @@ class _Checker:
                 continue
             value, varying = self.value(factor)
             if value == 0:
-                self.zero(factor, varying, f"the coefficient of {derivative.text} is zero there, and the "
-                                           "standard form divides by it")
+                self.zero(
+                    factor,
+                    varying,
+                    f"the coefficient of {derivative.text} is zero there, and the standard form divides by it",
+                )
 
 
 def _factors(node: ex.Node) -> tuple[list[ex.Node], list[ex.Node]]:
@@ -173,4 +201,4 @@ def _values_text(node: ex.Node, values: Values) -> str:
 
 
 def _short(text: str, limit: int = 80) -> str:
-    return text if len(text) <= limit else text[:limit - 3] + "..."
+    return text if len(text) <= limit else text[: limit - 3] + "..."

@@ -10,16 +10,28 @@ from calcsheet.errors import InputError
 from calcsheet.source import expressions as ex
 
 _FUNCTIONS: Mapping[str, Callable] = {
-    "exp": sp.exp, "log": sp.log, "log10": lambda a: sp.log(a, 10), "sqrt": sp.sqrt,
-    "sin": sp.sin, "cos": sp.cos, "tan": sp.tan, "asin": sp.asin, "acos": sp.acos,
-    "atan": sp.atan, "sinh": sp.sinh, "cosh": sp.cosh, "tanh": sp.tanh, "abs": sp.Abs,
+    "exp": sp.exp,
+    "log": sp.log,
+    "log10": lambda a: sp.log(a, 10),
+    "sqrt": sp.sqrt,
+    "sin": sp.sin,
+    "cos": sp.cos,
+    "tan": sp.tan,
+    "asin": sp.asin,
+    "acos": sp.acos,
+    "atan": sp.atan,
+    "sinh": sp.sinh,
+    "cosh": sp.cosh,
+    "tanh": sp.tanh,
+    "abs": sp.Abs,
     "erf": sp.erf,
     "step": sp.Heaviside,  # unit step: 0 before its argument reaches 0, 1 after
 }
 
 
-def to_sympy(node: ex.Node, symbols: Mapping[str, sp.Expr],
-             derivative: Callable[[ex.Derivative], sp.Expr] | None = None) -> sp.Expr:
+def to_sympy(
+    node: ex.Node, symbols: Mapping[str, sp.Expr], derivative: Callable[[ex.Derivative], sp.Expr] | None = None
+) -> sp.Expr:
     """Build the sympy expression for ``node``; names must be in ``symbols`` (or be ``pi``)."""
     if isinstance(node, ex.Number):
         return _number(node.text)
@@ -50,7 +62,7 @@ def to_sympy(node: ex.Node, symbols: Mapping[str, sp.Expr],
         if right == 0:
             raise InputError(f"division by zero in '{ex.render(node)}'")
         return left / right
-    return left ** right
+    return left**right
 
 
 def _number(text: str) -> sp.Expr:

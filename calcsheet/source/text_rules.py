@@ -81,8 +81,10 @@ def text_problem(text: str, multi_line: bool = False) -> str:
         return "holds a line break; this field is one line (only purpose and assumptions may have several)"
     found = _FORBIDDEN.search(text)
     if found:
-        return (f"holds the control or text-direction character U+{ord(found.group(0)):04X} at position "
-                f"{found.start() + 1}; write plain text")
+        return (
+            f"holds the control or text-direction character U+{ord(found.group(0)):04X} at position "
+            f"{found.start() + 1}; write plain text"
+        )
     return ""
 
 

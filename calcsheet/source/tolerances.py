@@ -53,12 +53,18 @@ def _tolerance(raw, quantity: pint.Quantity, si: float, where: str) -> float:
         raise InputError(f"'{_text(raw)}' is negative; a tolerance is an amount either side of the value", where)
     if amount.units == units.parse_unit("percent"):
         if units.is_offset(quantity.units):
-            raise InputError(f"a per cent of a temperature on the {_unit(quantity)} scale depends on where the scale "
-                             "starts; give the tolerance as a difference, e.g. \"5 K\"", where)
+            raise InputError(
+                f"a per cent of a temperature on the {_unit(quantity)} scale depends on where the scale "
+                'starts; give the tolerance as a difference, e.g. "5 K"',
+                where,
+            )
         return abs(si) * amount.magnitude / 100
     if not units.same_dimension(amount.units, quantity.units):
-        raise InputError(f"'{_text(raw)}' is neither a per cent (\"5 %\") nor an amount in the value's unit "
-                         f"({_unit(quantity)}, {units.dimension_text(quantity.units)})", where)
+        raise InputError(
+            f"'{_text(raw)}' is neither a per cent (\"5 %\") nor an amount in the value's unit "
+            f"({_unit(quantity)}, {units.dimension_text(quantity.units)})",
+            where,
+        )
     if units.is_offset(amount.units):  # "5 degC" on a degC value: a difference of five degrees
         return amount.magnitude / units.scale_and_offset(amount.units)[0]
     return units.to_si(amount)
@@ -67,8 +73,11 @@ def _tolerance(raw, quantity: pint.Quantity, si: float, where: str) -> float:
 def _bound(raw, quantity: pint.Quantity, where: str) -> float:
     bound = _parse(raw, where)
     if not units.same_dimension(bound.units, quantity.units):
-        raise InputError(f"'{_text(raw)}' has dimension {units.dimension_text(bound.units)}, but the value is in "
-                         f"{_unit(quantity)} ({units.dimension_text(quantity.units)})", where)
+        raise InputError(
+            f"'{_text(raw)}' has dimension {units.dimension_text(bound.units)}, but the value is in "
+            f"{_unit(quantity)} ({units.dimension_text(quantity.units)})",
+            where,
+        )
     si = units.to_si(bound)
     try:
         units.check_magnitude(si, _text(raw))

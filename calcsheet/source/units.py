@@ -28,7 +28,8 @@ _UNIT_TOKEN = re.compile(r"[A-Za-z_µΩ°%][A-Za-z0-9_µΩ°%]*|\d+(?:\.\d*)?(?:
 _SMALL_EXPONENT = re.compile(r"\d{1,2}(?:\.\d{1,3})?")
 _SINGLE_NAME = re.compile(r"^[A-Za-z_°][A-Za-z0-9_]*$")
 _OFFSET_NAMES = re.compile(
-    r"(?<![A-Za-z_])(degC|degF|celsius|fahrenheit|degree_Celsius|degree_Fahrenheit)(?![A-Za-z0-9_])")
+    r"(?<![A-Za-z_])(degC|degF|celsius|fahrenheit|degree_Celsius|degree_Fahrenheit)(?![A-Za-z0-9_])"
+)
 MAX_QUANTITY = 200  # characters in a value such as "47 kohm"
 MAX_UNIT = 100  # characters in a unit
 # Magnitudes the numerics accept, in SI base units: zero, or between these (QUADPACK and the
@@ -86,8 +87,9 @@ class ConstantAsUnit(InputError):
     """A unit that pint reads as a physical constant: "47 k" is 47 times Boltzmann's constant."""
 
     def __init__(self, text: str, root: str):
-        super().__init__(f"'{shortened(text)}' is read as the {root.replace('_', ' ')}, a physical constant, "
-                         "not a unit")
+        super().__init__(
+            f"'{shortened(text)}' is read as the {root.replace('_', ' ')}, a physical constant, not a unit"
+        )
         self.text, self.root = text, root
 
     def for_value(self, number: str) -> InputError:
@@ -104,7 +106,8 @@ _HINTS = {
 
 def _constant_hint(root: str, number: str) -> str:
     return _HINTS.get(root, "write the value in units; a constant's value is a parameter with its source").format(
-        n=number)
+        n=number
+    )
 
 
 def _refuse_constants(unit: pint.Unit, text: str) -> None:
@@ -153,22 +156,23 @@ def _exponent_end(tokens: list[str], index: int, text: str) -> int:
     if group:
         while end < len(tokens) and tokens[end] != ")":
             end += 1
-        parts, end = tokens[index + 1:end], end + 1
+        parts, end = tokens[index + 1 : end], end + 1
     else:
         if index < len(tokens) and tokens[index] in ("+", "-"):
             end += 1
         parts = tokens[index:end]
     numbers = [p for p in parts if p not in ("+", "-", "/")]
     if not numbers or len(numbers) > 2 or not all(_SMALL_EXPONENT.fullmatch(p) for p in numbers):
-        raise InputError(f"unit '{shortened(text)}': an exponent is a small whole number or fraction "
-                         "(m^2, s^-1, m^(1/2))")
+        raise InputError(
+            f"unit '{shortened(text)}': an exponent is a small whole number or fraction (m^2, s^-1, m^(1/2))"
+        )
     return end
 
 
 def parse_quantity(text: str | int | float) -> pint.Quantity:
     """Parse ``"47 kohm"``, ``"0.85"`` or a bare number into a quantity."""
     if isinstance(text, bool):
-        raise InputError("expected a number with a unit in quotes, such as \"47 kohm\", but found true/false")
+        raise InputError('expected a number with a unit in quotes, such as "47 kohm", but found true/false')
     if isinstance(text, (int, float)):
         try:
             value = float(text)
@@ -180,14 +184,14 @@ def parse_quantity(text: str | int | float) -> pint.Quantity:
     if not isinstance(text, str):
         from calcsheet.source.text_rules import toml_kind
 
-        raise InputError(f"expected a number with a unit in quotes, such as \"47 kohm\", but found {toml_kind(text)}")
+        raise InputError(f'expected a number with a unit in quotes, such as "47 kohm", but found {toml_kind(text)}')
     stripped = text.strip()
     if len(stripped) > MAX_QUANTITY:
         raise InputError(f"a value of {len(stripped)} characters; a number with its unit has at most {MAX_QUANTITY}")
     match = _LEADING_NUMBER.match(stripped)
     if not match:
         raise InputError(f"'{shortened(text)}' is not a number followed by a unit (for example \"47 kohm\")")
-    number, rest = match.group(0), stripped[match.end():].strip()
+    number, rest = match.group(0), stripped[match.end() :].strip()
     value = float(number)
     if not math.isfinite(value):
         raise InputError(f"'{shortened(text)}' is not a finite number")
@@ -207,15 +211,17 @@ def _calculation_message(text: str, number: str, calculation: re.Match) -> str:
     if op == "*":
         product = float(number) * float(other)
         if math.isfinite(product):
-            advice = f"write the product as one number: \"{f'{product:.12g} {unit}'.strip()}\""
+            advice = f'write the product as one number: "{f"{product:.12g} {unit}".strip()}"'
     return f"'{shortened(text)}' is a calculation; {advice}"
 
 
 def check_magnitude(si_value: float, text: str) -> None:
     """Refuse a value the numerics cannot carry: nonzero SI magnitudes outside 1e-30..1e30."""
     if si_value != 0 and not SMALLEST <= abs(si_value) <= LARGEST:
-        raise InputError(f"'{shortened(text)}' is {si_value:.3g} in SI base units, outside the range computed here "
-                         f"({SMALLEST:g} to {LARGEST:g} in size, or exactly 0)")
+        raise InputError(
+            f"'{shortened(text)}' is {si_value:.3g} in SI base units, outside the range computed here "
+            f"({SMALLEST:g} to {LARGEST:g} in size, or exactly 0)"
+        )
 
 
 def is_angular(unit: pint.Unit) -> bool:
@@ -295,9 +301,28 @@ def _reason(exc: Exception) -> str:
 # Units that stay as they are when a value is shown in SI: the base units and the coherent
 # derived units with special names (SI Brochure, 9th edition, tables 2 and 4; from memory).
 COHERENT = {
-    "meter", "kilogram", "second", "ampere", "kelvin", "mole", "candela", "radian", "steradian",
-    "hertz", "newton", "pascal", "joule", "watt", "coulomb", "volt", "farad", "ohm", "siemens",
-    "weber", "tesla", "henry",
+    "meter",
+    "kilogram",
+    "second",
+    "ampere",
+    "kelvin",
+    "mole",
+    "candela",
+    "radian",
+    "steradian",
+    "hertz",
+    "newton",
+    "pascal",
+    "joule",
+    "watt",
+    "coulomb",
+    "volt",
+    "farad",
+    "ohm",
+    "siemens",
+    "weber",
+    "tesla",
+    "henry",
 }
 
 
@@ -313,7 +338,7 @@ def coherent_si(unit: pint.Unit) -> pint.Unit:
             part = ureg.Unit(root)
         else:
             part = ureg.Quantity(1, "delta_" + root if root.startswith("degree_") else root).to_base_units().units
-        result = result * part ** exponent
+        result = result * part**exponent
     return result
 
 

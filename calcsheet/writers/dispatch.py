@@ -52,5 +52,6 @@ def _kind(node, table: dict, what: str, writer: str) -> str:
     try:
         return table[type(node)]
     except KeyError:
-        raise NotImplementedError(f"the {writer} writer does not know the {what} node type "
-                                  f"{type(node).__name__}") from None
+        raise NotImplementedError(
+            f"the {writer} writer does not know the {what} node type {type(node).__name__}"
+        ) from None

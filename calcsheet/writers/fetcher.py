@@ -39,8 +39,10 @@ class ConfinedFetcher(URLFetcher):
 
     def __init__(self, style_folder: Path, default_folder: Path):
         super().__init__(allowed_protocols=("data",), allow_redirects=False)
-        self.roots = {urlsplit(STYLE_ROOT).path: Path(style_folder).resolve(),
-                      urlsplit(DEFAULT_ROOT).path: Path(default_folder).resolve()}
+        self.roots = {
+            urlsplit(STYLE_ROOT).path: Path(style_folder).resolve(),
+            urlsplit(DEFAULT_ROOT).path: Path(default_folder).resolve(),
+        }
         self.refused: list[str] = []
         self.missing: list[str] = []
 
@@ -64,7 +66,7 @@ class ConfinedFetcher(URLFetcher):
         if parts.netloc not in ("", "localhost") or root is None:
             return self._refuse(url)
         folder = self.roots[root]
-        real = (folder / path[len(root):]).resolve()
+        real = (folder / path[len(root) :]).resolve()
         if not real.is_relative_to(folder):
             return self._refuse(url)
         if not real.is_file():

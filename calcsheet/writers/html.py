@@ -18,11 +18,17 @@ from calcsheet.writers.styles import environment, read_css, render_template
 def write(sheet: doc.Sheet, style=None) -> str:
     from calcsheet.writers.plot import figure_svg
 
-    return render_html(sheet, style, "html", {
-        "math": lambda m: Markup(to_mathml(m.latex)),
-        "display_math": lambda m: Markup(to_mathml(m.latex, display=True)),
-        "figure": lambda f: Markup(figure_svg(f)),
-    }, created=dict(sheet.metadata).get("date", ""))
+    return render_html(
+        sheet,
+        style,
+        "html",
+        {
+            "math": lambda m: Markup(to_mathml(m.latex)),
+            "display_math": lambda m: Markup(to_mathml(m.latex, display=True)),
+            "figure": lambda f: Markup(figure_svg(f)),
+        },
+        created=dict(sheet.metadata).get("date", ""),
+    )
 
 
 # The medium the template lays out for, by writer: the PDF writer renders the template for print.
@@ -34,8 +40,12 @@ def render_html(sheet: doc.Sheet, style, writer: str, filters: dict, extra_css: 
     medium = MEDIUM[writer]
     env = environment(style)
     env.filters.update(filters)
-    env.filters.update(kind=partial(block_kind, writer=writer), cell_kind=partial(cell_kind, writer=writer),
-                       unhandled=partial(unhandled, writer=writer))
+    env.filters.update(
+        kind=partial(block_kind, writer=writer),
+        cell_kind=partial(cell_kind, writer=writer),
+        unhandled=partial(unhandled, writer=writer),
+    )
     css = read_css(style, "sheet.css") + ("\n" + read_css(style, "print.css") if medium == "print" else "")
-    return render_template(env, style, "sheet.html.j2",
-                           sheet=sheet, medium=medium, css=Markup(css + extra_css), created=created)
+    return render_template(
+        env, style, "sheet.html.j2", sheet=sheet, medium=medium, css=Markup(css + extra_css), created=created
+    )

@@ -43,12 +43,20 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
     from calcsheet.writers.fetcher import STYLE_ROOT, ConfinedFetcher
     from calcsheet.writers.plot import figure_svg
 
-    html = render_html(sheet, style, "pdf", {
-        "math": lambda m: Markup(_inline(m.latex)),
-        "display_math": lambda m: Markup(_display(m.latex) + _searchable(m.text)),
-        "figure": lambda f: Markup(f'<img class="figure" alt="{escape(visible(f.title))}" '
-                                   f'src="{svgmath.data_uri(figure_svg(f))}">'),
-    }, extra_css=_page_css(sheet), created=creation_date(sheet))
+    html = render_html(
+        sheet,
+        style,
+        "pdf",
+        {
+            "math": lambda m: Markup(_inline(m.latex)),
+            "display_math": lambda m: Markup(_display(m.latex) + _searchable(m.text)),
+            "figure": lambda f: Markup(
+                f'<img class="figure" alt="{escape(visible(f.title))}" src="{svgmath.data_uri(figure_svg(f))}">'
+            ),
+        },
+        extra_css=_page_css(sheet),
+        created=creation_date(sheet),
+    )
     # The screen CSS holds properties print does not use; WeasyPrint would warn about each.
     logging.getLogger("weasyprint").setLevel(logging.ERROR)
     fetcher = ConfinedFetcher(Path(style) if style is not None else default_style_dir(), default_style_dir())
@@ -59,8 +67,11 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
         data = document.write_pdf(pdf_identifier=identifier, uncompressed_pdf=False)
     if fetcher.refused or fetcher.missing:
         url = (fetcher.refused or fetcher.missing)[0]
-        problem = ("lies outside the style folder; a style may use only its own files and data: URLs"
-                   if fetcher.refused else "is not in the style folder")
+        problem = (
+            "lies outside the style folder; a style may use only its own files and data: URLs"
+            if fetcher.refused
+            else "is not in the style folder"
+        )
         raise InputError(f"{style_name(style)}: '{visible(url)}' {problem}")
     return data
 
@@ -74,8 +85,10 @@ def _refuse_attachments_and_outward_links(document, style) -> None:
     if links:
         kind, target = links[0]
         what = "an attached file" if kind == "attachment" else "a link"
-        raise InputError(f"{style_name(style)}: {what} to '{visible(str(target))}' would leave the sheet; "
-                         "only links within the sheet (#name) are allowed")
+        raise InputError(
+            f"{style_name(style)}: {what} to '{visible(str(target))}' would leave the sheet; "
+            "only links within the sheet (#name) are allowed"
+        )
 
 
 _FONT_LOCK = threading.Lock()
@@ -104,8 +117,10 @@ def _font_subsets_keep_their_timestamp():
 
 def _inline(latex: str) -> str:
     r = svgmath.render(latex)
-    return (f'<img class="math-inline" alt="{escape(latex)}" src="{svgmath.data_uri(r.svg)}" '
-            f'style="width:{r.width:.2f}px;height:{r.height:.2f}px;vertical-align:-{r.depth:.2f}px">')
+    return (
+        f'<img class="math-inline" alt="{escape(latex)}" src="{svgmath.data_uri(r.svg)}" '
+        f'style="width:{r.width:.2f}px;height:{r.height:.2f}px;vertical-align:-{r.depth:.2f}px">'
+    )
 
 
 def _display(latex: str) -> str:
@@ -113,8 +128,10 @@ def _display(latex: str) -> str:
     parts = []
     for line in lines:
         r = svgmath.render(line)
-        parts.append(f'<img class="math-line" alt="{escape(line)}" src="{svgmath.data_uri(r.svg)}" '
-                     f'style="width:{r.width * scale:.2f}px;height:{r.height * scale:.2f}px">')
+        parts.append(
+            f'<img class="math-line" alt="{escape(line)}" src="{svgmath.data_uri(r.svg)}" '
+            f'style="width:{r.width * scale:.2f}px;height:{r.height * scale:.2f}px">'
+        )
     return "<br>".join(parts)
 
 
@@ -131,12 +148,23 @@ def _page_css(sheet: doc.Sheet) -> str:
     left = _css_string(visible(block.title)) + r' "\A " ' + _css_string(visible(block.project.value))
     number, revision = (f"{f.label} {visible(f.value) or '-'}" for f in (block.number, block.revision))
     status = f"  {block.status.label} {visible(block.status.value)}" if block.status.value else ""
-    right = (_css_string(f"{number}  {revision}{status}") + " " + _css_string(f"\n{words.page} ") + " counter(page) "
-             + _css_string(f" {words.of} ") + " counter(pages)")
-    foot = f"@bottom-right {{ content: {_css_string(f'{words.fingerprint} {sheet.review.shown}')}; }} " \
-        if sheet.review.shown else ""
-    return (f"\n@page {{ @top-left {{ content: {left}; }} @top-right {{ content: {right}; }} "
-            f"@bottom-left {{ content: {_css_string(words.footer)}; }} {foot}}}\n")
+    right = (
+        _css_string(f"{number}  {revision}{status}")
+        + " "
+        + _css_string(f"\n{words.page} ")
+        + " counter(page) "
+        + _css_string(f" {words.of} ")
+        + " counter(pages)"
+    )
+    foot = (
+        f"@bottom-right {{ content: {_css_string(f'{words.fingerprint} {sheet.review.shown}')}; }} "
+        if sheet.review.shown
+        else ""
+    )
+    return (
+        f"\n@page {{ @top-left {{ content: {left}; }} @top-right {{ content: {right}; }} "
+        f"@bottom-left {{ content: {_css_string(words.footer)}; }} {foot}}}\n"
+    )
 
 
 def _css_string(text: str) -> str:

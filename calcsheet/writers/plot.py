@@ -126,38 +126,105 @@ def _build(figure):
     ax.set_ylim(*ylim)
 
     if figure.curve:
-        ax.plot([p[0] for p in figure.curve], [p[1] for p in figure.curve], color=INK, linewidth=1.5,
-                solid_capstyle="round", label=CURVE_LABEL, zorder=3, gid="calcsheet-curve")
+        ax.plot(
+            [p[0] for p in figure.curve],
+            [p[1] for p in figure.curve],
+            color=INK,
+            linewidth=1.5,
+            solid_capstyle="round",
+            label=CURVE_LABEL,
+            zorder=3,
+            gid="calcsheet-curve",
+        )
     if figure.independent:
-        ax.plot([p[0] for p in figure.independent], [p[1] for p in figure.independent], linestyle="none",
-                marker="o", markersize=4.0, markerfacecolor="white", markeredgecolor=INDEPENDENT,
-                markeredgewidth=0.9, label=INDEPENDENT_LABEL, zorder=4, clip_on=False,
-                gid="calcsheet-independent")
+        ax.plot(
+            [p[0] for p in figure.independent],
+            [p[1] for p in figure.independent],
+            linestyle="none",
+            marker="o",
+            markersize=4.0,
+            markerfacecolor="white",
+            markeredgecolor=INDEPENDENT,
+            markeredgewidth=0.9,
+            label=INDEPENDENT_LABEL,
+            zorder=4,
+            clip_on=False,
+            gid="calcsheet-independent",
+        )
     if figure.points:
-        ax.plot([p[0] for p in figure.points], [p[1] for p in figure.points], linestyle="none", marker="o",
-                markersize=5.0, markerfacecolor=INK, markeredgecolor="white", markeredgewidth=0.8,
-                label=POINTS_LABEL, zorder=5, clip_on=False, gid="calcsheet-points")
+        ax.plot(
+            [p[0] for p in figure.points],
+            [p[1] for p in figure.points],
+            linestyle="none",
+            marker="o",
+            markersize=5.0,
+            markerfacecolor=INK,
+            markeredgecolor="white",
+            markeredgewidth=0.8,
+            label=POINTS_LABEL,
+            zorder=5,
+            clip_on=False,
+            gid="calcsheet-points",
+        )
 
     extremes = [e for e in getattr(figure, "extremes", ()) if _finite(e[0], e[1])]
     for kind in ("max", "min"):  # an upward triangle on a largest value, a downward one on a smallest
         marks = [e for e in extremes if e[2].startswith(kind)]
         if marks:
-            ax.plot([e[0] for e in marks], [e[1] for e in marks], linestyle="none",
-                    marker="^" if kind == "max" else "v", markersize=6.0, markerfacecolor=EXTREME,
-                    markeredgecolor="white", markeredgewidth=0.7, label=f"{EXTREMES_LABEL} ({kind})", zorder=6,
-                    clip_on=False, gid=f"calcsheet-extremes-{kind}")
+            ax.plot(
+                [e[0] for e in marks],
+                [e[1] for e in marks],
+                linestyle="none",
+                marker="^" if kind == "max" else "v",
+                markersize=6.0,
+                markerfacecolor=EXTREME,
+                markeredgecolor="white",
+                markeredgewidth=0.7,
+                label=f"{EXTREMES_LABEL} ({kind})",
+                zorder=6,
+                clip_on=False,
+                gid=f"calcsheet-extremes-{kind}",
+            )
 
     crossings = [c for c in getattr(figure, "crossings", ()) if _finite(c[0], c[1])]
     if crossings:
-        ax.plot([c[0] for c in crossings], [c[1] for c in crossings], linestyle="none", marker="x", markersize=5.5,
-                markeredgecolor=INK, markeredgewidth=1.1, zorder=6, clip_on=False, gid="calcsheet-crossings")
+        ax.plot(
+            [c[0] for c in crossings],
+            [c[1] for c in crossings],
+            linestyle="none",
+            marker="x",
+            markersize=5.5,
+            markeredgecolor=INK,
+            markeredgewidth=1.1,
+            zorder=6,
+            clip_on=False,
+            gid="calcsheet-crossings",
+        )
     point_limits = [p for p in getattr(figure, "point_limits", ()) if _finite(p.x, p.value)]
     for i, mark in enumerate(point_limits):  # a bar at the limit, a caret on the side allowed
         colour, _, _ = GUIDE_STYLE.get(mark.status, GUIDE_STYLE[""])
-        ax.plot([mark.x], [mark.value], linestyle="none", marker="_", markersize=16, markeredgewidth=2.4,
-                color=colour, zorder=6, clip_on=False, gid=f"calcsheet-point-limit-{mark.status or 'none'}-{i}")
-        ax.plot([mark.x], [mark.value], linestyle="none", marker=7 if mark.allowed == "below" else 6,
-                markersize=6, color=colour, zorder=6, clip_on=False)
+        ax.plot(
+            [mark.x],
+            [mark.value],
+            linestyle="none",
+            marker="_",
+            markersize=16,
+            markeredgewidth=2.4,
+            color=colour,
+            zorder=6,
+            clip_on=False,
+            gid=f"calcsheet-point-limit-{mark.status or 'none'}-{i}",
+        )
+        ax.plot(
+            [mark.x],
+            [mark.value],
+            linestyle="none",
+            marker=7 if mark.allowed == "below" else 6,
+            markersize=6,
+            color=colour,
+            zorder=6,
+            clip_on=False,
+        )
     for i, (x, _) in enumerate(s for s in getattr(figure, "switches", ()) if _finite(s[0])):
         ax.axvline(x, color=GREY, linestyle="-.", linewidth=0.9, zorder=2, gid=f"calcsheet-switch-{i}")
 
@@ -165,17 +232,37 @@ def _build(figure):
     limits = [g for g in figure.limits if _finite(g.value)]
     for i, guide in enumerate(levels):
         colour, style, width = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])
-        ax.axhline(guide.value, color=colour, linestyle=style, linewidth=width, zorder=2,
-                   gid=f"calcsheet-level-{guide.status or 'none'}-{i}")
+        ax.axhline(
+            guide.value,
+            color=colour,
+            linestyle=style,
+            linewidth=width,
+            zorder=2,
+            gid=f"calcsheet-level-{guide.status or 'none'}-{i}",
+        )
     for i, guide in enumerate(limits):
         colour, style, width = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])
-        ax.axvline(guide.value, color=colour, linestyle=style, linewidth=width, zorder=2,
-                   gid=f"calcsheet-limit-{guide.status or 'none'}-{i}")
+        ax.axvline(
+            guide.value,
+            color=colour,
+            linestyle=style,
+            linewidth=width,
+            zorder=2,
+            gid=f"calcsheet-limit-{guide.status or 'none'}-{i}",
+        )
 
     legend = None
     if ax.get_legend_handles_labels()[0]:
-        legend = ax.legend(loc=_legend_corner(curve, xlim, ylim), frameon=True, framealpha=0.92,
-                           edgecolor=GRID, fancybox=False, borderpad=0.5, handlelength=2.2, labelcolor=INK)
+        legend = ax.legend(
+            loc=_legend_corner(curve, xlim, ylim),
+            frameon=True,
+            framealpha=0.92,
+            edgecolor=GRID,
+            fancybox=False,
+            borderpad=0.5,
+            handlelength=2.2,
+            labelcolor=INK,
+        )
         legend.get_frame().set_linewidth(0.6)
         legend.set_zorder(10)
 
@@ -220,8 +307,13 @@ def _ranges(figure, curve):
     if hi > x1 or any(g.value == x1 for g in figure.limits if _finite(g.value)):
         hi += 0.03 * width
 
-    ys = ([y for _, y in curve] + [y for _, y in figure.independent] + [p[1] for p in figure.points]
-          + [g.value for g in figure.levels] + [p.value for p in getattr(figure, "point_limits", ())])
+    ys = (
+        [y for _, y in curve]
+        + [y for _, y in figure.independent]
+        + [p[1] for p in figure.points]
+        + [g.value for g in figure.levels]
+        + [p.value for p in getattr(figure, "point_limits", ())]
+    )
     y0, y1 = _span(ys, (0.0, 1.0))
     pad = 0.1 * (abs(y0) or 1.0) if y0 == y1 else MARGIN * (y1 - y0)
     return (lo, hi), (y0 - pad, y1 + pad)
@@ -257,7 +349,8 @@ class _Placer:
         self.size = (box.width * 72 / fig.dpi, box.height * 72 / fig.dpi)  # axes size in pt
         self.xlim, self.ylim = ax.get_xlim(), ax.get_ylim()
         self._measure = lambda text: TextToPath().get_text_width_height_descent(
-            text, FontProperties(family="DejaVu Sans", size=self.FONT_SIZE), ismath=False)
+            text, FontProperties(family="DejaVu Sans", size=self.FONT_SIZE), ismath=False
+        )
         to_axes = ax.transAxes.inverted()
         self.placed = [tuple(legend.get_window_extent().transformed(to_axes).extents)] if legend else []
         self.curve = [self._frac(x, y) for x, y in curve]
@@ -302,10 +395,23 @@ class _Placer:
         best = min(candidates, key=lambda c: self._cost(self._box(c[3], c[0], c[1], c[2], wh)))
         offset, ha, va, anchor = best
         self.placed.append(self._box(anchor, offset, ha, va, wh))
-        self.ax.annotate(text, xy(anchor) if callable(xy) else xy, xycoords=xycoords, xytext=offset,
-                         textcoords="offset points", ha=ha, va=va, rotation=90 if rotated else 0,
-                         fontsize=self.FONT_SIZE, color=colour, parse_math=False, zorder=6,
-                         annotation_clip=False, bbox=_LABEL_BOX, in_layout=False)
+        self.ax.annotate(
+            text,
+            xy(anchor) if callable(xy) else xy,
+            xycoords=xycoords,
+            xytext=offset,
+            textcoords="offset points",
+            ha=ha,
+            va=va,
+            rotation=90 if rotated else 0,
+            fontsize=self.FONT_SIZE,
+            color=colour,
+            parse_math=False,
+            zorder=6,
+            annotation_clip=False,
+            bbox=_LABEL_BOX,
+            in_layout=False,
+        )
 
     def level_label(self, guide):
         if not guide.label:
@@ -313,8 +419,12 @@ class _Placer:
         colour = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0]
         f = self._frac(self.xlim[0], guide.value)[1]
         g = self.GAP
-        candidates = [((0, g), "left", "bottom", (0.01, f)), ((0, -g), "left", "top", (0.01, f)),
-                      ((0, g), "right", "bottom", (0.99, f)), ((0, -g), "right", "top", (0.99, f))]
+        candidates = [
+            ((0, g), "left", "bottom", (0.01, f)),
+            ((0, -g), "left", "top", (0.01, f)),
+            ((0, g), "right", "bottom", (0.99, f)),
+            ((0, -g), "right", "top", (0.99, f)),
+        ]
         self._place(guide.label, colour, lambda a: (a[0], guide.value), self.ax.get_yaxis_transform(), candidates)
 
     def limit_label(self, guide):
@@ -323,25 +433,35 @@ class _Placer:
         colour = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0]
         f = self._frac(guide.value, self.ylim[0])[0]
         g = self.GAP
-        candidates = [((-g, 0), "right", "top", (f, 0.98)), ((-g, 0), "right", "bottom", (f, 0.02)),
-                      ((g, 0), "left", "top", (f, 0.98)), ((g, 0), "left", "bottom", (f, 0.02))]
-        self._place(guide.label, colour, lambda a: (guide.value, a[1]), self.ax.get_xaxis_transform(), candidates,
-                    rotated=True)
+        candidates = [
+            ((-g, 0), "right", "top", (f, 0.98)),
+            ((-g, 0), "right", "bottom", (f, 0.02)),
+            ((g, 0), "left", "top", (f, 0.98)),
+            ((g, 0), "left", "bottom", (f, 0.02)),
+        ]
+        self._place(
+            guide.label, colour, lambda a: (guide.value, a[1]), self.ax.get_xaxis_transform(), candidates, rotated=True
+        )
 
     def point_label(self, x, y, label):
         if not label or not _finite(x, y):
             return
         anchor = self._frac(x, y)
         d = self.GAP + 2.5  # clear of the dot
-        quadrants = {"below right": ((d, -d), "left", "top", anchor),
-                     "above left": ((-d, d), "right", "bottom", anchor),
-                     "above right": ((d, d), "left", "bottom", anchor),
-                     "below left": ((-d, -d), "right", "top", anchor)}
+        quadrants = {
+            "below right": ((d, -d), "left", "top", anchor),
+            "above left": ((-d, d), "right", "bottom", anchor),
+            "above right": ((d, d), "left", "bottom", anchor),
+            "below left": ((-d, -d), "right", "top", anchor),
+        }
         # a rising curve leaves the lower right and upper left free, a falling one the other two
         before, after = _height_near(self.curve, anchor[0] - 0.01), _height_near(self.curve, anchor[0] + 0.01)
         rising = before is None or after >= before
-        order = (["below right", "above left", "above right", "below left"] if rising
-                 else ["above right", "below left", "below right", "above left"])
+        order = (
+            ["below right", "above left", "above right", "below left"]
+            if rising
+            else ["above right", "below left", "below right", "above left"]
+        )
         self._place(label, INK, (x, y), "data", [quadrants[k] for k in order])
 
 

@@ -39,8 +39,10 @@ class _ConfinedLoader(jinja2.FileSystemLoader):
         source, filename, uptodate = super().get_source(environment, template)
         real = Path(filename).resolve()
         if not any(real.is_relative_to(Path(folder).resolve()) for folder in self.searchpath):
-            raise InputError(f"{self.searchpath[0]}: template '{template}' leads outside the style folder "
-                             f"(to {real}); a style may use only its own files")
+            raise InputError(
+                f"{self.searchpath[0]}: template '{template}' leads outside the style folder "
+                f"(to {real}); a style may use only its own files"
+            )
         return source, filename, uptodate
 
 
@@ -52,13 +54,21 @@ def environment(style: Path | None = None) -> jinja2.Environment:
     """
     default = str(default_style_dir())
     folders = ([str(style)] if style else []) + [default]
-    loader = jinja2.ChoiceLoader([
-        *(_ConfinedLoader(folder) for folder in folders),
-        jinja2.PrefixLoader({"default": _ConfinedLoader(default)}),
-    ])
+    loader = jinja2.ChoiceLoader(
+        [
+            *(_ConfinedLoader(folder) for folder in folders),
+            jinja2.PrefixLoader({"default": _ConfinedLoader(default)}),
+        ]
+    )
     return jinja2.sandbox.SandboxedEnvironment(
-        loader=loader, autoescape=True, undefined=jinja2.StrictUndefined, trim_blocks=True,
-        lstrip_blocks=True, keep_trailing_newline=True, finalize=_shown)
+        loader=loader,
+        autoescape=True,
+        undefined=jinja2.StrictUndefined,
+        trim_blocks=True,
+        lstrip_blocks=True,
+        keep_trailing_newline=True,
+        finalize=_shown,
+    )
 
 
 def render_template(env: jinja2.Environment, style: Path | None, name: str, **context) -> str:
@@ -68,8 +78,7 @@ def render_template(env: jinja2.Environment, style: Path | None, name: str, **co
     except jinja2.TemplateError as error:
         if style is None:
             raise  # our own template: a defect, not the user's
-        raise InputError(f"{style_name(style)}: its template cannot be used: "
-                         f"{type(error).__name__}: {error}") from None
+        raise InputError(f"{style_name(style)}: its template cannot be used: {type(error).__name__}: {error}") from None
 
 
 def read_css(style: Path | None, name: str) -> str:
@@ -81,8 +90,10 @@ def read_css(style: Path | None, name: str) -> str:
     if style is not None and (Path(style) / name).is_file():
         real = (Path(style) / name).resolve()
         if not real.is_relative_to(Path(style).resolve()):
-            raise InputError(f"{style_name(style)}: {name} leads outside the style folder (to {real}); "
-                             "a style may use only its own files")
+            raise InputError(
+                f"{style_name(style)}: {name} leads outside the style folder (to {real}); "
+                "a style may use only its own files"
+            )
         parts.append(real.read_text(encoding="utf-8"))
     return "\n".join(parts)
 

@@ -10,8 +10,18 @@ from __future__ import annotations
 
 from functools import partial
 
-from calcsheet.sheet.document import (Equation, Figure, ItemList, Labels, Note, Paragraph, Section, Sheet, SignOffLine,
-                                      Table)
+from calcsheet.sheet.document import (
+    Equation,
+    Figure,
+    ItemList,
+    Labels,
+    Note,
+    Paragraph,
+    Section,
+    Sheet,
+    SignOffLine,
+    Table,
+)
 from calcsheet.writers.dispatch import cell_kind, dispatch
 from calcsheet.writers.visible_text import record_lines
 
@@ -55,8 +65,14 @@ def _heading(section: Section, words: Labels) -> str:
 
 def _handlers(words: Labels) -> dict:
     """One function per block kind (writers/dispatch.py names the kinds)."""
-    return {"paragraph": _paragraph, "equation": _equation, "note": partial(_note, words=words), "list": _list,
-            "table": _table, "figure": partial(_figure, words=words)}
+    return {
+        "paragraph": _paragraph,
+        "equation": _equation,
+        "note": partial(_note, words=words),
+        "list": _list,
+        "table": _table,
+        "figure": partial(_figure, words=words),
+    }
 
 
 def _paragraph(block: Paragraph) -> list[str]:
@@ -84,9 +100,16 @@ def _table(block: Table) -> list[str]:
 
 def _figure(block: Figure, words: Labels) -> list[str]:
     summary = words.figure_summary.format(
-        title=block.title, y_label=block.y_label, x_label=block.x_label, first=block.curve[0][0],
-        last=block.curve[-1][0], curve=len(block.curve), independent=len(block.independent),
-        levels=len(block.levels), limits=len(block.limits))
+        title=block.title,
+        y_label=block.y_label,
+        x_label=block.x_label,
+        first=block.curve[0][0],
+        last=block.curve[-1][0],
+        curve=len(block.curve),
+        independent=len(block.independent),
+        levels=len(block.levels),
+        limits=len(block.limits),
+    )
     return [f"{words.figure.upper()}: {summary}"]
 
 

@@ -80,8 +80,9 @@ class Browser:
         except self._websocket.WebSocketTimeoutException as error:
             raise TimeoutError("no reply from Chromium in time") from error
 
-    def send(self, method: str, params: dict | None = None, session: str | None = None,
-             timeout: float = COMMAND_SECONDS) -> dict:
+    def send(
+        self, method: str, params: dict | None = None, session: str | None = None, timeout: float = COMMAND_SECONDS
+    ) -> dict:
         self._next_id += 1
         message = {"id": self._next_id, "method": method, "params": params or {}}
         if session:
@@ -140,8 +141,10 @@ class Page:
         return self.browser.send(method, params, session=self.session, timeout=timeout)
 
     def set_viewport(self, width: int, height: int = 1100) -> None:
-        self.send("Emulation.setDeviceMetricsOverride",
-                  {"width": width, "height": height, "deviceScaleFactor": 1, "mobile": False})
+        self.send(
+            "Emulation.setDeviceMetricsOverride",
+            {"width": width, "height": height, "deviceScaleFactor": 1, "mobile": False},
+        )
 
     def open(self, path: Path, width: int) -> None:
         """Load a local file at a given viewport width and wait until it and its fonts are ready."""
@@ -154,8 +157,7 @@ class Page:
         self.evaluate("document.fonts.ready.then(() => true)")
 
     def evaluate(self, expression: str):
-        result = self.send("Runtime.evaluate",
-                           {"expression": expression, "returnByValue": True, "awaitPromise": True})
+        result = self.send("Runtime.evaluate", {"expression": expression, "returnByValue": True, "awaitPromise": True})
         if "exceptionDetails" in result:
             details = result["exceptionDetails"]
             text = details.get("exception", {}).get("description") or details.get("text")
@@ -168,11 +170,14 @@ class Page:
         content = metrics["cssContentSize"]
         width = metrics["cssLayoutViewport"]["clientWidth"]
         height = max(1, int(round(content["height"])))
-        shot = self.send("Page.captureScreenshot", {
-            "format": "png",
-            "captureBeyondViewport": True,
-            "clip": {"x": 0, "y": 0, "width": width, "height": height, "scale": 1},
-        })
+        shot = self.send(
+            "Page.captureScreenshot",
+            {
+                "format": "png",
+                "captureBeyondViewport": True,
+                "clip": {"x": 0, "y": 0, "width": width, "height": height, "scale": 1},
+            },
+        )
         destination.write_bytes(base64.b64decode(shot["data"]))
         return {"width": width, "height": height}
 
@@ -181,7 +186,9 @@ def _start_chromium(executable: str, profile: Path, log: Path) -> subprocess.Pop
     with log.open("wb") as stderr:
         return subprocess.Popen(
             [executable, *CHROMIUM_FLAGS, f"--user-data-dir={profile}", "about:blank"],
-            stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=stderr,
+            stdin=subprocess.DEVNULL,
+            stdout=subprocess.DEVNULL,
+            stderr=stderr,
             start_new_session=True,  # its own process group, so the helpers it starts end with it
         )
 

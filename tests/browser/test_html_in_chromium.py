@@ -89,7 +89,8 @@ def math_problems(page) -> tuple[int, list[str]]:
     problems = [
         f"<math> not laid out as MathML: display={m['display']!r} height={m['height']} "
         f"class={m['cls']!r} in .{m['parent']} text={m['text']!r}"
-        for m in found["maths"] if "math" not in m["display"] or m["height"] <= 0
+        for m in found["maths"]
+        if "math" not in m["display"] or m["height"] <= 0
     ]
     problems += [f"fraction not stacked: {f['text']!r}" for f in found["fractions"] if not f["stacked"]]
     return len(found["maths"]), problems
@@ -98,8 +99,9 @@ def math_problems(page) -> tuple[int, list[str]]:
 def overflow_problems(report: dict) -> list[str]:
     problems = []
     if report["scrollWidth"] > report["clientWidth"]:
-        problems.append(f"page scrolls sideways: scrollWidth {report['scrollWidth']} "
-                        f"> clientWidth {report['clientWidth']}")
+        problems.append(
+            f"page scrolls sideways: scrollWidth {report['scrollWidth']} > clientWidth {report['clientWidth']}"
+        )
     problems += [
         f"<{o['tag']} class={o['cls']!r}> spans x={o['left']}..{o['right']} (width {o['width']}) "
         f"past the {report['viewport']} px viewport: {o['text']!r}"
@@ -126,7 +128,9 @@ def test_overflow_detector_reports_an_over_wide_element(page, tmp_path):
         "<div class='too-wide' style='width:1200px'>a line wider than the page</div>"
         "<div class='scroller' style='overflow-x:auto'>"
         "<div class='wide-but-scrolled' style='width:3000px'>x</div></div>"
-        "</body></html>", encoding="utf-8")
+        "</body></html>",
+        encoding="utf-8",
+    )
     page.open(sample, 794)
     report = overflow(page)
     classes = {o["cls"] for o in report["offenders"]}
@@ -146,7 +150,9 @@ def test_math_detector_reports_math_that_is_not_laid_out(page, tmp_path):
         "<!DOCTYPE html><html><body>"
         "<math display='block'><mfrac><mn>1</mn><mi>τ</mi></mfrac></math>"
         "<p>with <math class='inline'><mi>y</mi></math> in a line</p>"
-        "</body></html>", encoding="utf-8")
+        "</body></html>",
+        encoding="utf-8",
+    )
     page.open(sample, 794)
     count, problems = math_problems(page)
     assert count == 2

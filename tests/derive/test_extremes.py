@@ -22,8 +22,11 @@ from calcsheet.load.loader import load_model
 
 
 def build(tmp_path: Path, equation: str, parameters: dict, unknown: str, initial: str, extra: str = ""):
-    lines = ['[sheet]\ntitle = "extremes"\n', f'[model]\nequation = "{equation}"\nunknown = "{unknown}"\n'
-             'variable = "t [s]"\n', "[parameters]"]
+    lines = [
+        '[sheet]\ntitle = "extremes"\n',
+        f'[model]\nequation = "{equation}"\nunknown = "{unknown}"\nvariable = "t [s]"\n',
+        "[parameters]",
+    ]
     lines += [f'{name} = "{value}"' for name, value in parameters.items()]
     lines += [f'\n[initial]\nat = "0 s"\nvalue = "{initial}"\n', extra]
     path = tmp_path / "input.toml"
@@ -40,8 +43,7 @@ def test_a_lag_driven_by_a_pulse_peaks_at_the_pulse_end(tmp_path):
     """From rest, a first-order lag driven by a pulse of height H and width w peaks at the pulse's end at
     y_peak = H (1 - exp(-w/tau)): the standard first-order step response stopped at t = w, after which the
     response only decays (from memory of the standard result)."""
-    path = build(tmp_path, PULSE_EQUATION, PULSE, "T [K]", "0 K",
-                 '[evaluate]\nextremes = ["max", "min 0 s .. 10 s"]\n')
+    path = build(tmp_path, PULSE_EQUATION, PULSE, "T [K]", "0 K", '[evaluate]\nextremes = ["max", "min 0 s .. 10 s"]\n')
     d = derive(load_model(path))
     largest, smallest = d.numbers.extremes
     assert largest.value == pytest.approx(30 * (1 - math.exp(-4 / 5)), rel=1e-10)
@@ -61,15 +63,23 @@ def _scipy_max(start: float, end: float, T0: float) -> tuple[float, float]:
     """The largest value over [start, end] of the Model's own equation, integrated by scipy solve_ivp and the
     dense output's peak refined by scipy minimize_scalar: independent of the derivation."""
     tau, A, f, T_m = 4.0, 12.0, 0.05, 50.0
-    solution = integrate.solve_ivp(lambda t, T: (T_m + A * math.sin(2 * math.pi * f * t) - T) / tau, (0.0, end),
-                                   [T0], method="DOP853", rtol=1e-12, atol=1e-12, dense_output=True)
+    solution = integrate.solve_ivp(
+        lambda t, T: (T_m + A * math.sin(2 * math.pi * f * t) - T) / tau,
+        (0.0, end),
+        [T0],
+        method="DOP853",
+        rtol=1e-12,
+        atol=1e-12,
+        dense_output=True,
+    )
     grid = np.linspace(start, end, 20001)
     values = solution.sol(grid)[0]
     k = int(np.argmax(values))
     if k in (0, len(grid) - 1):
         return float(values[k]), float(grid[k])
-    refined = optimize.minimize_scalar(lambda t: -solution.sol(t)[0], bounds=(grid[k - 1], grid[k + 1]),
-                                       method="bounded", options={"xatol": 1e-10})
+    refined = optimize.minimize_scalar(
+        lambda t: -solution.sol(t)[0], bounds=(grid[k - 1], grid[k + 1]), method="bounded", options={"xatol": 1e-10}
+    )
     return float(-refined.fun), float(refined.x)
 
 
@@ -144,7 +154,7 @@ BAD_EXTREMES = [
     ('["maximum"]', "evaluate.extremes[1]", "must read"),
     ('["max", "min 0 V .. 5 V"]', "evaluate.extremes[2]", "dimension"),
     ('["max from"]', "evaluate.extremes[1]", "must read"),
-    ('[3]', "evaluate.extremes[1]", "must read"),
+    ("[3]", "evaluate.extremes[1]", "must read"),
 ]
 
 

@@ -21,7 +21,7 @@ import pytest
 from scipy import integrate, optimize
 
 from calcsheet.derive.derivation import derive
-from calcsheet.derive.margin import (BRACKETED, CORNERS, DIFFERENCE, IMPLICIT, SOLVED, SYMBOLIC, find_margin)
+from calcsheet.derive.margin import BRACKETED, CORNERS, DIFFERENCE, IMPLICIT, SOLVED, SYMBOLIC, find_margin
 from calcsheet.derive.piecewise import derive_piecewise
 from calcsheet.load.loader import load_model
 
@@ -64,8 +64,14 @@ def rc(tmp_path_factory):
 def rc_solution(R: float, C: float, v0: float = 400.0):
     """v(t) of R C dv/dt + v = 0 by scipy, with the time a level is first reached as an event."""
     return lambda t_end, level=None: integrate.solve_ivp(
-        lambda t, v: -v / (R * C), (0.0, t_end), [v0], rtol=1e-11, atol=1e-12, dense_output=True,
-        events=None if level is None else _level_event(level))
+        lambda t, v: -v / (R * C),
+        (0.0, t_end),
+        [v0],
+        rtol=1e-11,
+        atol=1e-12,
+        dense_output=True,
+        events=None if level is None else _level_event(level),
+    )
 
 
 def _level_event(level):
@@ -93,8 +99,11 @@ def _rc_quantity(name: str, R: float, C: float) -> float:
 @pytest.mark.parametrize("parameter", ["R", "C"])
 def test_rc_symbolic_sensitivities_against_scipy_differences(rc, quantity, parameter):
     model, d, margin = rc
-    q = next(i for i, probe in enumerate(margin.quantities)
-             if probe.criterion.check.startswith(quantity) or _probe_name(probe, model) == quantity)
+    q = next(
+        i
+        for i, probe in enumerate(margin.quantities)
+        if probe.criterion.check.startswith(quantity) or _probe_name(probe, model) == quantity
+    )
     s = next(s for s in margin.sensitivities if s.quantity == q and s.parameter == parameter)
     assert s.method in (SYMBOLIC, IMPLICIT)
     values = {p.name: p.si for p in model.parameters}
@@ -169,8 +178,9 @@ def test_flange_limit_of_the_film_coefficient_against_bracketing_on_scipy(flange
     values = {p.name: p.si for p in model.parameters}
     T0 = model.initial_value.si
     k = next(i for i, c in enumerate(model.criteria) if c.check.startswith("T(45 min)"))
-    reference = optimize.brentq(lambda h: _flange_T({**values, "h": h}, 45 * 60.0, T0) - (60 + 273.15), 5.0, 15.0,
-                                xtol=1e-12)
+    reference = optimize.brentq(
+        lambda h: _flange_T({**values, "h": h}, 45 * 60.0, T0) - (60 + 273.15), 5.0, 15.0, xtol=1e-12
+    )
     found = next(lv for lv in margin.limits[k] if lv.parameter == "h")
     assert found.method == BRACKETED
     assert found.value == pytest.approx(reference, rel=RTOL)
@@ -198,8 +208,10 @@ def test_flange_sensitivities_against_scipy_differences(flange):
     for name in ("h", "T_inf"):
         s = next(s for s in margin.sensitivities if s.quantity == q and s.parameter == name)
         step = 1e-4 * values[name]
-        reference = (_flange_T({**values, name: values[name] + step}, 2700.0, T0)
-                     - _flange_T({**values, name: values[name] - step}, 2700.0, T0)) / (2 * step)
+        reference = (
+            _flange_T({**values, name: values[name] + step}, 2700.0, T0)
+            - _flange_T({**values, name: values[name] - step}, 2700.0, T0)
+        ) / (2 * step)
         assert s.derivative == pytest.approx(reference, rel=RTOL)
 
 
@@ -213,16 +225,21 @@ def valve():
 
 def _coil_current(R1, L, V, R2, t_end, level=None):
     """L di/dt = V - R i, R switching from R1 to R2 at 120 ms: scipy, each interval on its own."""
-    first = integrate.solve_ivp(lambda t, i: (V - R1 * i) / L, (0.0, 0.12), [0.0], rtol=1e-11, atol=1e-13,
-                                events=None if level is None else _level_event(level))
+    first = integrate.solve_ivp(
+        lambda t, i: (V - R1 * i) / L,
+        (0.0, 0.12),
+        [0.0],
+        rtol=1e-11,
+        atol=1e-13,
+        events=None if level is None else _level_event(level),
+    )
     if level is not None and len(first.t_events[0]):
         return float(first.t_events[0][0])
     if level is not None:
         return math.inf
     if t_end <= 0.12:
         return float(first.y[0, -1])
-    second = integrate.solve_ivp(lambda t, i: (V - R2 * i) / L, (0.12, t_end), [first.y[0, -1]], rtol=1e-11,
-                                 atol=1e-13)
+    second = integrate.solve_ivp(lambda t, i: (V - R2 * i) / L, (0.12, t_end), [first.y[0, -1]], rtol=1e-11, atol=1e-13)
     return float(second.y[0, -1])
 
 
@@ -237,8 +254,10 @@ def test_switched_sensitivities_are_differences_across_the_switch_against_scipy(
         up, down = dict(nominal), dict(nominal)
         up[key] += step
         down[key] -= step
-        reference = (_coil_current(up["R"], up["L"], up["V_s"], up["R@2"], 0.5)
-                     - _coil_current(down["R"], down["L"], down["V_s"], down["R@2"], 0.5)) / (2 * step)
+        reference = (
+            _coil_current(up["R"], up["L"], up["V_s"], up["R@2"], 0.5)
+            - _coil_current(down["R"], down["L"], down["V_s"], down["R@2"], 0.5)
+        ) / (2 * step)
         assert s.derivative == pytest.approx(reference, rel=RTOL)
 
 
@@ -246,8 +265,14 @@ def test_switched_worst_case_against_brute_force_sampling(valve):
     """reach(0.9 A) over 4^4 x 4 = 1,024 points of the box: the hot, low-voltage side never pulls in."""
     model, d, margin = valve
     worst_reach, worst_hold = 0.0, 0.0
-    for R1, L, V, R2, in itertools.product(np.linspace(18, 26.3, 8), np.linspace(0.72, 0.88, 4),
-                                           np.linspace(21.6, 26.4, 8), np.linspace(78, 86.3, 4)):
+    for (
+        R1,
+        L,
+        V,
+        R2,
+    ) in itertools.product(
+        np.linspace(18, 26.3, 8), np.linspace(0.72, 0.88, 4), np.linspace(21.6, 26.4, 8), np.linspace(78, 86.3, 4)
+    ):
         # i = V/R (1 - exp(-R t/L)) before the switch, then from i(120 ms) towards V/R2 (common practice)
         reach = math.inf if V / R1 <= 0.9 else -L / R1 * math.log(1 - 0.9 * R1 / V)
         worst_reach = max(worst_reach, reach if reach < 0.12 else math.inf)

@@ -32,8 +32,12 @@ at = [{at}]
 
 def model(tmp_path: Path, equation, parameters="", unknown="y [m]", variable="t [s]", initial="1 m", at='"1 s"'):
     path = tmp_path / "m.toml"
-    path.write_text(TEMPLATE.format(equation=equation, parameters=parameters, unknown=unknown,
-                                    variable=variable, initial=initial, at=at), encoding="utf-8")
+    path.write_text(
+        TEMPLATE.format(
+            equation=equation, parameters=parameters, unknown=unknown, variable=variable, initial=initial, at=at
+        ),
+        encoding="utf-8",
+    )
     return load_model(path)
 
 

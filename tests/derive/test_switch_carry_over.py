@@ -83,8 +83,9 @@ def test_each_switch_starts_from_the_parameters_in_force_before_it(tmp_path):
         return [(Q - h * 0.02 * (state[0] - 293.15)) / capacity]
 
     points = [200.0, 400.0, 700.0, 1200.0]
-    reference = solve_ivp(slope, (0, 1200), [293.15], method="LSODA", t_eval=points, rtol=1e-11, atol=1e-11,
-                          max_step=1.0)
+    reference = solve_ivp(
+        slope, (0, 1200), [293.15], method="LSODA", t_eval=points, rtol=1e-11, atol=1e-11, max_step=1.0
+    )
     for value, expected in zip(d.numbers.values, reference.y[0]):
         assert value.y == pytest.approx(expected, rel=1e-7)
     third = {p.name: p.si for p in d.intervals[2].derivation.model.parameters}
@@ -103,8 +104,9 @@ def test_a_tank_volume_carries_over_the_switch(tmp_path, start):
         return [q_in - q_out, q_in * 2.0 - q_out * mass / volume]
 
     points = [480.0, 900.0, 1500.0, 2400.0]
-    reference = solve_ivp(slope, (t0, 2400), [12.0, 3.0], method="LSODA", t_eval=points, rtol=1e-11,
-                          atol=1e-12, max_step=5.0)
+    reference = solve_ivp(
+        slope, (t0, 2400), [12.0, 3.0], method="LSODA", t_eval=points, rtol=1e-11, atol=1e-12, max_step=5.0
+    )
     for value, expected in zip(d.numbers.values, reference.y[1]):
         assert value.y == pytest.approx(expected, rel=1e-7)
     carried = {p.name: p.si for p in d.intervals[1].derivation.model.parameters}
@@ -116,11 +118,14 @@ def test_a_tank_volume_carries_over_the_switch(tmp_path, start):
     assert f"V_0 at the switch = {carried['V_0']:.6g} m^3" in text
 
 
-@pytest.mark.parametrize("switch, key, fragment", [
-    ('parameters = { Rx = "80 ohm" }', "switch[1].parameters.Rx", "is not a parameter"),
-    ('parameters = { R = 80 }', "switch[1].parameters.R", "text with its unit"),
-    ('parameters = { R = "80 V" }', "switch[1].", "dimension"),
-])
+@pytest.mark.parametrize(
+    "switch, key, fragment",
+    [
+        ('parameters = { Rx = "80 ohm" }', "switch[1].parameters.Rx", "is not a parameter"),
+        ("parameters = { R = 80 }", "switch[1].parameters.R", "text with its unit"),
+        ('parameters = { R = "80 V" }', "switch[1].", "dimension"),
+    ],
+)
 def test_a_switch_names_only_parameters_of_the_model(tmp_path, switch, key, fragment):
     text = f"""
 [sheet]
@@ -165,7 +170,10 @@ def test_record_v2_holds_the_parameters_in_force_in_each_of_three_intervals(tmp_
     assert record["version"] == 2
     intervals = record["intervals"]
     assert [(i["from"]["value"], i["to"] and i["to"]["value"]) for i in intervals] == [
-        (0.0, 300.0), (300.0, 600.0), (600.0, None)]
+        (0.0, 300.0),
+        (300.0, 600.0),
+        (600.0, None),
+    ]
     in_force = [{p["name"]: p for p in i["parameters"]} for i in intervals]
     assert (in_force[1]["Q"]["value"], in_force[1]["Q"]["changed"]) == ("0 W", True)
     assert (in_force[1]["h"]["si"], in_force[1]["h"]["changed"]) == (15.0, False)

@@ -111,13 +111,24 @@ def test_continuity_does_not_trust_the_evaluator_that_set_the_start_value(path, 
 def _reference() -> dict[float, float]:
     """The switched circuit written out, integrated by scipy piece by piece between the switch and the pulse
     edges (each piece smooth), v carried across."""
-    pieces = [(0.0, T_SWITCH, 1000.0, 0.0), (T_SWITCH, T_A, 2200.0, 0.0), (T_A, T_B, 2200.0, V_P),
-              (T_B, 0.045, 2200.0, 0.0)]
+    pieces = [
+        (0.0, T_SWITCH, 1000.0, 0.0),
+        (T_SWITCH, T_A, 2200.0, 0.0),
+        (T_A, T_B, 2200.0, V_P),
+        (T_B, 0.045, 2200.0, 0.0),
+    ]
     state, found = 1.0, {}
     for a, b, R, V in pieces:
         wanted = [p for p in POINTS if a < p <= b]
-        result = solve_ivp(lambda t, v: [(V - v[0]) / (R * C)], (a, b), [state], method="LSODA",
-                           t_eval=sorted(set(wanted) | {b}), rtol=1e-12, atol=1e-14)
+        result = solve_ivp(
+            lambda t, v: [(V - v[0]) / (R * C)],
+            (a, b),
+            [state],
+            method="LSODA",
+            t_eval=sorted(set(wanted) | {b}),
+            rtol=1e-12,
+            atol=1e-14,
+        )
         found.update({float(t): float(v) for t, v in zip(result.t, result.y[0]) if t in wanted})
         state = float(result.y[0][-1])
     return found

@@ -60,8 +60,7 @@ def test_piecewise_solution_agrees_with_scipy_on_the_switched_system(tmp_path):
         V = 12.0 if t < 0.1 else 0.0
         return [(V - R * i[0]) / 0.5]
 
-    reference = solve_ivp(slope, (0, 0.3), [0.0], method="LSODA", t_eval=points, rtol=1e-11, atol=1e-14,
-                          max_step=1e-4)
+    reference = solve_ivp(slope, (0, 0.3), [0.0], method="LSODA", t_eval=points, rtol=1e-11, atol=1e-14, max_step=1e-4)
     for value, expected in zip(d.numbers.values, reference.y[0]):
         assert value.y == pytest.approx(expected, rel=1e-6)
 
@@ -80,20 +79,29 @@ def test_closed_form_across_a_switch(tmp_path):
 def test_sheet_shows_each_interval_and_the_results_across(tmp_path):
     path = write(tmp_path, RAW.format(at='"0.2 s"', switches=SWITCHES.format()))
     text = render(build_sheet(path).sheet, ("txt",))["txt"]
-    for fragment in ("Intervals and switches", "Interval 1, step 4: Integrating factor",
-                     "Interval 3, step 6: Initial condition", "supply removed", "Results across the switches",
-                     "continuity at the switches", "switched integration"):
+    for fragment in (
+        "Intervals and switches",
+        "Interval 1, step 4: Integrating factor",
+        "Interval 3, step 6: Initial condition",
+        "supply removed",
+        "Results across the switches",
+        "continuity at the switches",
+        "switched integration",
+    ):
         assert fragment in text
 
 
-@pytest.mark.parametrize("switches, key, fragment", [
-    ('[[switch]]\nat = "0 s"\nparameters = { R = "20 ohm" }\n', "switch[1].at", "must come after"),
-    ('[[switch]]\nat = "1 s"\nparameters = { R = "20 A" }\n', "switch[1].model.equation", "dimension"),
-    ('[[switch]]\nat = "1 s"\nparameters = "R = 20 ohm"\n', "switch[1].parameters", "table"),
-    ('[[switch]]\nat = "1 s"\nforcing = { form = "constant", value = "3 V" }\n', "switch[1].forcing", "model kind"),
-    ('[[switch]]\nat = "1 s"\nwhen = "later"\n', "switch[1].when", "unknown key"),
-    ('[switch]\nat = "1 s"\n', "switch", "[[switch]]"),
-])
+@pytest.mark.parametrize(
+    "switches, key, fragment",
+    [
+        ('[[switch]]\nat = "0 s"\nparameters = { R = "20 ohm" }\n', "switch[1].at", "must come after"),
+        ('[[switch]]\nat = "1 s"\nparameters = { R = "20 A" }\n', "switch[1].model.equation", "dimension"),
+        ('[[switch]]\nat = "1 s"\nparameters = "R = 20 ohm"\n', "switch[1].parameters", "table"),
+        ('[[switch]]\nat = "1 s"\nforcing = { form = "constant", value = "3 V" }\n', "switch[1].forcing", "model kind"),
+        ('[[switch]]\nat = "1 s"\nwhen = "later"\n', "switch[1].when", "unknown key"),
+        ('[switch]\nat = "1 s"\n', "switch", "[[switch]]"),
+    ],
+)
 def test_switch_errors_name_the_switch(tmp_path, switches, key, fragment):
     path = write(tmp_path, RAW.format(at='"0.2 s"', switches=switches))
     with pytest.raises(CalcsheetError) as info:
@@ -119,7 +127,10 @@ def test_record_v2_gives_each_interval_with_the_parameters_in_force(tmp_path):
     assert not {"solution", "classification", "time_constant", "final_value", "values"} & set(record)
     intervals = record["intervals"]
     assert [(i["from"]["value"], i["to"] and i["to"]["value"]) for i in intervals] == [
-        (0.0, 0.04), (0.04, 0.1), (0.1, None)]
+        (0.0, 0.04),
+        (0.04, 0.1),
+        (0.1, None),
+    ]
     assert [i["switch"] for i in intervals] == [None, "series resistor added", "supply removed"]
     in_force = [{p["name"]: (p["si"], p["changed"]) for p in i["parameters"]} for i in intervals]
     assert in_force[0] == {"L": (0.5, False), "R": (10.0, False), "V_s": (12.0, False)}
@@ -135,5 +146,8 @@ def test_record_v2_gives_each_interval_with_the_parameters_in_force(tmp_path):
     across = record["across"]
     assert [v["at"]["value"] for v in across["values"]] == [0.02, 0.3]
     assert [c["name"] for c in across["verification"]["checks"]] == [
-        "each interval", "continuity at the switches", "switched integration"]
+        "each interval",
+        "continuity at the switches",
+        "switched integration",
+    ]
     assert across["verification"]["passed"] and record["passed"]

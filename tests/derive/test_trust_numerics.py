@@ -35,8 +35,16 @@ def write(tmp_path: Path, text: str, name: str = "case") -> Path:
     return path
 
 
-def free(equation: str, parameters: str, initial: str, at: str = '"1 s"', extra: str = "",
-         unknown: str = "y [1]", variable: str = "t [s]", initial_at: str = "0 s") -> str:
+def free(
+    equation: str,
+    parameters: str,
+    initial: str,
+    at: str = '"1 s"',
+    extra: str = "",
+    unknown: str = "y [1]",
+    variable: str = "t [s]",
+    initial_at: str = "0 s",
+) -> str:
     return f"""
 [sheet]
 title = "test case"
@@ -110,13 +118,19 @@ def test_sinc_forcing_at_its_removable_point(tmp_path):
     # tau y' + y = sin(w t)/(w t), y(0) = 0: y(t) = integral_0^t exp(-(t - s)/tau) sinc(s)/tau ds, by scipy
     # quad with numpy's sinc (defined at 0), independently of calcsheet.
     tau, w = 2.0, 3.0
-    d = derived(tmp_path, free("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"', "0",
-                               '"0 s", "1 s", "5 s"'))
+    d = derived(
+        tmp_path, free("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"', "0", '"0 s", "1 s", "5 s"')
+    )
     assert d.verification.passed
     for value in d.numbers.values:
         t = value.at.si
-        expected = integrate.quad(lambda s: math.exp(-(t - s) / tau) * np.sinc(w * s / math.pi) / tau, 0, t,
-                                  epsabs=0, epsrel=1e-13)[0] if t > 0 else 0.0
+        expected = (
+            integrate.quad(
+                lambda s: math.exp(-(t - s) / tau) * np.sinc(w * s / math.pi) / tau, 0, t, epsabs=0, epsrel=1e-13
+            )[0]
+            if t > 0
+            else 0.0
+        )
         assert value.y == pytest.approx(expected, rel=1e-9, abs=1e-15)
 
 
@@ -138,8 +152,9 @@ def test_an_antiderivative_with_no_value_at_the_initial_point_gives_no_nan_on_th
     # term; the constant of integration must not be taken from it there (the sheet once printed K = nan).
     # Oracle: mpmath quad of the convolution integral, as in the test above.
     T = 3.0
-    path = write(tmp_path, free("tau*dy/dt + y = T*(1 - exp(-t/T))/t", f'tau = "{tau} s"\nT = "{T} s"', "0.5",
-                                '"1 s", "20 s"'))
+    path = write(
+        tmp_path, free("tau*dy/dt + y = T*(1 - exp(-t/T))/t", f'tau = "{tau} s"\nT = "{T} s"', "0.5", '"1 s", "20 s"')
+    )
     built = build_sheet(path)
     text = render(built.sheet, ("txt",))["txt"]
     assert "nan" not in text.lower().replace("nanosecond", "")
@@ -152,11 +167,14 @@ def test_an_antiderivative_with_no_value_at_the_initial_point_gives_no_nan_on_th
 
 
 # ------------------------------------------------------------ class: a response past the floating-point range
-@pytest.mark.parametrize("kind_input", [
-    free("dy/dt = k*y", 'k = "1e3 1/s"', "1", '"1 s", "10 s"'),
-    # a lumped body with a negative film coefficient heats without bound (found by the check campaign)
-    None,
-])
+@pytest.mark.parametrize(
+    "kind_input",
+    [
+        free("dy/dt = k*y", 'k = "1e3 1/s"', "1", '"1 s", "10 s"'),
+        # a lumped body with a negative film coefficient heats without bound (found by the check campaign)
+        None,
+    ],
+)
 def test_a_response_that_overflows_before_a_point_asked_about_is_refused(tmp_path, kind_input):
     from calcsheet.kinds.catalogue import starter_text
 
@@ -186,10 +204,13 @@ def test_forcing_with_no_finite_limit_at_the_initial_point_is_refused(tmp_path):
 
 
 # --------------------------------------------------------------- class: zero divisors, complex or infinite p
-@pytest.mark.parametrize("equation, parameters, name", [
-    ("dv/dt + v/(R*C) = 0", 'R = "0 ohm"\nC = "1 uF"', "R"),  # p = zoo
-    ("tau*dy/dt + y = sin(t/L)", 'tau = "2 s"\nL = "0 s"', "L"),  # a zero length scale: sin(zoo*t)
-])
+@pytest.mark.parametrize(
+    "equation, parameters, name",
+    [
+        ("dv/dt + v/(R*C) = 0", 'R = "0 ohm"\nC = "1 uF"', "R"),  # p = zoo
+        ("tau*dy/dt + y = sin(t/L)", 'tau = "2 s"\nL = "0 s"', "L"),  # a zero length scale: sin(zoo*t)
+    ],
+)
 def test_zero_divisor_is_refused_naming_the_parameter(tmp_path, equation, parameters, name):
     unknown = "v [V]" if "dv" in equation else "y [1]"
     with pytest.raises(ModelRefused) as caught:
@@ -214,8 +235,15 @@ def test_nanosecond_time_constant_seen_over_an_hour_uses_a_stiff_method(tmp_path
 def test_integration_restarts_at_the_edges_of_a_pulse(tmp_path):
     # tau y' + y = A on [t1, t2), y(0) = 0 (common practice, no source: the lag's response to a pulse).
     tau, t1, t2 = 2.0, 1.0, 1.7
-    d = derived(tmp_path, free("tau*dy/dt + y = A*step(t - t1) - A*step(t - t2)",
-                               'tau = "2 s"\nA = "1"\nt1 = "1 s"\nt2 = "1.7 s"', "0", '"1.5 s", "3 s", "60 s"'))
+    d = derived(
+        tmp_path,
+        free(
+            "tau*dy/dt + y = A*step(t - t1) - A*step(t - t2)",
+            'tau = "2 s"\nA = "1"\nt1 = "1 s"\nt2 = "1.7 s"',
+            "0",
+            '"1.5 s", "3 s", "60 s"',
+        ),
+    )
     assert "restarted at each jump of the forcing" in method_words(d.verification.integration)
     assert d.verification.passed
 
@@ -224,6 +252,7 @@ def test_integration_restarts_at_the_edges_of_a_pulse(tmp_path):
             return 0.0
         rise = 1 - math.exp(-(min(t, t2) - t1) / tau)
         return rise if t < t2 else rise * math.exp(-(t - t2) / tau)
+
     for value in d.numbers.values:
         assert value.y == pytest.approx(exact(value.at.si), rel=1e-9, abs=1e-300)
 
@@ -258,6 +287,7 @@ def test_a_response_that_starts_on_a_level_reaches_it_when_it_comes_back_across(
 
     def y(t):
         return (math.sin(w * t) - w * tau * math.cos(w * t) + w * tau * math.exp(-t / tau)) / (1 + (w * tau) ** 2)
+
     first_return = optimize.brentq(y, 1.0, 2.5, xtol=1e-15)
     assert d.numbers.reach[0].x == pytest.approx(first_return, rel=1e-10)
     assert d.numbers.reach[0].x > 0
@@ -307,13 +337,13 @@ def test_a_model_that_fails_its_validity_check_cannot_pass(tmp_path):
     assert record["passed"] is False and record["kind"]["valid"] is False
     assert record["criteria"][0]["status"] == "not assessed"
     assert record["criteria"][0]["not_assessed_because"] == "model_not_valid"
-    assert any(f["severity"] == "invalid" and f["code"] == "lumped_body.biot_exceeded"
-               for f in record["kind"]["findings"])
+    assert any(
+        f["severity"] == "invalid" and f["code"] == "lumped_body.biot_exceeded" for f in record["kind"]["findings"]
+    )
     text = render(built.sheet, ("txt",))["txt"]
     assert "The model is not valid for this case" in text and "The criterion passes" not in text
     assert "not assessed (model not valid)" in text
-    result = subprocess.run([COMMAND, "check", str(tmp_path / "case.toml")],
-                            capture_output=True, text=True, cwd=ROOT)
+    result = subprocess.run([COMMAND, "check", str(tmp_path / "case.toml")], capture_output=True, text=True, cwd=ROOT)
     assert result.returncode == 1, result.stderr
 
 
@@ -368,8 +398,9 @@ def test_points_past_the_validity_limit_are_marked_and_not_assessed(tmp_path):
 
 # --------------------------------------------------------------- class: quadrature error as a bound
 def test_quadrature_error_estimate_is_a_power_of_ten_bound(tmp_path):
-    built = build_sheet(write(tmp_path, free("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"', "0",
-                                             '"5 s"')))
+    built = build_sheet(
+        write(tmp_path, free("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"', "0", '"5 s"'))
+    )
     assert built.derivation.quadrature is not None
     record = json.loads(render(built.sheet, ("json",))["json"])
     estimate = record["solution"]["quadrature"]["largest_error_estimate"]
@@ -379,14 +410,16 @@ def test_quadrature_error_estimate_is_a_power_of_ten_bound(tmp_path):
 
 
 # --------------------------------------------------------------- class: warnings leaking to the user
-@pytest.mark.parametrize("equation, parameters", [
-    ("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"'),  # QUADPACK round-off warnings
-    ("tau*dy/dt + y = 1 + t/T", 'tau = "1 ns"\nT = "10 s"'),  # overflow warnings of an explicit integrator
-])
+@pytest.mark.parametrize(
+    "equation, parameters",
+    [
+        ("tau*dy/dt + y = sin(w*t)/(w*t)", 'tau = "2 s"\nw = "3 rad/s"'),  # QUADPACK round-off warnings
+        ("tau*dy/dt + y = 1 + t/T", 'tau = "1 ns"\nT = "10 s"'),  # overflow warnings of an explicit integrator
+    ],
+)
 def test_no_numeric_warning_reaches_the_terminal(tmp_path, equation, parameters):
     path = write(tmp_path, free(equation, parameters, "0", '"1 h"' if "ns" in parameters else '"5 s"'))
-    result = subprocess.run([COMMAND, "check", str(path)],
-                            capture_output=True, text=True, cwd=ROOT)
+    result = subprocess.run([COMMAND, "check", str(path)], capture_output=True, text=True, cwd=ROOT)
     assert result.returncode == 0, result.stdout + result.stderr
     assert "PASS" in result.stdout
     assert result.stderr == "" and len(result.stdout.splitlines()) == 1

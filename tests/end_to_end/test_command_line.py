@@ -46,8 +46,11 @@ def test_failing_criterion_exits_1_and_still_writes_the_sheet(tmp_path):
 
 def test_check_names_each_failing_criterion_by_number_and_text(tmp_path):
     # v(10 s) = 400 exp(-1) = 147 V (the arithmetic of the input): the first passes, the second fails
-    path = write(tmp_path, GOOD + '[[criteria]]\ntext = "slow enough"\ncheck = "v(10 s) >= 100 V"\n'
-                                  '[[criteria]]\ntext = "fast"\ncheck = "v(10 s) <= 50 V"\n')
+    path = write(
+        tmp_path,
+        GOOD + '[[criteria]]\ntext = "slow enough"\ncheck = "v(10 s) >= 100 V"\n'
+        '[[criteria]]\ntext = "fast"\ncheck = "v(10 s) <= 50 V"\n',
+    )
     result = run("check", str(path))
     assert result.exit_code == 1
     assert '1 of 2 criteria pass; FAIL: #2 "fast";' in result.output
@@ -65,13 +68,16 @@ def test_check_counts_a_criterion_not_assessed_apart_from_a_failure(tmp_path):
     assert "FAIL: #" not in result.output
 
 
-@pytest.mark.parametrize("bad, fragment", [
-    (GOOD.replace('"10 kohm"', '"10 kohmz"'), "parameters.R"),
-    (GOOD.replace("R*C*dv/dt + v = 0", "R*C*dv/dt + v^2/(1 V) = 0"), "model.equation"),
-    (GOOD.replace("R*C*dv/dt + v = 0", "R*C*dv/dt + v = 5 A"), "model.equation"),
-    (GOOD.replace('at = ["10 s"]', 'at = ["-5 s"]'), "evaluate.at[1]"),
-    (GOOD.replace('value = "400 V"', "value = \"__import__('os').system('touch PWNED')\""), "initial.value"),
-])
+@pytest.mark.parametrize(
+    "bad, fragment",
+    [
+        (GOOD.replace('"10 kohm"', '"10 kohmz"'), "parameters.R"),
+        (GOOD.replace("R*C*dv/dt + v = 0", "R*C*dv/dt + v^2/(1 V) = 0"), "model.equation"),
+        (GOOD.replace("R*C*dv/dt + v = 0", "R*C*dv/dt + v = 5 A"), "model.equation"),
+        (GOOD.replace('at = ["10 s"]', 'at = ["-5 s"]'), "evaluate.at[1]"),
+        (GOOD.replace('value = "400 V"', "value = \"__import__('os').system('touch PWNED')\""), "initial.value"),
+    ],
+)
 def test_input_errors_exit_2_with_one_line_and_write_nothing(tmp_path, bad, fragment, monkeypatch):
     monkeypatch.chdir(tmp_path)
     path = write(tmp_path, bad)
@@ -104,8 +110,9 @@ def test_style_folder_overrides_css_and_inherits_template(tmp_path):
     style = tmp_path / "firm"
     style.mkdir()
     (style / "sheet.css").write_text("body { color: #123456; }\n")
-    result = run("build", str(write(tmp_path, GOOD)), "--format", "html", "--style", str(style),
-                 "--out", str(tmp_path / "o"))
+    result = run(
+        "build", str(write(tmp_path, GOOD)), "--format", "html", "--style", str(style), "--out", str(tmp_path / "o")
+    )
     assert result.exit_code == 0
     html = (tmp_path / "o" / "case.html").read_text()
     assert "#123456" in html and "Integrating factor" in html

@@ -59,10 +59,13 @@ def test_records_match_golden_files(built, demo, ext):
     golden = GOLDEN / f"{demo.stem}.{ext}"
     expected = golden.read_text(encoding="utf-8") if golden.exists() else ""
     if produced != expected:
-        diff = "".join(difflib.unified_diff(expected.splitlines(True), produced.splitlines(True),
-                                            str(golden), "produced"))
-        pytest.fail(f"{golden.name} differs (to accept a deliberate change: python tests/end_to_end/accept_golden.py"
-                    f", then review the diff):\n{diff}")
+        diff = "".join(
+            difflib.unified_diff(expected.splitlines(True), produced.splitlines(True), str(golden), "produced")
+        )
+        pytest.fail(
+            f"{golden.name} differs (to accept a deliberate change: python tests/end_to_end/accept_golden.py"
+            f", then review the diff):\n{diff}"
+        )
 
 
 @pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)

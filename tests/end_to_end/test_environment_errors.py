@@ -44,8 +44,18 @@ def test_two_inputs_of_one_name_are_refused_before_anything_is_written(tmp_path)
         (tmp_path / folder).mkdir()
         shutil.copy(DEMO, tmp_path / folder / "same.toml")
     out = tmp_path / "out"
-    result = CliRunner().invoke(main, ["build", str(tmp_path / "a" / "same.toml"), str(tmp_path / "b" / "same.toml"),
-                                       "--format", "txt", "--out", str(out)])
+    result = CliRunner().invoke(
+        main,
+        [
+            "build",
+            str(tmp_path / "a" / "same.toml"),
+            str(tmp_path / "b" / "same.toml"),
+            "--format",
+            "txt",
+            "--out",
+            str(out),
+        ],
+    )
     _one_line_exit_2(result)
     assert "same.toml" in result.output and not out.exists()
 
@@ -54,7 +64,12 @@ def test_two_inputs_of_one_name_are_refused_before_anything_is_written(tmp_path)
 def test_a_bad_source_date_epoch_is_ignored(value):
     env = {k: v for k, v in os.environ.items() if k != "SOURCE_DATE_EPOCH"}
     env["SOURCE_DATE_EPOCH"] = value
-    done = subprocess.run([sys.executable, "-m", "calcsheet.cli", "check", str(DEMO)], env=env,
-                          capture_output=True, text=True, timeout=300)
+    done = subprocess.run(
+        [sys.executable, "-m", "calcsheet.cli", "check", str(DEMO)],
+        env=env,
+        capture_output=True,
+        text=True,
+        timeout=300,
+    )
     assert done.returncode == 0, done.stderr
     assert "PASS" in done.stdout and done.stderr == ""

@@ -61,8 +61,9 @@ def test_four_parallel_builds_into_one_folder_match_a_serial_build(tmp_path):
     serial = tmp_path / "serial"
     subprocess.run(_command(serial), check=False, capture_output=True, timeout=600)
     shared = tmp_path / "shared"
-    processes = [subprocess.Popen(_command(shared), stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
-                 for _ in range(4)]
+    processes = [
+        subprocess.Popen(_command(shared), stdout=subprocess.DEVNULL, stderr=subprocess.PIPE) for _ in range(4)
+    ]
     for process in processes:
         _, err = process.communicate(timeout=900)
         assert process.returncode in (0, 1), err

@@ -55,16 +55,27 @@ def _run(args):
     return CliRunner().invoke(main, args)
 
 
-@pytest.mark.parametrize("entry, key, words", [
-    ('{ value = "47 kohm", tolerance = "5 V" }', "parameters.R.tolerance", "neither a per cent"),
-    ('{ value = "47 kohm", min = "50 kohm", max = "40 kohm" }', "parameters.R", "min (50 kohm) is greater than max"),
-    ('{ value = "47 kohm", min = "48 kohm", max = "60 kohm" }', "parameters.R.min", "outside its range"),
-    ('{ value = "47 kohm", max = "40 kohm" }', "parameters.R.max", "outside its range"),
-    ('{ value = "47 kohm", tolerance = "5 %", min = "40 kohm" }', "parameters.R", "either a tolerance or min and max"),
-    ('{ value = "47 kohm", tolerance = "-5 %" }', "parameters.R.tolerance", "negative"),
-    ('{ value = "47 kohm", min = "40 V" }', "parameters.R.min", "has dimension"),
-    ('{ value = "47 kohm", spread = "5 %" }', "parameters.R", "unknown key 'spread'"),
-])
+@pytest.mark.parametrize(
+    "entry, key, words",
+    [
+        ('{ value = "47 kohm", tolerance = "5 V" }', "parameters.R.tolerance", "neither a per cent"),
+        (
+            '{ value = "47 kohm", min = "50 kohm", max = "40 kohm" }',
+            "parameters.R",
+            "min (50 kohm) is greater than max",
+        ),
+        ('{ value = "47 kohm", min = "48 kohm", max = "60 kohm" }', "parameters.R.min", "outside its range"),
+        ('{ value = "47 kohm", max = "40 kohm" }', "parameters.R.max", "outside its range"),
+        (
+            '{ value = "47 kohm", tolerance = "5 %", min = "40 kohm" }',
+            "parameters.R",
+            "either a tolerance or min and max",
+        ),
+        ('{ value = "47 kohm", tolerance = "-5 %" }', "parameters.R.tolerance", "negative"),
+        ('{ value = "47 kohm", min = "40 V" }', "parameters.R.min", "has dimension"),
+        ('{ value = "47 kohm", spread = "5 %" }', "parameters.R", "unknown key 'spread'"),
+    ],
+)
 def test_bad_range_is_one_line_naming_file_and_key(tmp_path, entry, key, words):
     path = tmp_path / "bad.toml"
     path.write_text(BASE.replace("{R}", entry))
@@ -86,12 +97,15 @@ def test_a_per_cent_of_a_celsius_temperature_is_refused_and_a_difference_is_read
         assert (p.low, p.high) == pytest.approx((295.15 - 5, 295.15 + 5), abs=1e-9)  # a difference, not 278.15 K
 
 
-@pytest.mark.parametrize("assignment, key, words", [
-    ("X=5 kohm", "--set X", "is not a parameter of this model"),
-    ("R=5 V", "--set R", "has dimension"),
-    ("R", "--set", "is not NAME=VALUE"),
-    ("R=five", "--set R", "is not a number"),
-])
+@pytest.mark.parametrize(
+    "assignment, key, words",
+    [
+        ("X=5 kohm", "--set X", "is not a parameter of this model"),
+        ("R=5 V", "--set R", "has dimension"),
+        ("R", "--set", "is not NAME=VALUE"),
+        ("R=five", "--set R", "is not a number"),
+    ],
+)
 def test_bad_set_is_one_line_with_exit_2(tmp_path, assignment, key, words):
     result = _run(["build", str(BUS), "--out", str(tmp_path), "--set", assignment])
     assert result.exit_code == 2, result.output
@@ -104,8 +118,10 @@ def test_set_builds_a_what_if_beside_never_over_the_issued_sheet(tmp_path):
     no source), against 50 V; the outputs are <stem>.whatif.* with a banner and the overrides recorded."""
     result = _run(["build", str(BUS), "--out", str(tmp_path), "--set", "R=5.1 kohm", "--format", "json,txt"])
     assert result.exit_code in (0, 1), result.output
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["bus-capacitor-bleed-down.whatif.json",
-                                                          "bus-capacitor-bleed-down.whatif.txt"]
+    assert sorted(p.name for p in tmp_path.iterdir()) == [
+        "bus-capacitor-bleed-down.whatif.json",
+        "bus-capacitor-bleed-down.whatif.txt",
+    ]
     record = json.loads((tmp_path / "bus-capacitor-bleed-down.whatif.json").read_text())
     assert record["overrides"] == {"R": {"value": "5.1 kohm", "was": "4.7 kohm"}}
     found = next(c for c in record["criteria"] if c["check"] == "v(60 s) <= 50 V")["found"]

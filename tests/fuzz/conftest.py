@@ -13,6 +13,7 @@ OUTCOMES: dict[str, Counter] = {}
 def outcomes():
     def record(campaign: str, outcome: str) -> None:
         OUTCOMES.setdefault(campaign, Counter())[outcome] += 1
+
     return record
 
 

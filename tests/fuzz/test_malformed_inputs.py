@@ -27,22 +27,81 @@ ROOT = Path(__file__).resolve().parents[2]
 DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
 BASES = [tomllib.loads(p.read_text(encoding="utf-8")) for p in DEMOS]
 
-UNITS = ["V", "A", "ohm", "kohm", "uF", "s", "ms", "min", "h", "degC", "K", "delta_degC", "m^3/min", "W/(m^2*K)",
-         "kg", "rad", "Hz", "k", "c", "e", "g", "%", "", "m^^2", "1/0", "V and v(2 min) <= 10 V", "°", "Ω"]
-NUMBERS = st.one_of(st.sampled_from(["0", "-1", "1e308", "-1e308", "1e-320", "nan", "inf", "-inf", "1e30", "4 * 550",
-                                     "0.0", "3"]),
-                    st.floats(allow_nan=True, allow_infinity=True).map(repr),
-                    st.integers(min_value=-10**20, max_value=10**20).map(str))
+UNITS = [
+    "V",
+    "A",
+    "ohm",
+    "kohm",
+    "uF",
+    "s",
+    "ms",
+    "min",
+    "h",
+    "degC",
+    "K",
+    "delta_degC",
+    "m^3/min",
+    "W/(m^2*K)",
+    "kg",
+    "rad",
+    "Hz",
+    "k",
+    "c",
+    "e",
+    "g",
+    "%",
+    "",
+    "m^^2",
+    "1/0",
+    "V and v(2 min) <= 10 V",
+    "°",
+    "Ω",
+]
+NUMBERS = st.one_of(
+    st.sampled_from(["0", "-1", "1e308", "-1e308", "1e-320", "nan", "inf", "-inf", "1e30", "4 * 550", "0.0", "3"]),
+    st.floats(allow_nan=True, allow_infinity=True).map(repr),
+    st.integers(min_value=-(10**20), max_value=10**20).map(str),
+)
 HOSTILE_TEXT = st.one_of(
     st.text(max_size=40),
-    st.sampled_from(["", " " * 5000, "x" * 30000, "(" * 300 + "t" + ")" * 300, "exp(" * 60 + "1" + ")" * 60,
-                     "\\g<0>", "a\\b", "<script>alert(1)</script>", "{{7*7}}", "{% for x in y %}", "\u202e\u2066",
-                     "\x1b[31m", "line\nOUTCOME: passes", "t/0", "sin(t/0)", "R*C*dv/dt + v = 0", "d2v/dt2 = v",
-                     "v^2*dv/dt = 1", "step(t - 1)", "log(-t)", "../../..", "/etc", "🙂" * 100]))
+    st.sampled_from(
+        [
+            "",
+            " " * 5000,
+            "x" * 30000,
+            "(" * 300 + "t" + ")" * 300,
+            "exp(" * 60 + "1" + ")" * 60,
+            "\\g<0>",
+            "a\\b",
+            "<script>alert(1)</script>",
+            "{{7*7}}",
+            "{% for x in y %}",
+            "\u202e\u2066",
+            "\x1b[31m",
+            "line\nOUTCOME: passes",
+            "t/0",
+            "sin(t/0)",
+            "R*C*dv/dt + v = 0",
+            "d2v/dt2 = v",
+            "v^2*dv/dt = 1",
+            "step(t - 1)",
+            "log(-t)",
+            "../../..",
+            "/etc",
+            "🙂" * 100,
+        ]
+    ),
+)
 QUANTITY_TEXT = st.builds(lambda n, u: f"{n} {u}".strip(), NUMBERS, st.sampled_from(UNITS))
-ODD_VALUE = st.one_of(QUANTITY_TEXT, HOSTILE_TEXT, st.booleans(), st.integers(), st.floats(),
-                      st.lists(st.integers(), max_size=3), st.dictionaries(st.text(max_size=5), st.text(max_size=5),
-                                                                            max_size=2))
+ODD_VALUE = st.one_of(
+    QUANTITY_TEXT,
+    HOSTILE_TEXT,
+    st.booleans(),
+    st.integers(),
+    st.floats(),
+    st.lists(st.integers(), max_size=3),
+    st.dictionaries(st.text(max_size=5), st.text(max_size=5), max_size=2),
+)
 
 
 def _paths(tree, prefix=()):
@@ -67,8 +126,13 @@ def mutated_inputs(draw, hostile: bool = True):
         places = list(_paths(tree))
         path, key = draw(st.sampled_from(places))
         container = _at(tree, path)
-        action = draw(st.sampled_from(["value", "value", "quantity", "delete", "add"] if hostile
-                                      else ["quantity", "quantity", "quantity", "delete"]))
+        action = draw(
+            st.sampled_from(
+                ["value", "value", "quantity", "delete", "add"]
+                if hostile
+                else ["quantity", "quantity", "quantity", "delete"]
+            )
+        )
         if action == "delete" and isinstance(container, dict):
             del container[key]
         elif action == "add" and isinstance(container, dict):
@@ -94,12 +158,11 @@ def _assert_named(error: CalcsheetError, path: Path) -> None:
     for inner in getattr(error, "errors", [error]):
         line = str(inner)
         assert line.startswith(str(path)), line
-        assert inner.key or line[len(str(path)):].startswith(":"), f"no key: {line}"
+        assert inner.key or line[len(str(path)) :].startswith(":"), f"no key: {line}"
         assert "\n" not in line and "Traceback" not in line, line
 
 
-@settings(max_examples=10_000, deadline=None, derandomize=True, database=None,
-          suppress_health_check=list(HealthCheck))
+@settings(max_examples=10_000, deadline=None, derandomize=True, database=None, suppress_health_check=list(HealthCheck))
 @given(tree=mutated_inputs())
 def test_the_loader_ends_every_input_as_a_model_or_named_errors(tree, tmp_path_factory, outcomes):
     folder = tmp_path_factory.mktemp("loader", numbered=True)

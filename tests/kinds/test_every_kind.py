@@ -161,8 +161,9 @@ def test_an_unknown_finding_code_is_not_worded_silently():
 def test_a_dimension_error_is_an_input_error_when_built_directly(tmp_path):
     # The command line's exit 2 comes from an InputError carrying the file and the key.
     path = new_starter(tmp_path, "series_rc")
-    path.write_text(path.read_text(encoding="utf-8").replace('C = { value = "470 uF"', 'C = { value = "470 uH"'),
-                    encoding="utf-8")
+    path.write_text(
+        path.read_text(encoding="utf-8").replace('C = { value = "470 uF"', 'C = { value = "470 uH"'), encoding="utf-8"
+    )
     with pytest.raises(CalcsheetError, match="parameters.C"):
         build_sheet(path)
 

@@ -15,11 +15,14 @@ from calcsheet.pipeline import build_sheet, render
 from tests.kinds.helpers import findings, worded
 
 
-def write_input(tmp_path, name: str, parameters: dict, initial: str, evaluate: str = "",
-                forcing: str = "", extra: str = ""):
+def write_input(
+    tmp_path, name: str, parameters: dict, initial: str, evaluate: str = "", forcing: str = "", extra: str = ""
+):
     lines = "\n".join(f'{key} = "{value}"' for key, value in parameters.items())
-    text = (f'[sheet]\ntitle = "{name} (test)"\n\n[model]\nkind = "first_order_sensor"\n\n[parameters]\n{lines}\n\n'
-            f'{forcing}\n[initial]\nvalue = "{initial}"\n\n[evaluate]\n{evaluate}\n{extra}')
+    text = (
+        f'[sheet]\ntitle = "{name} (test)"\n\n[model]\nkind = "first_order_sensor"\n\n[parameters]\n{lines}\n\n'
+        f'{forcing}\n[initial]\nvalue = "{initial}"\n\n[evaluate]\n{evaluate}\n{extra}'
+    )
     path = tmp_path / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
     return path
@@ -28,9 +31,14 @@ def write_input(tmp_path, name: str, parameters: dict, initial: str, evaluate: s
 # A probe at 20 degC plunged into a 120 degC bath (invented): a 100 K step, tau = 2 s.
 @pytest.fixture(scope="module")
 def plunge(tmp_path_factory):
-    path = write_input(tmp_path_factory.mktemp("plunge"), "plunge", {"tau": "2 s", "T_m": "120 degC"}, "20 degC",
-                       'at = ["2 s", "4 s", "6 s", "10 s"]\nreach = ["70 degC", "110 degC"]',
-                       extra='[[criteria]]\ncheck = "reach(110 degC) <= 5 s"\n')
+    path = write_input(
+        tmp_path_factory.mktemp("plunge"),
+        "plunge",
+        {"tau": "2 s", "T_m": "120 degC"},
+        "20 degC",
+        'at = ["2 s", "4 s", "6 s", "10 s"]\nreach = ["70 degC", "110 degC"]',
+        extra='[[criteria]]\ncheck = "reach(110 degC) <= 5 s"\n',
+    )
     built = build_sheet(path)
     return built, render(built.sheet, ("txt", "json"))
 
@@ -62,11 +70,13 @@ LATE = [3.0 + i * 0.0005 for i in range(200)]  # two periods, 15 time constants 
 
 @pytest.fixture(scope="module")
 def sine(tmp_path_factory):
-    forcing = f'[forcing]\nform = "sine"\namplitude = "{AMPLITUDE:g} K"\nfrequency = "{FREQUENCY:g} Hz"\n' \
-              'offset = "50 degC"\n'
+    forcing = (
+        f'[forcing]\nform = "sine"\namplitude = "{AMPLITUDE:g} K"\nfrequency = "{FREQUENCY:g} Hz"\noffset = "50 degC"\n'
+    )
     at = ", ".join(f'"{t:.4f} s"' for t in LATE)
-    path = write_input(tmp_path_factory.mktemp("sine"), "sine", {"tau": f"{TAU:g} s"}, "50 degC",
-                       f"at = [{at}]", forcing)
+    path = write_input(
+        tmp_path_factory.mktemp("sine"), "sine", {"tau": f"{TAU:g} s"}, "50 degC", f"at = [{at}]", forcing
+    )
     return build_sheet(path).derivation
 
 
@@ -141,5 +151,3 @@ def test_gain_must_be_dimensionless(tmp_path):
     message = str(caught.value)
     assert str(path) in message and "parameters.K" in message and "first_order_sensor" in message
     assert "dimensionless" in message
-
-

@@ -33,19 +33,22 @@ at = [{at}]
 
 # Each form and the source it should produce, as a plain function of t (SI), for scipy.
 FORMS = {
-    "step": ('form = "step"\nbefore = "2 V"\nafter = "12 V"\nat = "0.3 s"',
-             lambda t: 2 + 10 * (t >= 0.3)),
-    "ramp": ('form = "ramp"\nstart = "1 V"\nrate = "3 V/s"\nfrom = "0.2 s"',
-             lambda t: 1 + 3 * (t - 0.2) * (t >= 0.2)),
-    "sine": ('form = "sine"\namplitude = "5 V"\nfrequency = "0.5 Hz"\nphase = "30 deg"\noffset = "1 V"',
-             lambda t: 1 + 5 * math.sin(2 * math.pi * 0.5 * t + math.radians(30))),
-    "exponential": ('form = "exponential"\ninitial = "10 V"\nfinal = "2 V"\ntime_constant = "0.4 s"',
-                    lambda t: 2 + 8 * math.exp(-t / 0.4)),
-    "pulse": ('form = "pulse"\nheight = "9 V"\nstart = "0.25 s"\nwidth = "0.5 s"',
-              lambda t: 9 * ((t >= 0.25) and (t < 0.75))),
+    "step": ('form = "step"\nbefore = "2 V"\nafter = "12 V"\nat = "0.3 s"', lambda t: 2 + 10 * (t >= 0.3)),
+    "ramp": ('form = "ramp"\nstart = "1 V"\nrate = "3 V/s"\nfrom = "0.2 s"', lambda t: 1 + 3 * (t - 0.2) * (t >= 0.2)),
+    "sine": (
+        'form = "sine"\namplitude = "5 V"\nfrequency = "0.5 Hz"\nphase = "30 deg"\noffset = "1 V"',
+        lambda t: 1 + 5 * math.sin(2 * math.pi * 0.5 * t + math.radians(30)),
+    ),
+    "exponential": (
+        'form = "exponential"\ninitial = "10 V"\nfinal = "2 V"\ntime_constant = "0.4 s"',
+        lambda t: 2 + 8 * math.exp(-t / 0.4),
+    ),
+    "pulse": (
+        'form = "pulse"\nheight = "9 V"\nstart = "0.25 s"\nwidth = "0.5 s"',
+        lambda t: 9 * ((t >= 0.25) and (t < 0.75)),
+    ),
     "constant": ('form = "constant"\nvalue = "7 V"', lambda t: 7.0),
-    "expression": ('form = "expression"\nexpression = "V_0*(1 - exp(-t/T_r))"',
-                   lambda t: 6 * (1 - math.exp(-t / 0.2))),
+    "expression": ('form = "expression"\nexpression = "V_0*(1 - exp(-t/T_r))"', lambda t: 6 * (1 - math.exp(-t / 0.2))),
 }
 
 
@@ -65,8 +68,16 @@ def test_each_form_agrees_with_an_independent_integration(tmp_path, form):
     d = build_sheet(write(tmp_path, text)).derivation
     assert d.verification.passed
     tau = 1.0  # 10 kohm * 100 uF
-    result = solve_ivp(lambda t, v: [(source(t) - v[0]) / tau], (0, 1.6), [1.0], method="LSODA",
-                       t_eval=points, rtol=1e-10, atol=1e-12, max_step=0.005)
+    result = solve_ivp(
+        lambda t, v: [(source(t) - v[0]) / tau],
+        (0, 1.6),
+        [1.0],
+        method="LSODA",
+        t_eval=points,
+        rtol=1e-10,
+        atol=1e-12,
+        max_step=0.005,
+    )
     for value, expected in zip(d.numbers.values, result.y[0]):
         assert value.y == pytest.approx(expected, rel=1e-5, abs=1e-6)
 
@@ -86,21 +97,32 @@ def test_sinusoid_steady_state_figures(tmp_path):
 def test_steady_state_amplitude_is_seen_in_the_solution(tmp_path):
     forcing = 'form = "sine"\namplitude = "1 V"\nfrequency = "2 Hz"'
     late = np.linspace(8.0, 8.5, 26)  # one period, long after the transient (tau = 0.2 s)
-    path = write(tmp_path, RC.format(C="20 uF", at=", ".join(f'"{t:.3f} s"' for t in late), forcing=forcing)
-                 .replace('value = "1 V"', 'value = "0 V"'))
+    path = write(
+        tmp_path,
+        RC.format(C="20 uF", at=", ".join(f'"{t:.3f} s"' for t in late), forcing=forcing).replace(
+            'value = "1 V"', 'value = "0 V"'
+        ),
+    )
     d = build_sheet(path).derivation
     swing = max(v.y for v in d.numbers.values)
     assert swing == pytest.approx(d.numbers.sine.amplitude_ratio, rel=2e-3)
 
 
-@pytest.mark.parametrize("forcing, key, fragment", [
-    ('form = "sine"\namplitude = "5 V"\nfrequency = "3 rad/s"', "forcing.frequency", "cycles"),
-    ('form = "step"\nbefore = "0 V"\nat = "1 s"', "forcing.after", "needs 'after'"),
-    ('form = "wobble"', "forcing.form", "unknown form 'wobble'"),
-    ('form = "step"\nafter = "3 A"\nat = "1 s"', "forcing.after", "dimension of V"),
-    ('form = "pulse"\nheight = "3 V"\nstart = "1 s"\nwidth = "2 s"\nlength = "1 s"', "forcing.length", "unknown key"),
-    ('form = "expression"\nexpression = "__import__(\'os\')"', "forcing.expression", "unexpected character"),
-])
+@pytest.mark.parametrize(
+    "forcing, key, fragment",
+    [
+        ('form = "sine"\namplitude = "5 V"\nfrequency = "3 rad/s"', "forcing.frequency", "cycles"),
+        ('form = "step"\nbefore = "0 V"\nat = "1 s"', "forcing.after", "needs 'after'"),
+        ('form = "wobble"', "forcing.form", "unknown form 'wobble'"),
+        ('form = "step"\nafter = "3 A"\nat = "1 s"', "forcing.after", "dimension of V"),
+        (
+            'form = "pulse"\nheight = "3 V"\nstart = "1 s"\nwidth = "2 s"\nlength = "1 s"',
+            "forcing.length",
+            "unknown key",
+        ),
+        ('form = "expression"\nexpression = "__import__(\'os\')"', "forcing.expression", "unexpected character"),
+    ],
+)
 def test_forcing_errors_name_the_key(tmp_path, forcing, key, fragment):
     path = write(tmp_path, RC.format(C="100 uF", at='"1 s"', forcing=forcing))
     with pytest.raises(CalcsheetError) as info:

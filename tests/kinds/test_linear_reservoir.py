@@ -79,7 +79,10 @@ def test_outflow_follows_the_linear_reservoir_routing_formula(steady):
 def test_recession_halves_the_outflow_in_k_ln_2(tmp_path):
     # Common practice, no source: with no inflow the storage, and so the outflow S/k, decays as exp(-t/k)
     # and halves in k*ln 2. The inflow is left out here, so the kind's default Q_in = 0 applies.
-    path = write(tmp_path, "recession", """
+    path = write(
+        tmp_path,
+        "recession",
+        """
 [sheet]
 title = "Recession of a small catchment after rain stops (demo)"
 [model]
@@ -91,7 +94,8 @@ k = "2.5 d"
 value = "1200000 m^3"
 [evaluate]
 reach = ["600000 m^3"]
-""")
+""",
+    )
     built = build_sheet(path)
     derivation = built.derivation
     assert derivation.passed
@@ -112,7 +116,10 @@ def test_checks_without_a_stated_inflow_and_with_a_bad_storage_constant():
 def test_step_inflow_given_as_forcing(tmp_path):
     # The routing formula above (hydrology texts, linear reservoir; formula only) applied over two steps of
     # constant inflow: 0 m^3/s until 1 h, then 2 m^3/s. Numbers are this test's own.
-    path = write(tmp_path, "step", """
+    path = write(
+        tmp_path,
+        "step",
+        """
 [sheet]
 title = "Pond fed by a pump switched on after an hour (demo)"
 [model]
@@ -128,7 +135,8 @@ at = "1 h"
 value = "10000 m^3"
 [evaluate]
 at = ["3 h"]
-""")
+""",
+    )
     k = 4 * HOUR
 
     def routed(q_1: float, inflow: float, dt: float) -> float:

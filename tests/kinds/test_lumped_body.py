@@ -13,15 +13,26 @@ from calcsheet.pipeline import build_sheet, render
 from tests.kinds.helpers import worded
 
 # A steel block with a heater pad in still air (invented for these tests).
-BLOCK = {"rho": "7850 kg/m^3", "c_p": "460 J/(kg*K)", "V": "1.0e-4 m^3", "A": "0.016 m^2",
-         "h": "25 W/(m^2*K)", "k": "45 W/(m*K)", "T_inf": "20 degC", "Q": "10 W"}
+BLOCK = {
+    "rho": "7850 kg/m^3",
+    "c_p": "460 J/(kg*K)",
+    "V": "1.0e-4 m^3",
+    "A": "0.016 m^2",
+    "h": "25 W/(m^2*K)",
+    "k": "45 W/(m*K)",
+    "T_inf": "20 degC",
+    "Q": "10 W",
+}
 
 
-def write_input(tmp_path, name: str, parameters: dict, initial: str, evaluate: str = "",
-                forcing: str = "", extra: str = "") -> object:
+def write_input(
+    tmp_path, name: str, parameters: dict, initial: str, evaluate: str = "", forcing: str = "", extra: str = ""
+) -> object:
     lines = "\n".join(f'{key} = "{value}"' for key, value in parameters.items())
-    text = (f'[sheet]\ntitle = "{name} (test)"\n\n[model]\nkind = "lumped_body"\n\n[parameters]\n{lines}\n\n'
-            f'{forcing}\n[initial]\nvalue = "{initial}"\n\n[evaluate]\n{evaluate}\n{extra}')
+    text = (
+        f'[sheet]\ntitle = "{name} (test)"\n\n[model]\nkind = "lumped_body"\n\n[parameters]\n{lines}\n\n'
+        f'{forcing}\n[initial]\nvalue = "{initial}"\n\n[evaluate]\n{evaluate}\n{extra}'
+    )
     path = tmp_path / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
     return path
@@ -34,9 +45,14 @@ def sphere(diameter: float) -> dict:
 
 @pytest.fixture(scope="module")
 def block(tmp_path_factory):
-    path = write_input(tmp_path_factory.mktemp("block"), "block", BLOCK, "20 degC",
-                       'at = ["10 min", "30 min"]\nreach = ["40 degC"]',
-                       extra='[[criteria]]\ncheck = "final_value <= 60 degC"\n')
+    path = write_input(
+        tmp_path_factory.mktemp("block"),
+        "block",
+        BLOCK,
+        "20 degC",
+        'at = ["10 min", "30 min"]\nreach = ["40 degC"]',
+        extra='[[criteria]]\ncheck = "final_value <= 60 degC"\n',
+    )
     built = build_sheet(path)
     return built, render(built.sheet, ("txt", "json"))
 
@@ -59,8 +75,14 @@ def test_thermocouple_bead_time_constant(tmp_path):
     # D = 1 mm, c = 180 J/(kg K), h = 250 W/(m^2 K), rho = 9300 kg/m^3 give tau = 1.116 s, and the bead
     # is within 95 % of the change after three time constants. Part read in the source, part from memory.
     # Gas 120 degC, bead start 20 degC and k = 20 W/(m K) (only for the Biot note) are chosen here.
-    parameters = {"rho": "9300 kg/m^3", "c_p": "180 J/(kg*K)", **sphere(1e-3), "h": "250 W/(m^2*K)",
-                  "k": "20 W/(m*K)", "T_inf": "120 degC"}
+    parameters = {
+        "rho": "9300 kg/m^3",
+        "c_p": "180 J/(kg*K)",
+        **sphere(1e-3),
+        "h": "250 W/(m^2*K)",
+        "k": "20 W/(m*K)",
+        "T_inf": "120 degC",
+    }
     path = write_input(tmp_path, "bead", parameters, "20 degC", 'at = ["3.348 s"]')
     derivation = build_sheet(path).derivation
     assert derivation.numbers.time_constant == pytest.approx(1.116, abs=0.0005)
@@ -133,5 +155,3 @@ def test_ambient_ramp_given_as_ramp_form(tmp_path):
 def test_conductivity_is_not_reported_unused(block):
     _, rendered = block
     assert "not used in the equation: k" not in rendered["txt"]
-
-

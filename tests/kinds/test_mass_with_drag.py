@@ -87,8 +87,9 @@ def test_force_pulse_agrees_with_scipy_lsoda(tmp_path):
         return [(push - 200.0 * u[0]) / 40.0]
 
     points = [v.at.si for v in built.derivation.numbers.values]
-    reference = solve_ivp(rate, (0.0, max(points)), [0.0], method="LSODA", t_eval=points,
-                          rtol=1e-10, atol=1e-13, max_step=1e-3)
+    reference = solve_ivp(
+        rate, (0.0, max(points)), [0.0], method="LSODA", t_eval=points, rtol=1e-10, atol=1e-13, max_step=1e-3
+    )
     assert reference.success
     derived = np.array([v.y for v in built.derivation.numbers.values])
     assert derived == pytest.approx(reference.y[0], rel=1e-5, abs=1e-10)
@@ -98,5 +99,3 @@ def test_force_pulse_agrees_with_scipy_lsoda(tmp_path):
     end_of_push = 0.5 * (1 - math.exp(-PULSE_WIDTH / 0.2))
     assert derived[2] == pytest.approx(end_of_push, rel=1e-9)
     assert derived[4] == pytest.approx(end_of_push * math.exp(-(1.0 - 0.4) / 0.2), rel=1e-9)
-
-

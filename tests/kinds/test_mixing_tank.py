@@ -85,8 +85,10 @@ def test_draining_tank_warns_it_empties_and_the_solution_stops(draining):
     assert empty.severity == WARNING
     # The model stops holding where V(t) = 0: 15 m^3 / (0.2 m^3/min) = 75 min (arithmetic of the inputs).
     assert empty.values["at"] == pytest.approx(4500.0, rel=1e-12)
-    assert "WARNING: the tank empties at t = 4500 s (75.00 min) after the start, from V_0/(q_out - q_in); the " \
-           "solution stops there." in out["txt"]
+    assert (
+        "WARNING: the tank empties at t = 4500 s (75.00 min) after the start, from V_0/(q_out - q_in); the "
+        "solution stops there." in out["txt"]
+    )
     assert built.derivation.numbers.valid_until == (pytest.approx(4500.0, rel=1e-6), "tank_runs_empty")
     assert built.derivation.numbers.span[1] <= 4500.0 * (1 + 1e-9)
 
@@ -97,8 +99,10 @@ def test_filling_tank_states_when_it_overflows():
     assert [n.code for n in notes] == ["tank_fills", "tank_overflows"]
     assert notes[1].severity == INFO and notes[1].values["at"] == pytest.approx(3600.0, rel=1e-12)
     law, overflow = worded(KIND.name, notes)
-    assert law == ("Volume law: V(t) = V_0 + (q_in - q_out)*t = 12.00 m^3 + 0.005000 m^3/s * t; the tank fills, "
-                   "so the coefficient of m varies with t.")
+    assert law == (
+        "Volume law: V(t) = V_0 + (q_in - q_out)*t = 12.00 m^3 + 0.005000 m^3/s * t; the tank fills, "
+        "so the coefficient of m varies with t."
+    )
     assert "overflows at t = 3600 s (60.00 min) after the start, from (V_max - V_0)/(q_in - q_out)" in overflow
     # Hours where hours read better: 1 m^3/h net into 10 m^3 of space takes 10 h.
     notes = KIND.checks({"q_in": 2 / 3600, "q_out": 1 / 3600, "c_in": 0.5, "V_0": 5.0, "V_max": 15.0})
@@ -119,7 +123,10 @@ def test_constant_volume_reaches_two_percent_of_its_limit_at_130_4_min(tmp_path)
     # Boyce & DiPrima, Elementary Differential Equations, section 2.3 (from memory): dQ/dt = r/4 - r*Q/100,
     # Q(0) = 50, r = 3 per min, limit 25, within 2 % of the limit after 130.4 min. Restated here with the
     # same numbers in SI units: 100 m^3 tank, 0.25 kg/m^3 inflow, 3 m^3/min in and out, 50 kg at the start.
-    path = write(tmp_path, "constant", """
+    path = write(
+        tmp_path,
+        "constant",
+        """
 [sheet]
 title = "Constant-volume flush (demo)"
 [model]
@@ -135,7 +142,8 @@ value = "50 kg"
 [evaluate]
 reach = ["25.5 kg"]
 at = ["1000 min"]  # 33 time constants: at the limit to 1e-12
-""")
+""",
+    )
     derivation = build_sheet(path).derivation
     assert derivation.passed
     assert derivation.numbers.values[0].y == pytest.approx(25.0, rel=1e-9)  # the limit
@@ -151,7 +159,10 @@ def test_capacity_used_by_the_checks_is_not_called_unused(starter):
 def test_step_in_inflow_concentration_given_as_forcing(tmp_path):
     # Closed form (common practice, no source: the linear balance integrated piece by piece), tank filling from
     # 6 m^3 at 0.5 in / 0.2 out m^3/min, 3 kg at the start, c_in stepping from 0 to 1.5 kg/m^3 at 10 min.
-    path = write(tmp_path, "step", """
+    path = write(
+        tmp_path,
+        "step",
+        """
 [sheet]
 title = "Dosing tank, dosing switched on after 10 minutes (demo)"
 [model]
@@ -169,7 +180,8 @@ at = "10 min"
 value = "3 kg"
 [evaluate]
 at = ["5 min", "30 min"]
-""")
+""",
+    )
     exponent = 0.5 / 0.3
 
     def volume(t_min: float) -> float:
@@ -192,7 +204,8 @@ def test_overflow_inside_the_plotted_range_stops_plot_and_search(tmp_path):
     0.4 m^3/min takes 100 min (arithmetic of the volume balance; common practice, no source)."""
     text = (Path(__file__).resolve().parents[2] / "inputs" / "equalisation-tank-tracer.toml").read_text()
     text = text.replace('to = "100 min"', 'to = "150 min"').replace(
-        'at = ["30 min", "60 min", "90 min"]', 'at = ["30 min", "60 min", "90 min", "120 min"]')
+        'at = ["30 min", "60 min", "90 min"]', 'at = ["30 min", "60 min", "90 min", "120 min"]'
+    )
     path = tmp_path / "overflowing.toml"
     path.write_text(text, encoding="utf-8")
     built = build_sheet(path)
@@ -227,7 +240,7 @@ parameters = { q_in = "0.2 m^3/min" }
 
 def _governing_step(text: str, interval: int) -> str:
     start = text.index(f"== Interval {interval}, step 1: Governing equation and data ==")
-    return text[start:text.index("== Interval", start + 1)]
+    return text[start : text.index("== Interval", start + 1)]
 
 
 def test_a_later_interval_writes_its_law_on_the_clock_started_at_the_switch(tmp_path):
@@ -241,6 +254,7 @@ def test_a_later_interval_writes_its_law_on_the_clock_started_at_the_switch(tmp_
     assert "so V = V_0 + (q_in - q_out)*(t - t_V)   (volume balance)" in second
     assert "dm/dt = q_in*c_in - q_out*m/(V_0 + (q_in - q_out)*(t - t_V))" in second
     assert "*t)" not in second.replace("*(t - t_V))", "")  # every step of the later interval on the shifted clock
-    assert ("Volume law: V(t) = V_0 + (q_in - q_out)*(t - t_V) = 16.00 m^3 - 0.006667 m^3/s * (t - t_V); "
-            "the tank drains") in second
+    assert (
+        "Volume law: V(t) = V_0 + (q_in - q_out)*(t - t_V) = 16.00 m^3 - 0.006667 m^3/s * (t - t_V); the tank drains"
+    ) in second
     assert "the tank empties at t = 3000 s (50.00 min), 2400 s (40.00 min) after t_V = 600.0 s (10.00 min)" in second

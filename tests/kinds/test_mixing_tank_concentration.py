@@ -56,8 +56,9 @@ at = [{", ".join(f'"{a:g} min"' for a in AT)}]
 @pytest.fixture(scope="module")
 def filling(tmp_path_factory):
     folder = tmp_path_factory.mktemp("filling")
-    concentration = build_sheet(write(folder, "concentration", filling_input(
-        "mixing_tank_concentration", "c [kg/m^3]", "0.5 kg/m^3")))
+    concentration = build_sheet(
+        write(folder, "concentration", filling_input("mixing_tank_concentration", "c [kg/m^3]", "0.5 kg/m^3"))
+    )
     return concentration, render(concentration.sheet, ("txt", "json"))
 
 
@@ -114,7 +115,10 @@ def test_constant_volume_reaches_two_percent_of_its_limit_at_130_4_min(tmp_path)
     # Q(0) = 50, r = 3 per min, limit 25, within 2 % of the limit after 130.4 min. Restated with the same
     # numbers in SI units as a concentration: 100 m^3 tank, 0.25 kg/m^3 inflow, 3 m^3/min in and out,
     # 50 kg / 100 m^3 = 0.5 kg/m^3 at the start; 2 % above the limit 0.25 kg/m^3 is 0.255 kg/m^3.
-    path = write(tmp_path, "constant", """
+    path = write(
+        tmp_path,
+        "constant",
+        """
 [sheet]
 title = "Constant-volume flush (demo)"
 [model]
@@ -130,7 +134,8 @@ value = "0.5 kg/m^3"
 [evaluate]
 reach = ["0.255 kg/m^3"]
 at = ["1000 min"]  # 33 time constants: at the limit to 1e-12
-""")
+""",
+    )
     derivation = build_sheet(path).derivation
     assert derivation.passed
     assert derivation.numbers.values[0].y == pytest.approx(0.25, rel=1e-9)  # the limit
@@ -154,8 +159,10 @@ def step_forced_concentration(at_min: float) -> float:
 
 
 def test_step_in_inflow_concentration_given_as_forcing(tmp_path):
-    text = filling_input("mixing_tank_concentration", "c [kg/m^3]", "0.5 kg/m^3").replace(
-        'c_in = "1.5 kg/m^3"\n', "") + '\n[forcing]\nform = "step"\nafter = "1.5 kg/m^3"\nat = "10 min"\n'
+    text = (
+        filling_input("mixing_tank_concentration", "c [kg/m^3]", "0.5 kg/m^3").replace('c_in = "1.5 kg/m^3"\n', "")
+        + '\n[forcing]\nform = "step"\nafter = "1.5 kg/m^3"\nat = "10 min"\n'
+    )
     derivation = build_sheet(write(tmp_path, "step", text)).derivation
     assert derivation.passed
     for at_min, found in zip(AT, derivation.numbers.values):

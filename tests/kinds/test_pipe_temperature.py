@@ -16,8 +16,10 @@ LENGTHS = (100.0, 400.0, 1200.0)
 
 def write_input(tmp_path, name: str, parameters: dict, initial: str, evaluate: str = "", extra: str = ""):
     lines = "\n".join(f'{key} = "{value}"' for key, value in parameters.items())
-    text = (f'[sheet]\ntitle = "{name} (test)"\n\n[model]\nkind = "pipe_temperature"\n\n[parameters]\n{lines}\n\n'
-            f'[initial]\nvalue = "{initial}"\n\n[evaluate]\n{evaluate}\n{extra}')
+    text = (
+        f'[sheet]\ntitle = "{name} (test)"\n\n[model]\nkind = "pipe_temperature"\n\n[parameters]\n{lines}\n\n'
+        f'[initial]\nvalue = "{initial}"\n\n[evaluate]\n{evaluate}\n{extra}'
+    )
     path = tmp_path / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
     return path
@@ -26,8 +28,14 @@ def write_input(tmp_path, name: str, parameters: dict, initial: str, evaluate: s
 @pytest.fixture(scope="module")
 def line(tmp_path_factory):
     at = ", ".join(f'"{length:g} m"' for length in LENGTHS)
-    path = write_input(tmp_path_factory.mktemp("line"), "line", LINE, "90 degC", f"at = [{at}]",
-                       '[[criteria]]\ncheck = "T(400 m) >= 75 degC"\n')
+    path = write_input(
+        tmp_path_factory.mktemp("line"),
+        "line",
+        LINE,
+        "90 degC",
+        f"at = [{at}]",
+        '[[criteria]]\ncheck = "T(400 m) >= 75 degC"\n',
+    )
     built = build_sheet(path)
     return built, render(built.sheet, ("txt", "json"))
 
@@ -64,5 +72,3 @@ def test_fluid_heated_by_warmer_surroundings(tmp_path):
     (reach,) = derivation.numbers.reach
     assert reach.x == pytest.approx(M_DOT * C_P / (U * P) * math.log(20 / 10), rel=1e-9)
     assert derivation.passed
-
-

@@ -58,19 +58,22 @@ def test_speed_in_rpm_is_converted_with_two_pi_per_revolution(spindle):
     assert "1910 rpm" in text
 
 
-
 def test_speed_declared_in_hertz_is_refused(tmp_path):
     text = SPINDLE.replace("omega [rpm]", "omega [Hz]").replace('value = "0 rpm"', 'value = "0 Hz"')
     with pytest.raises(CalcsheetError) as caught:
         build(tmp_path, "hertz", text)
     assert "model.unknown" in str(caught.value)
 
+
 def test_analogy_with_the_series_rl_circuit(tmp_path):
     # Force-voltage (impedance) analogy: torque <-> voltage, speed <-> current, J <-> L, b <-> R, so
     # J dw/dt + b w = T and L di/dt + R i = V are the same equation in the same numbers
     # (common practice, no source).
     times = '["0.05 s", "0.1 s", "0.2 s", "0.5 s"]'
-    rotating = build(tmp_path, "rotating", f"""
+    rotating = build(
+        tmp_path,
+        "rotating",
+        f"""
 [sheet]
 title = "Analogy check, rotating side"
 [model]
@@ -83,8 +86,12 @@ T_d = "4.0 N*m"
 value = "0.05 rad/s"
 [evaluate]
 at = {times}
-""")
-    electrical = build(tmp_path, "electrical", f"""
+""",
+    )
+    electrical = build(
+        tmp_path,
+        "electrical",
+        f"""
 [sheet]
 title = "Analogy check, electrical side"
 [model]
@@ -97,7 +104,8 @@ V_s = "4.0 V"
 value = "0.05 A"
 [evaluate]
 at = {times}
-""")
+""",
+    )
     a, e = rotating.derivation.numbers, electrical.derivation.numbers
     assert a.time_constant == pytest.approx(e.time_constant, rel=1e-12)
     assert a.final_value == pytest.approx(e.final_value, rel=1e-12)
@@ -137,10 +145,9 @@ def test_sinusoidal_torque_agrees_with_scipy_lsoda(tmp_path):
         return [(6.0 + 12.0 * math.sin(2 * math.pi * 0.05 * t) - 0.04 * w[0]) / 0.8]
 
     points = [v.at.si for v in built.derivation.numbers.values]
-    reference = solve_ivp(rate, (0.0, max(points)), [100 * RPM], method="LSODA", t_eval=points,
-                          rtol=1e-10, atol=1e-12, max_step=0.05)
+    reference = solve_ivp(
+        rate, (0.0, max(points)), [100 * RPM], method="LSODA", t_eval=points, rtol=1e-10, atol=1e-12, max_step=0.05
+    )
     assert reference.success
     derived = np.array([v.y for v in built.derivation.numbers.values])
     assert derived == pytest.approx(reference.y[0], rel=1e-5)
-
-

@@ -62,6 +62,7 @@ def test_zero_inductance_is_refused_as_an_input_error(tmp_path):
     with pytest.raises(CalcsheetError):
         build(tmp_path, "no_l", COIL.replace('L = "2.0 H"', 'L = "0 H"'))
 
+
 STEP_AT = 0.05
 STEP_INPUT = """
 [sheet]
@@ -93,8 +94,9 @@ def test_step_source_agrees_with_scipy_lsoda(tmp_path):
         return [((4.0 if t >= STEP_AT else 0.0) - 20.0 * i[0]) / 2.0]
 
     points = [v.at.si for v in built.derivation.numbers.values]
-    reference = solve_ivp(rate, (0.0, max(points)), [0.0], method="LSODA", t_eval=points,
-                          rtol=1e-10, atol=1e-13, max_step=1e-3)
+    reference = solve_ivp(
+        rate, (0.0, max(points)), [0.0], method="LSODA", t_eval=points, rtol=1e-10, atol=1e-13, max_step=1e-3
+    )
     assert reference.success
     derived = np.array([v.y for v in built.derivation.numbers.values])
     assert derived == pytest.approx(reference.y[0], rel=1e-5, abs=1e-10)
@@ -102,5 +104,3 @@ def test_step_source_agrees_with_scipy_lsoda(tmp_path):
     # (common practice, no source).
     assert derived[0] == 0.0
     assert derived[1] == pytest.approx(0.2 * (1 - math.exp(-(0.1 - STEP_AT) / 0.1)), rel=1e-9)
-
-

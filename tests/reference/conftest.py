@@ -3,4 +3,5 @@
 
 def pytest_configure(config):
     config.addinivalue_line(
-        "markers", "reference: compares calcsheet with an outside oracle such as sympy.dsolve (slower)")
+        "markers", "reference: compares calcsheet with an outside oracle such as sympy.dsolve (slower)"
+    )

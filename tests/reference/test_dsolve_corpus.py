@@ -39,14 +39,17 @@ QUADRATURE_RTOL = 1e-9
 FINAL_VALUE_BUG = (
     "product bug: numbers._final_value calls float() on sympy.limit(...) for sinusoidal forcing; the limit "
     "is an AccumBounds (is_finite and is_real are True), so derive() raises TypeError "
-    "'Cannot convert expression to float'")
+    "'Cannot convert expression to float'"
+)
 ZERO_INITIAL_BUG = (
     "product bug: verify.check_initial_condition divides |y(x0) - y0| by max(|y0|, 1e-300); with y0 = 0 a "
-    "rounding residue of about 1e-16 in the closed form gives a 'relative gap' of about 1e284, so the check fails")
+    "rounding residue of about 1e-16 in the closed form gives a 'relative gap' of about 1e284, so the check fails"
+)
 SINGULAR_SPAN_BUG = (
     "product bug: p(t) = q_out/(V_0 + (q_in - q_out)*t) is singular where the sump empties (t = 600 s), but "
     "numbers.span runs to 1000 s (5 natural scales of 200 s) and verify compares past the singularity: the "
-    "closed form goes on to negative masses, the integrator diverges, and the integration check fails")
+    "closed form goes on to negative masses, the integrator diverges, and the integration check fails"
+)
 DERIVE_FAILS: dict[str, str] = {}  # fixed: sinusoidal final value (AccumBounds)
 SELF_CHECK_FAILS: dict[str, str] = {}  # fixed: zero initial value; span past a singularity
 
@@ -104,6 +107,7 @@ class _OutOfTime(BaseException):
 
 def _with_alarm(seconds: float, thunk):
     """Run thunk on the main thread with a SIGALRM budget; None when it runs out."""
+
     def expire(signum, frame):
         raise _OutOfTime()
 
@@ -151,8 +155,15 @@ def radau_values(case: Case) -> list[float]:
     y = sp.Symbol("Y")
     slope = sp.lambdify((_T, y), r - p * y, modules="math")
     x0, xs = float(case.x0), [float(x) for x in case.samples]
-    solved = solve_ivp(lambda t, s: [slope(t, s[0])], (x0, xs[-1]), [float(case.y0)], method="Radau",
-                       t_eval=xs, rtol=1e-11, atol=1e-13 * max(abs(float(case.y0)), 1.0))
+    solved = solve_ivp(
+        lambda t, s: [slope(t, s[0])],
+        (x0, xs[-1]),
+        [float(case.y0)],
+        method="Radau",
+        t_eval=xs,
+        rtol=1e-11,
+        atol=1e-13 * max(abs(float(case.y0)), 1.0),
+    )
     assert solved.success, solved.message
     return [float(v) for v in solved.y[0]]
 
@@ -195,8 +206,14 @@ def _mp(value: sp.Expr) -> mpmath.mpf:
 def cases(known: dict[str, str] | None = None, only_dsolve: bool = False) -> list:
     """The corpus as pytest parameters; cases hit by a known product bug are strict xfails."""
     chosen = [c for c in CASES if c.dsolve or not only_dsolve]
-    return [pytest.param(c, id=c.name, marks=[pytest.mark.xfail(strict=True, reason=known[c.name])]
-                         if known and c.name in known else []) for c in chosen]
+    return [
+        pytest.param(
+            c,
+            id=c.name,
+            marks=[pytest.mark.xfail(strict=True, reason=known[c.name])] if known and c.name in known else [],
+        )
+        for c in chosen
+    ]
 
 
 def close(actual: list[float], expected: list[float], rtol: float, case: Case) -> None:
@@ -210,8 +227,18 @@ def close(actual: list[float], expected: list[float], rtol: float, case: Case) -
 def test_corpus_is_large_and_varied():
     kinds = " / ".join(c.kind for c in CASES)
     assert len(CASES) >= 14
-    for word in ("step", "ramp", "quadratic", "exponential", "natural rate", "sinusoidal", "homogeneous",
-                 "1/(a + b*t)", "x*dy/dx", "erf"):
+    for word in (
+        "step",
+        "ramp",
+        "quadratic",
+        "exponential",
+        "natural rate",
+        "sinusoidal",
+        "homogeneous",
+        "1/(a + b*t)",
+        "x*dy/dx",
+        "erf",
+    ):
         assert word in kinds, word
 
 
@@ -258,7 +285,7 @@ def test_standard_form_matches_reference(case, result):
     for ours, theirs in ((cls.p, p), (cls.r, r)):
         at = [float(sp.N(ours.subs(values).subs(x, float(v)), 20)) for v in case.samples]
         expected = [float(sp.N(theirs.subs(_T, v), 20)) for v in case.samples]
-        assert at == pytest.approx(expected, rel=1e-12, abs=1e-300), ("p" if theirs is p else "r")
+        assert at == pytest.approx(expected, rel=1e-12, abs=1e-300), "p" if theirs is p else "r"
 
 
 @pytest.mark.parametrize("case", cases({**DERIVE_FAILS, **SELF_CHECK_FAILS}))

@@ -24,8 +24,9 @@ def derive_text(tmp_path, name: str, text: str) -> Derivation:
     return derive(load_model(path))
 
 
-def lumped_sphere_input(title: str, diameter: float, rho: str, c_p: str, h: str, gas: str,
-                        start: str, levels: list[str]) -> str:
+def lumped_sphere_input(
+    title: str, diameter: float, rho: str, c_p: str, h: str, gas: str, start: str, levels: list[str]
+) -> str:
     """rho*c_p*V*dT/dt = -h*A*(T - T_inf), with V and A of a sphere worked out here."""
     volume = math.pi * diameter**3 / 6
     area = math.pi * diameter**2
@@ -103,8 +104,16 @@ def test_thermocouple_junction_time_constant_and_99_percent_time(tmp_path):
     diameter, k, h = 1e-3, 35.0, 210.0
     biot = h * (diameter / 6) / k
     assert biot < 0.1  # lumped analysis applies for Bi <= 0.1 (common practice, no source)
-    text = lumped_sphere_input("Thermocouple junction in a gas stream", diameter, "8500 kg/m^3",
-                               "320 J/(kg*K)", "210 W/(m^2*K)", "200 degC", "20 degC", ["198.2 degC"])
+    text = lumped_sphere_input(
+        "Thermocouple junction in a gas stream",
+        diameter,
+        "8500 kg/m^3",
+        "320 J/(kg*K)",
+        "210 W/(m^2*K)",
+        "200 degC",
+        "20 degC",
+        ["198.2 degC"],
+    )
     derivation = derive_text(tmp_path, "junction", text)
     assert derivation.numbers.time_constant == pytest.approx(2.159, abs=0.0005)
     (reach,) = derivation.numbers.reach
@@ -117,8 +126,16 @@ def test_steel_ball_cooling_in_air(tmp_path):
     # Source: a published national engineering entrance-exam question in heat transfer; figures read
     # in the source. Steel ball D = 60 mm, 1030 degC to 430 degC in 30 degC air, h = 20 W/(m^2 K),
     # rho = 7800 kg/m^3, c = 600 J/(kg K): tau = 2340 s, time about 2144 s.
-    text = lumped_sphere_input("Steel ball cooling in still air", 0.060, "7800 kg/m^3", "600 J/(kg*K)",
-                               "20 W/(m^2*K)", "30 degC", "1030 degC", ["430 degC"])
+    text = lumped_sphere_input(
+        "Steel ball cooling in still air",
+        0.060,
+        "7800 kg/m^3",
+        "600 J/(kg*K)",
+        "20 W/(m^2*K)",
+        "30 degC",
+        "1030 degC",
+        ["430 degC"],
+    )
     derivation = derive_text(tmp_path, "ball", text)
     assert derivation.numbers.time_constant == pytest.approx(2340, rel=1e-3)
     (reach,) = derivation.numbers.reach
@@ -180,11 +197,16 @@ CELSIUS = {"ambient": 25.0, "start": 350.0, "levels": [100.0, 40.0]}
 
 def cooling_text(unit: str) -> str:
     """The same billet in degC, K or degF; pint converts the temperatures (facts of units)."""
+
     def stated(celsius: float) -> str:
         return f"{UREG.Quantity(celsius, 'degC').to(unit).magnitude!r} {unit}"
 
-    return COOLING.format(unit=unit, ambient=stated(CELSIUS["ambient"]), start=stated(CELSIUS["start"]),
-                          levels=", ".join(f'"{stated(c)}"' for c in CELSIUS["levels"]))
+    return COOLING.format(
+        unit=unit,
+        ambient=stated(CELSIUS["ambient"]),
+        start=stated(CELSIUS["start"]),
+        levels=", ".join(f'"{stated(c)}"' for c in CELSIUS["levels"]),
+    )
 
 
 @pytest.fixture(scope="module")

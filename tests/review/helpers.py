@@ -9,7 +9,7 @@ from click.testing import CliRunner
 from calcsheet.cli import main
 
 # T(60 s) = 20 + 70 exp(-1.5) = 35.62 degC (first-order lag; common practice, no source), so the criterion passes.
-COUPON = '''# Test input (invented): a machined coupon cools in still air.
+COUPON = """# Test input (invented): a machined coupon cools in still air.
 [sheet]
 title = "Cool-down of a test coupon"
 number = "RV-1"
@@ -38,7 +38,7 @@ at = ["30 s"]
 [[criteria]]
 text = "Coupon below 60 degC after one minute"
 check = "T(60 s) <= 60 degC"
-'''
+"""
 
 
 def coupon(folder: Path, text: str = COUPON, name: str = "coupon.toml") -> Path:

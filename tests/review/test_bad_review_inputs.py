@@ -7,26 +7,51 @@ import pytest
 from tests.review.helpers import COUPON, coupon, run
 
 FP = "0" * 64
-ROWS = ('\n[[revisions]]\nrevision = "A"\ndate = "2026-02-01"\ndescription = "First issue"\n')
+ROWS = '\n[[revisions]]\nrevision = "A"\ndate = "2026-02-01"\ndescription = "First issue"\n'
 
 BAD = {
-    "status": (COUPON.replace('revision = "A"', 'revision = "A"\nstatus = "final"'), "sheet.status",
-               "'final' is not an issue status"),
-    "status type": (COUPON.replace('revision = "A"', 'revision = "A"\nstatus = 3'), "sheet.status",
-                    "not an issue status"),
-    "fingerprint": (COUPON + '\n[signoff]\nchecked = { name = "B", fingerprint = "abc" }\n',
-                    "signoff.checked.fingerprint", "64 hexadecimal digits"),
-    "signed without a name": (COUPON + f'\n[signoff]\nchecked = {{ name = "", fingerprint = "{FP}" }}\n',
-                              "signoff.checked.name", "needs the signer's name"),
-    "unknown sign-off key": (COUPON + '\n[signoff]\nchecked = { name = "B", stamp = "x" }\n', "signoff.checked",
-                             "must be a name"),
-    "revision differs from the last row": (COUPON.replace('revision = "A"', 'revision = "B"') + ROWS,
-                                           "sheet.revision", "differs from the last [[revisions]] row"),
-    "rows out of date order": (COUPON.replace('revision = "A"', 'revision = "B"') + ROWS
-                               + '\n[[revisions]]\nrevision = "B"\ndate = "2026-01-15"\ndescription = "Second"\n',
-                               "revisions[2].date", "go in date order"),
-    "signed before the revision": (COUPON + ROWS + '\n[signoff]\nchecked = { name = "B", date = "2026-01-20" }\n',
-                                   "signoff.checked.date", "before the date of revision A"),
+    "status": (
+        COUPON.replace('revision = "A"', 'revision = "A"\nstatus = "final"'),
+        "sheet.status",
+        "'final' is not an issue status",
+    ),
+    "status type": (
+        COUPON.replace('revision = "A"', 'revision = "A"\nstatus = 3'),
+        "sheet.status",
+        "not an issue status",
+    ),
+    "fingerprint": (
+        COUPON + '\n[signoff]\nchecked = { name = "B", fingerprint = "abc" }\n',
+        "signoff.checked.fingerprint",
+        "64 hexadecimal digits",
+    ),
+    "signed without a name": (
+        COUPON + f'\n[signoff]\nchecked = {{ name = "", fingerprint = "{FP}" }}\n',
+        "signoff.checked.name",
+        "needs the signer's name",
+    ),
+    "unknown sign-off key": (
+        COUPON + '\n[signoff]\nchecked = { name = "B", stamp = "x" }\n',
+        "signoff.checked",
+        "must be a name",
+    ),
+    "revision differs from the last row": (
+        COUPON.replace('revision = "A"', 'revision = "B"') + ROWS,
+        "sheet.revision",
+        "differs from the last [[revisions]] row",
+    ),
+    "rows out of date order": (
+        COUPON.replace('revision = "A"', 'revision = "B"')
+        + ROWS
+        + '\n[[revisions]]\nrevision = "B"\ndate = "2026-01-15"\ndescription = "Second"\n',
+        "revisions[2].date",
+        "go in date order",
+    ),
+    "signed before the revision": (
+        COUPON + ROWS + '\n[signoff]\nchecked = { name = "B", date = "2026-01-20" }\n',
+        "signoff.checked.date",
+        "before the date of revision A",
+    ),
 }
 
 

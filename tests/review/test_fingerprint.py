@@ -47,7 +47,7 @@ def test_a_change_to_what_the_sheet_states_changes_it(tmp_path, base, old, new):
     assert fingerprint_of(tmp_path, COUPON.replace(old, new)) != base
 
 
-REORDERED = '''[model]
+REORDERED = """[model]
 variable = "t [s]"
 unknown = "T [degC]"
 equation = "tau*dT/dt + T = T_a"
@@ -70,18 +70,21 @@ at = ["30 s"]
 [initial]
 value = "90 degC"
 at = "0 s"
-'''
+"""
 
 SAME = {
     "comments and blank lines": "# a comment\n\n" + COUPON.replace("\n[", "\n\n# note\n[") + "\n# end\n",
-    "whitespace": re.sub(r"(?m)^(\w+) = ", r"\1   =\t ", COUPON).replace("[sheet]", "  [sheet]  ")
-                                                                .replace('", "', '",   "'),
+    "whitespace": re.sub(r"(?m)^(\w+) = ", r"\1   =\t ", COUPON)
+    .replace("[sheet]", "  [sheet]  ")
+    .replace('", "', '",   "'),
     "key and table order": REORDERED,
     "sign-off names and dates": COUPON + '\n[signoff]\nprepared = { name = "Q. Other", date = "2026-04-01" }\n'
-                                         'checked = "R. Hand"\n',
-    "revision rows": COUPON.replace('revision = "A"', 'revision = "B"') + (
+    'checked = "R. Hand"\n',
+    "revision rows": COUPON.replace('revision = "A"', 'revision = "B"')
+    + (
         '\n[[revisions]]\nrevision = "A"\ndate = "2026-01-05"\ndescription = "First issue"\n'
-        '\n[[revisions]]\nrevision = "B"\ndate = "2026-02-05"\ndescription = "Reworded"\n'),
+        '\n[[revisions]]\nrevision = "B"\ndate = "2026-02-05"\ndescription = "Reworded"\n'
+    ),
     "issue status": COUPON.replace('revision = "A"', 'revision = "A"\nstatus = "for check"'),
     "originator": COUPON.replace("T. Writer", "U. Author"),
 }
@@ -98,11 +101,15 @@ def test_a_new_version_that_changes_a_derived_line_changes_it(tmp_path, base, mo
     steps = []
     for key, build in compose_module.STEPS:
         if key == "classification":
+
             def build(d, n, original=build):
                 section = original(d, n)
-                blocks = tuple(Paragraph(b.text.replace("solved", "worked out")) if isinstance(b, Paragraph) else b
-                               for b in section.blocks)
+                blocks = tuple(
+                    Paragraph(b.text.replace("solved", "worked out")) if isinstance(b, Paragraph) else b
+                    for b in section.blocks
+                )
                 return replace(section, blocks=blocks)
+
         steps.append((key, build))
     monkeypatch.setattr(compose_module, "STEPS", tuple(steps))
     assert fingerprint_of(tmp_path, COUPON) != base
@@ -114,8 +121,11 @@ def test_a_new_version_that_changes_nothing_shown_keeps_it(tmp_path, base, monke
 
     def rebuilt(d):
         sheet = original(d)
-        return replace(sheet, source_name="elsewhere.toml",
-                       sections=tuple(Section(s.key, s.title, tuple(s.blocks), s.number) for s in sheet.sections))
+        return replace(
+            sheet,
+            source_name="elsewhere.toml",
+            sections=tuple(Section(s.key, s.title, tuple(s.blocks), s.number) for s in sheet.sections),
+        )
 
     monkeypatch.setattr(compose_module, "compose", rebuilt)
     assert fingerprint_of(tmp_path, COUPON) == base

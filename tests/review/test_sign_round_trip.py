@@ -12,7 +12,9 @@ from tests.review.helpers import COUPON
 FP = "ab" * 32
 
 # Comments, odd spacing, literal strings, a table after [signoff] and a hand-written entry kept as written.
-SIGNED_BY_HAND = COUPON + '''
+SIGNED_BY_HAND = (
+    COUPON
+    + """
 [signoff]   # roles
 prepared = { name = 'P. Hand',   date = "2026-01-02" }  # by hand
 checked = "Someone"
@@ -22,11 +24,15 @@ checked = "Someone"
 revision = "A"
 date = "2026-01-01"
 description = "First issue"
-'''
+"""
+)
 
 
-@pytest.mark.parametrize("text", [COUPON, COUPON.rstrip("\n"), SIGNED_BY_HAND],
-                         ids=["no sign-off table", "no final newline", "hand-written table"])
+@pytest.mark.parametrize(
+    "text",
+    [COUPON, COUPON.rstrip("\n"), SIGNED_BY_HAND],
+    ids=["no sign-off table", "no final newline", "hand-written table"],
+)
 def test_only_the_signed_entry_changes(text):
     new = with_signature(text, "checked", "B. Checker", "2026-03-02", FP)
     entry = f'checked = {{name = "B. Checker", date = "2026-03-02", fingerprint = "{FP}"}}'
@@ -34,9 +40,9 @@ def test_only_the_signed_entry_changes(text):
     old_lines, new_lines = text.splitlines(), new.splitlines()
     if "checked = " in text:
         index = old_lines.index('checked = "Someone"')
-        assert new_lines == old_lines[:index] + [entry] + old_lines[index + 1:]
+        assert new_lines == old_lines[:index] + [entry] + old_lines[index + 1 :]
     else:
-        assert new.startswith(text) and new[len(text):].strip() == f"[signoff]\n{entry}"
+        assert new.startswith(text) and new[len(text) :].strip() == f"[signoff]\n{entry}"
 
 
 def test_signing_twice_replaces_the_entry():

@@ -16,9 +16,13 @@ def outputs(path, out):
     assert code in (0, 1), stdout + stderr
     stem = out / path.stem
     pdf = PdfReader(io.BytesIO((out / f"{path.stem}.pdf").read_bytes()))
-    return (code, stem.with_suffix(".txt").read_text(encoding="utf-8"),
-            json.loads(stem.with_suffix(".json").read_text(encoding="utf-8")),
-            stem.with_suffix(".html").read_text(encoding="utf-8"), [p.extract_text() for p in pdf.pages])
+    return (
+        code,
+        stem.with_suffix(".txt").read_text(encoding="utf-8"),
+        json.loads(stem.with_suffix(".json").read_text(encoding="utf-8")),
+        stem.with_suffix(".html").read_text(encoding="utf-8"),
+        [p.extract_text() for p in pdf.pages],
+    )
 
 
 def test_sign_change_stale_in_all_four_formats_then_re_sign(tmp_path):
@@ -33,8 +37,9 @@ def test_sign_change_stale_in_all_four_formats_then_re_sign(tmp_path):
     assert not any(STALE_MARK in page for page in pages)
     signed = record["fingerprint"]
 
-    path.write_text(COUPON.replace('"40 s"', '"45 s"') + path.read_text(encoding="utf-8")[len(COUPON):],
-                    encoding="utf-8")
+    path.write_text(
+        COUPON.replace('"40 s"', '"45 s"') + path.read_text(encoding="utf-8")[len(COUPON) :], encoding="utf-8"
+    )
     code, txt, record, html, pages = outputs(path, tmp_path / "changed")
     now = record["fingerprint"]
     assert now != signed and code == 0  # the criterion still passes: staleness alone does not fail a build
@@ -64,8 +69,9 @@ def test_status_lines_require_and_json(tmp_path):
     sign(path, "checked", "B. Checker", "2026-03-02")
     code, out, err = run("status", tmp_path)
     assert code == 0
-    assert out.splitlines()[0].startswith(f"{path}: RV-1 rev A, no status, PASS; prepared current, checked current, "
-                                          "approved unsigned; fingerprint ")
+    assert out.splitlines()[0].startswith(
+        f"{path}: RV-1 rev A, no status, PASS; prepared current, checked current, approved unsigned; fingerprint "
+    )
     assert f"{other}: RV-2 rev A, no status, PASS; prepared unsigned, checked unsigned" in out
     assert run("status", path, "--require", "checked")[0] == 0
     code, out, err = run("status", tmp_path, "--require", "checked")
@@ -77,8 +83,11 @@ def test_status_lines_require_and_json(tmp_path):
     code, out, _ = run("status", path, "--format", "json")
     sheet = json.loads(out)["sheets"][0]
     assert code == 0 and sheet["number"] == "RV-1" and sheet["verdict"] == "pass"
-    assert {role: v["state"] for role, v in sheet["signoff"].items()} == \
-        {"prepared": "stale", "checked": "stale", "approved": "unsigned"}
+    assert {role: v["state"] for role, v in sheet["signoff"].items()} == {
+        "prepared": "stale",
+        "checked": "stale",
+        "approved": "unsigned",
+    }
 
 
 def test_an_issued_sheet_needs_every_role_current(tmp_path):

@@ -30,9 +30,13 @@ SECRET = "FORBIDDEN-CONTENT-5521"
 
 def small_sheet() -> Sheet:
     return Sheet(
-        title_block=TitleBlock("Style isolation check", number=Field("Calculation", "SEC-1"),
-                               revision=Field("Revision", "A"), project=Field("Project"),
-                               originator=Field("Originator")),
+        title_block=TitleBlock(
+            "Style isolation check",
+            number=Field("Calculation", "SEC-1"),
+            revision=Field("Revision", "A"),
+            project=Field("Project"),
+            originator=Field("Originator"),
+        ),
         labels=sheet_labels(),
         outcome=Outcome(True, "All 1 criteria pass."),
         sections=(Section("basis", "Basis of the calculation", (Paragraph("A paragraph of the sheet."),)),),
@@ -80,19 +84,25 @@ def _write_style(style: Path, css: str = "", template: str = "") -> None:
         (style / "print.css").write_text(css, encoding="utf-8")
     if template:
         (style / "sheet.html.j2").write_text(
-            '{% extends "default/sheet.html.j2" %}\n{% block title_block %}' + template
-            + "{{ super() }}{% endblock %}\n", encoding="utf-8")
+            '{% extends "default/sheet.html.j2" %}\n{% block title_block %}'
+            + template
+            + "{{ super() }}{% endblock %}\n",
+            encoding="utf-8",
+        )
 
 
 HOSTILE_CSS = {
     "system file as an image": 'body {{ background-image: url("file:///etc/hostname"); }}',
     "image outside by relative path": 'body {{ background-image: url("../outside.png"); }}',
     "image over http": 'body {{ background-image: url("http://127.0.0.1:{port}/logo.png"); }}',
-    "system font by local()": ('@font-face {{ font-family: "Any"; src: local("DejaVu Sans"); }} '
-                               'body {{ font-family: "Any"; }}'),
-    "our font scheme walking out": ('@font-face {{ font-family: "Any"; '
-                                    'src: url("calcsheet-font:../../../../etc/hostname"); }}'
-                                    ' body {{ font-family: "Any"; }}'),
+    "system font by local()": (
+        '@font-face {{ font-family: "Any"; src: local("DejaVu Sans"); }} body {{ font-family: "Any"; }}'
+    ),
+    "our font scheme walking out": (
+        '@font-face {{ font-family: "Any"; '
+        'src: url("calcsheet-font:../../../../etc/hostname"); }}'
+        ' body {{ font-family: "Any"; }}'
+    ),
     "symbolic link out of the style folder": 'body {{ background-image: url("link.png"); }}',
 }
 HOSTILE_TEMPLATE = {
@@ -156,8 +166,11 @@ def test_a_style_logo_resolves_against_the_style_folder_from_any_working_folder(
     """Relative url() and src resolve against the style folder, not the folder the build runs in;
     and where the style folder lies does not change the bytes."""
     outside, style = places
-    _write_style(style, css=".title-block { background: url(logo.png) no-repeat right top; }",
-                 template='<img class="firm-logo" src="logo.png" alt="logo" style="width:8mm">')
+    _write_style(
+        style,
+        css=".title-block { background: url(logo.png) no-repeat right top; }",
+        template='<img class="firm-logo" src="logo.png" alt="logo" style="width:8mm">',
+    )
     elsewhere = outside / "elsewhere"
     elsewhere.mkdir()
     monkeypatch.chdir(elsewhere)
@@ -172,8 +185,10 @@ SANDBOX_ESCAPES = {
     "cycler globals": "{{ cycler.__init__.__globals__.os.popen('touch CANARY').read() }}",
     "joiner globals": "{{ joiner.__init__.__globals__['os'].system('touch CANARY') }}",
     "lipsum globals": "{{ lipsum.__globals__['os'].popen('touch CANARY').read() }}",
-    "subclasses walk": ("{% for c in ().__class__.__base__.__subclasses__() %}{% if c.__name__ == 'Popen' %}"
-                        "{{ c(['touch', 'CANARY']) }}{% endif %}{% endfor %}"),
+    "subclasses walk": (
+        "{% for c in ().__class__.__base__.__subclasses__() %}{% if c.__name__ == 'Popen' %}"
+        "{{ c(['touch', 'CANARY']) }}{% endif %}{% endfor %}"
+    ),
     "self reference": "{{ self.__init__.__globals__.__builtins__.__import__('os').system('touch CANARY') }}",
     "namespace class": "{{ namespace.__init__.__globals__.os.system('touch CANARY') }}",
     "format string": "{{ '{0.__init__.__globals__}'.format(cycler) }}",
@@ -199,9 +214,24 @@ def test_command_line_reports_a_hostile_style_in_one_line(places, tmp_path):
     out = tmp_path / "out"
     demo = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
     env = {k: v for k, v in os.environ.items() if k != "CALCSHEET_DEBUG"}
-    run = subprocess.run([sys.executable, "-c", "from calcsheet.cli import main; main()", "build", str(demo),
-                          "--style", str(style), "--format", "html", "--out", str(out)],
-                         capture_output=True, text=True, env=env)
+    run = subprocess.run(
+        [
+            sys.executable,
+            "-c",
+            "from calcsheet.cli import main; main()",
+            "build",
+            str(demo),
+            "--style",
+            str(style),
+            "--format",
+            "html",
+            "--out",
+            str(out),
+        ],
+        capture_output=True,
+        text=True,
+        env=env,
+    )
     assert run.returncode == 2, run.stderr
     lines = run.stderr.strip().splitlines()
     assert len(lines) == 1 and str(style) in lines[0] and "Traceback" not in run.stderr, run.stderr

@@ -14,8 +14,18 @@ from pypdf import PdfReader
 from calcsheet.model import Revision
 from calcsheet.pipeline import build_sheet, render
 from calcsheet.sheet.compose import sheet_labels
-from calcsheet.sheet.document import (Field, ItemList, Note, Outcome, Paragraph, Section, Sheet, SignOffLine, Table,
-                                      TitleBlock)
+from calcsheet.sheet.document import (
+    Field,
+    ItemList,
+    Note,
+    Outcome,
+    Paragraph,
+    Section,
+    Sheet,
+    SignOffLine,
+    Table,
+    TitleBlock,
+)
 from calcsheet.writers import html, json_record, pdf, text_record
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -88,17 +98,28 @@ UNSAFE = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\u202
 def forging_sheet(trick: str) -> Sheet:
     """A failing sheet whose every kind of text field tries to add lines of its own."""
     return Sheet(
-        title_block=TitleBlock("Title" + FORGED + trick, number=Field("Calculation", "X-1" + FORGED),
-                               revision=Field("Revision", "A" + trick), project=Field("Project", "P" + FORGED + trick),
-                               originator=Field("Originator")),
+        title_block=TitleBlock(
+            "Title" + FORGED + trick,
+            number=Field("Calculation", "X-1" + FORGED),
+            revision=Field("Revision", "A" + trick),
+            project=Field("Project", "P" + FORGED + trick),
+            originator=Field("Originator"),
+        ),
         labels=sheet_labels(),
         outcome=Outcome(False, "1 of 2 criteria FAIL.", ("FAIL: criterion text" + FORGED + trick,)),
-        sections=(Section("basis", "Basis" + FORGED, (
-            Paragraph("Purpose: a purpose" + FORGED + trick),
-            ItemList(("a reference" + FORGED, "an assumption" + trick)),
-            Table(("Symbol", "Source"), (("R", "a source" + FORGED + trick),), caption="Parameters" + FORGED),
-            Note("warning", "a note" + FORGED + trick),
-        ), 1),),
+        sections=(
+            Section(
+                "basis",
+                "Basis" + FORGED,
+                (
+                    Paragraph("Purpose: a purpose" + FORGED + trick),
+                    ItemList(("a reference" + FORGED, "an assumption" + trick)),
+                    Table(("Symbol", "Source"), (("R", "a source" + FORGED + trick),), caption="Parameters" + FORGED),
+                    Note("warning", "a note" + FORGED + trick),
+                ),
+                1,
+            ),
+        ),
         cautions=("a caution" + FORGED,),
         signoff=(SignOffLine("Prepared", "A. Name" + FORGED + trick, "2026-01-01"),),
         revisions=(Revision("A", "2026-01-01", "first issue" + FORGED + trick),),

@@ -6,7 +6,6 @@ from __future__ import annotations
 
 from pathlib import Path
 
-import pytest
 import sympy as sp
 
 from calcsheet.kinds import KIND_MODULES

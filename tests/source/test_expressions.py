@@ -30,8 +30,16 @@ def sym(text: str, derivative=None):
 def test_tokenize_kinds_texts_and_positions():
     tokens = ex.tokenize("R*C*dv / dt+v**2")
     assert [(tok.kind, tok.text) for tok in tokens] == [
-        ("name", "R"), ("op", "*"), ("name", "C"), ("op", "*"), ("derivative", "dv / dt"),
-        ("op", "+"), ("name", "v"), ("op", "**"), ("number", "2"), ("end", ""),
+        ("name", "R"),
+        ("op", "*"),
+        ("name", "C"),
+        ("op", "*"),
+        ("derivative", "dv / dt"),
+        ("op", "+"),
+        ("name", "v"),
+        ("op", "**"),
+        ("number", "2"),
+        ("end", ""),
     ]
     assert [tok.position for tok in tokens] == [0, 1, 2, 3, 4, 11, 12, 13, 15, 16]
 
@@ -47,16 +55,19 @@ def test_tokenize_double_star_is_one_operator():
     assert [tok.text for tok in tokens if tok.kind == "op"] == ["**"]
 
 
-@pytest.mark.parametrize("text, char", [
-    ("a; b", ";"),
-    ("a'b", "'"),
-    ("a @ b", "@"),
-    ("x[0]", "["),
-    ("a, b", ","),
-    ("x.real", "."),
-    ("τ*x", "τ"),
-    ("a == b", None),  # '=' is a token; the parser, not the tokenizer, refuses a second one
-])
+@pytest.mark.parametrize(
+    "text, char",
+    [
+        ("a; b", ";"),
+        ("a'b", "'"),
+        ("a @ b", "@"),
+        ("x[0]", "["),
+        ("a, b", ","),
+        ("x.real", "."),
+        ("τ*x", "τ"),
+        ("a == b", None),  # '=' is a token; the parser, not the tokenizer, refuses a second one
+    ],
+)
 def test_tokenize_refuses_characters_outside_the_grammar(text, char):
     if char is None:
         ex.tokenize(text)
@@ -80,7 +91,7 @@ def test_tokenize_refuses_overlong_text():
 def test_unary_minus_binds_looser_than_power():
     node = ex.parse_expression("-x^2")
     assert node == ex.Unary("-", ex.Binary("^", ex.Name("x"), ex.Number("2")))
-    assert sym("-x^2") == -(x ** 2)
+    assert sym("-x^2") == -(x**2)
     assert sym("-x^2").subs(x, 3) == -9
 
 
@@ -137,35 +148,44 @@ def test_minus_of_parenthesised_sum():
 
 
 # -------------------------------------------------------------------------- functions
-@pytest.mark.parametrize("text, expected", [
-    ("exp(x)", sp.exp(x)),
-    ("log(x)", sp.log(x)),
-    ("ln(x)", sp.log(x)),
-    ("log10(x)", sp.log(x, 10)),
-    ("sqrt(x)", sp.sqrt(x)),
-    ("sin(x)", sp.sin(x)),
-    ("cos(x)", sp.cos(x)),
-    ("tan(x)", sp.tan(x)),
-    ("asin(x)", sp.asin(x)),
-    ("arcsin(x)", sp.asin(x)),
-    ("acos(x)", sp.acos(x)),
-    ("arccos(x)", sp.acos(x)),
-    ("atan(x)", sp.atan(x)),
-    ("arctan(x)", sp.atan(x)),
-    ("sinh(x)", sp.sinh(x)),
-    ("cosh(x)", sp.cosh(x)),
-    ("tanh(x)", sp.tanh(x)),
-    ("abs(x)", sp.Abs(x)),
-    ("erf(x)", sp.erf(x)),
-    ("exp(-t/tau)", sp.exp(-t / tau)),
-])
+@pytest.mark.parametrize(
+    "text, expected",
+    [
+        ("exp(x)", sp.exp(x)),
+        ("log(x)", sp.log(x)),
+        ("ln(x)", sp.log(x)),
+        ("log10(x)", sp.log(x, 10)),
+        ("sqrt(x)", sp.sqrt(x)),
+        ("sin(x)", sp.sin(x)),
+        ("cos(x)", sp.cos(x)),
+        ("tan(x)", sp.tan(x)),
+        ("asin(x)", sp.asin(x)),
+        ("arcsin(x)", sp.asin(x)),
+        ("acos(x)", sp.acos(x)),
+        ("arccos(x)", sp.acos(x)),
+        ("atan(x)", sp.atan(x)),
+        ("arctan(x)", sp.atan(x)),
+        ("sinh(x)", sp.sinh(x)),
+        ("cosh(x)", sp.cosh(x)),
+        ("tanh(x)", sp.tanh(x)),
+        ("abs(x)", sp.Abs(x)),
+        ("erf(x)", sp.erf(x)),
+        ("exp(-t/tau)", sp.exp(-t / tau)),
+    ],
+)
 def test_functions_map_to_sympy(text, expected):
     assert sym(text) == expected
 
 
-@pytest.mark.parametrize("alias, canonical", [
-    ("ln", "log"), ("arcsin", "asin"), ("arccos", "acos"), ("arctan", "atan"),
-])
+@pytest.mark.parametrize(
+    "alias, canonical",
+    [
+        ("ln", "log"),
+        ("arcsin", "asin"),
+        ("arccos", "acos"),
+        ("arctan", "atan"),
+    ],
+)
 def test_function_aliases_are_canonicalised_in_the_tree(alias, canonical):
     node = ex.parse_expression(f"{alias}(x)")
     assert node == ex.Call(canonical, ex.Name("x"))
@@ -246,18 +266,21 @@ def test_division_by_literal_zero_is_refused():
 
 
 # ------------------------------------------------------------------------- derivatives
-@pytest.mark.parametrize("text, of, wrt, order", [
-    ("dv/dt", "v", "t", 1),
-    ("dT/dt", "T", "t", 1),
-    ("dv / dt", "v", "t", 1),
-    ("dv/ dt", "v", "t", 1),
-    ("dtheta/dt", "theta", "t", 1),
-    ("dv/dtau", "v", "tau", 1),
-    ("dT_s/dx", "T_s", "x", 1),
-    ("d2v/dt2", "v", "t", 2),
-    ("d^2v/dt^2", "v", "t", 2),
-    ("d²v/dt²", "v", "t", 2),
-])
+@pytest.mark.parametrize(
+    "text, of, wrt, order",
+    [
+        ("dv/dt", "v", "t", 1),
+        ("dT/dt", "T", "t", 1),
+        ("dv / dt", "v", "t", 1),
+        ("dv/ dt", "v", "t", 1),
+        ("dtheta/dt", "theta", "t", 1),
+        ("dv/dtau", "v", "tau", 1),
+        ("dT_s/dx", "T_s", "x", 1),
+        ("d2v/dt2", "v", "t", 2),
+        ("d^2v/dt^2", "v", "t", 2),
+        ("d²v/dt²", "v", "t", 2),
+    ],
+)
 def test_derivative_tokens(text, of, wrt, order):
     node = ex.parse_expression(text)
     assert node == ex.Derivative(of, wrt, order, text)
@@ -266,8 +289,7 @@ def test_derivative_tokens(text, of, wrt, order):
 
 def test_derivative_in_a_product_keeps_the_product():
     node = ex.parse_expression("R*C*dv/dt")
-    assert node == ex.Binary("*", ex.Binary("*", ex.Name("R"), ex.Name("C")),
-                             ex.Derivative("v", "t", 1, "dv/dt"))
+    assert node == ex.Binary("*", ex.Binary("*", ex.Name("R"), ex.Name("C")), ex.Derivative("v", "t", 1, "dv/dt"))
 
 
 @pytest.mark.parametrize("text", ["dt", "dvdt", "dx", "x/dt"])
@@ -300,17 +322,20 @@ def test_parse_equation_sides():
     assert to_sympy(eq.left, SYMBOLS, lambda d: DV) == R * C * DV + v
 
 
-@pytest.mark.parametrize("text, fragment", [
-    ("a + b", "expected '=' between the two sides"),
-    ("a = b = c", "expected an operator or the end but found '='"),
-    ("", "equation is empty"),
-    ("   ", "equation is empty"),
-    ("a = ", "expected a number, a name or '(' but found the end"),
-    ("(a = b", "expected ')'"),
-    ("a) = b", "expected '='"),
-    ("a = b +", "but found the end"),
-    ("2x = 1", "expected '='"),
-])
+@pytest.mark.parametrize(
+    "text, fragment",
+    [
+        ("a + b", "expected '=' between the two sides"),
+        ("a = b = c", "expected an operator or the end but found '='"),
+        ("", "equation is empty"),
+        ("   ", "equation is empty"),
+        ("a = ", "expected a number, a name or '(' but found the end"),
+        ("(a = b", "expected ')'"),
+        ("a) = b", "expected '='"),
+        ("a = b +", "but found the end"),
+        ("2x = 1", "expected '='"),
+    ],
+)
 def test_parse_equation_errors(text, fragment):
     with pytest.raises(InputError) as info:
         ex.parse_equation(text)
@@ -323,14 +348,17 @@ def test_parse_equation_refuses_non_text(value):
         ex.parse_equation(value)
 
 
-@pytest.mark.parametrize("text, fragment", [
-    ("a = b", "expected an operator or the end but found '='"),
-    ("", "expression is empty"),
-    ("a +", "found the end"),
-    ("(a", "expected ')'"),
-    ("a b", "expected an operator or the end but found 'b'"),
-    ("*a", "expected a number, a name or '('"),
-])
+@pytest.mark.parametrize(
+    "text, fragment",
+    [
+        ("a = b", "expected an operator or the end but found '='"),
+        ("", "expression is empty"),
+        ("a +", "found the end"),
+        ("(a", "expected ')'"),
+        ("a b", "expected an operator or the end but found 'b'"),
+        ("*a", "expected a number, a name or '('"),
+    ],
+)
 def test_parse_expression_errors(text, fragment):
     with pytest.raises(InputError) as info:
         ex.parse_expression(text)
@@ -390,31 +418,56 @@ def test_children():
 
 
 # -------------------------------------------------------------------------------- render
-@pytest.mark.parametrize("text, rendered", [
-    ("-x^2", "-x^2"),
-    ("(-x)^2", "(-x)^2"),
-    ("2^-3", "2^(-3)"),
-    ("a^b^c", "a^b^c"),
-    ("(a^b)^c", "(a^b)^c"),
-    ("a**b", "a^b"),
-    ("a-(b-c)", "a - (b - c)"),
-    ("a/(b*c)", "a/(b*c)"),
-    ("(a+b)*c", "(a + b)*c"),
-    ("-(a+b)", "-(a + b)"),
-    ("ln(x)", "log(x)"),
-    ("R*C*dv/dt+v", "R*C*dv/dt + v"),
-    ("d^2v/dt^2", "d^2v/dt^2"),
-])
+@pytest.mark.parametrize(
+    "text, rendered",
+    [
+        ("-x^2", "-x^2"),
+        ("(-x)^2", "(-x)^2"),
+        ("2^-3", "2^(-3)"),
+        ("a^b^c", "a^b^c"),
+        ("(a^b)^c", "(a^b)^c"),
+        ("a**b", "a^b"),
+        ("a-(b-c)", "a - (b - c)"),
+        ("a/(b*c)", "a/(b*c)"),
+        ("(a+b)*c", "(a + b)*c"),
+        ("-(a+b)", "-(a + b)"),
+        ("ln(x)", "log(x)"),
+        ("R*C*dv/dt+v", "R*C*dv/dt + v"),
+        ("d^2v/dt^2", "d^2v/dt^2"),
+    ],
+)
 def test_render(text, rendered):
     assert ex.render(ex.parse_expression(text)) == rendered
 
 
-@pytest.mark.parametrize("text", [
-    "-x^2", "2^-3", "a^b^c", "(a^b)^c", "a**b**c", "a - (b - c)", "a/(b/c)", "a/b/c",
-    "-(a + b)*c", "(-a)^b", "a^-b^c", "2*-3", "--a", "a - -b", "exp(-t/tau)*(1 - a)",
-    "sqrt(a^2 + b^2)/(x - 1)", "R*C*dv / dt + v", "a*(b*c)", "a + (b + c)", "a*(b/c)",
-    "abs(-a)^0.5", "1.5e-3*x", "pi*x^2/4",
-])
+@pytest.mark.parametrize(
+    "text",
+    [
+        "-x^2",
+        "2^-3",
+        "a^b^c",
+        "(a^b)^c",
+        "a**b**c",
+        "a - (b - c)",
+        "a/(b/c)",
+        "a/b/c",
+        "-(a + b)*c",
+        "(-a)^b",
+        "a^-b^c",
+        "2*-3",
+        "--a",
+        "a - -b",
+        "exp(-t/tau)*(1 - a)",
+        "sqrt(a^2 + b^2)/(x - 1)",
+        "R*C*dv / dt + v",
+        "a*(b*c)",
+        "a + (b + c)",
+        "a*(b/c)",
+        "abs(-a)^0.5",
+        "1.5e-3*x",
+        "pi*x^2/4",
+    ],
+)
 def test_render_round_trip(text):
     """Rendering and re-parsing keeps the meaning, and rendering again is stable."""
     once = ex.render(ex.parse_expression(text))

@@ -56,14 +56,20 @@ value = "{initial}"
 """
 
 
-def free(equation="R*C*dv/dt + v = 0", parameters='R = "10 kohm"\nC = "100 uF"', unknown="v [V]",
-         initial="5 V", sheet="", extra=""):
-    return FREE.format(equation=equation, parameters=parameters, unknown=unknown, initial=initial,
-                       sheet=sheet, extra=extra)
+def free(
+    equation="R*C*dv/dt + v = 0",
+    parameters='R = "10 kohm"\nC = "100 uF"',
+    unknown="v [V]",
+    initial="5 V",
+    sheet="",
+    extra="",
+):
+    return FREE.format(
+        equation=equation, parameters=parameters, unknown=unknown, initial=initial, sheet=sheet, extra=extra
+    )
 
 
-def kind(parameters='R = "10 kohm"\nC = "100 uF"', kind="series_rc", model="", initial="0 V", sheet="",
-         extra=""):
+def kind(parameters='R = "10 kohm"\nC = "100 uF"', kind="series_rc", model="", initial="0 V", sheet="", extra=""):
     return KIND.format(kind=kind, model=model, parameters=parameters, initial=initial, sheet=sheet, extra=extra)
 
 
@@ -88,8 +94,7 @@ def refused(tmp_path: Path, text: str, key: str, *fragments: str, kind=Calcsheet
 
 # ------------------------------------------------------- class: several independent mistakes
 def test_three_independent_mistakes_are_all_reported_one_per_line_with_exit_2(tmp_path):
-    text = free(sheet='date = "2024-13-45"', initial="2 A",
-                extra='[[criteria]]\ncheck = "v(1 s) <= 3 kg"\n')
+    text = free(sheet='date = "2024-13-45"', initial="2 A", extra='[[criteria]]\ncheck = "v(1 s) <= 3 kg"\n')
     path = write(tmp_path, text)
     result = CliRunner().invoke(main, ["check", str(path)])
     assert result.exit_code == 2
@@ -102,14 +107,23 @@ def test_three_independent_mistakes_are_all_reported_one_per_line_with_exit_2(tm
 
 
 def test_mistakes_in_sheet_signoff_revisions_parameters_evaluate_and_plot_are_gathered(tmp_path):
-    text = free(sheet='number = 7\n[signoff]\nchecked = 5\n[[revisions]]\nrevision = ""\ndescription = "x"',
-                parameters='R = "10 kohmz"\nC = "100 uF"',
-                extra='[evaluate]\nat = ["1 V"]\nreach = "2 s"\n[plot]\nto = "3 A"\n')
+    text = free(
+        sheet='number = 7\n[signoff]\nchecked = 5\n[[revisions]]\nrevision = ""\ndescription = "x"',
+        parameters='R = "10 kohmz"\nC = "100 uF"',
+        extra='[evaluate]\nat = ["1 V"]\nreach = "2 s"\n[plot]\nto = "3 A"\n',
+    )
     with pytest.raises(ErrorList) as info:
         load_model(write(tmp_path, text))
     keys = [e.key for e in info.value.errors]
-    assert keys == ["sheet.number", "signoff.checked", "revisions[1].revision", "parameters.R",
-                    "evaluate.at[1]", "evaluate.reach[1]", "plot.to"]
+    assert keys == [
+        "sheet.number",
+        "signoff.checked",
+        "revisions[1].revision",
+        "parameters.R",
+        "evaluate.at[1]",
+        "evaluate.reach[1]",
+        "plot.to",
+    ]
     # the equation needs its parameters: with R unreadable it is not checked, so no second error
 
 
@@ -141,8 +155,12 @@ def test_two_hundred_nested_parentheses_are_refused_by_our_parser(tmp_path):
 
 def test_a_long_chain_of_signs_and_a_long_sum_are_refused_not_recursed(tmp_path):
     refused(tmp_path, free(equation="R*C*dv/dt + v = " + "-" * 900 + "v"), "model.equation", "nests more than")
-    refused(tmp_path, free(equation="R*C*dv/dt + v = " + "+".join(["v"] * 600)), "model.equation",
-            "more than 200 operations deep")
+    refused(
+        tmp_path,
+        free(equation="R*C*dv/dt + v = " + "+".join(["v"] * 600)),
+        "model.equation",
+        "more than 200 operations deep",
+    )
 
 
 def test_an_integer_of_thousands_of_digits_is_refused(tmp_path):
@@ -178,8 +196,12 @@ def test_long_runs_of_spaces_within_the_bounds_are_read_or_refused_by_their_cont
         check = "v(1 s)" + " " * 4000 + "x"
         refused(tmp_path, free(extra=f'[[criteria]]\ncheck = "{check}"\n'), "criteria[1].check", "must read like")
     elif where == "unknown":
-        refused(tmp_path, free(unknown="v" + spaces + "[V" + spaces + "x"), "model.unknown",
-                "must be a name and a unit in brackets")
+        refused(
+            tmp_path,
+            free(unknown="v" + spaces + "[V" + spaces + "x"),
+            "model.unknown",
+            "must be a name and a unit in brackets",
+        )
     else:
         refused(tmp_path, free(initial="5" + spaces + "V" + spaces + "!"), "initial.value", "cannot have")
 
@@ -187,33 +209,53 @@ def test_long_runs_of_spaces_within_the_bounds_are_read_or_refused_by_their_cont
 # ------------------------------------------------ class: user text as a re.sub replacement
 @pytest.mark.parametrize("expression", [r"V_0\\g<0>", r"V_0*\\1", "V_0\\\\"])
 def test_forcing_expression_with_backslashes_is_refused_not_expanded(tmp_path, expression):
-    text = kind(parameters='R = "10 kohm"\nC = "100 uF"\nV_0 = "6 V"',
-                extra=f'[forcing]\nform = "expression"\nexpression = "{expression}"\n')
+    text = kind(
+        parameters='R = "10 kohm"\nC = "100 uF"\nV_0 = "6 V"',
+        extra=f'[forcing]\nform = "expression"\nexpression = "{expression}"\n',
+    )
     refused(tmp_path, text, "forcing.expression", "unexpected character '\\'")
 
 
 def test_forcing_expression_cannot_change_the_equation_around_it(tmp_path):
-    text = kind(parameters='R = "10 kohm"\nC = "100 uF"\nV_0 = "6 V"',
-                extra='[forcing]\nform = "expression"\nexpression = "V_0) + (V_0"\n')
+    text = kind(
+        parameters='R = "10 kohm"\nC = "100 uF"\nV_0 = "6 V"',
+        extra='[forcing]\nform = "expression"\nexpression = "V_0) + (V_0"\n',
+    )
     refused(tmp_path, text, "forcing.expression", "expected an operator or the end")
 
 
 # --------------------------------------------------- class: angular units asked of pint
 @pytest.mark.parametrize("unknown", ["T [degree_Celsius]", "T [degR]", "T [degF]", "T [K]"])
 def test_temperature_units_are_not_taken_for_angles(tmp_path, unknown):
-    text = kind(kind="first_order_sensor", model=f'unknown = "{unknown}"',
-                parameters='tau = "5 s"\nT_m = "80 degC"', initial="20 degC")
+    text = kind(
+        kind="first_order_sensor",
+        model=f'unknown = "{unknown}"',
+        parameters='tau = "5 s"\nT_m = "80 degC"',
+        initial="20 degC",
+    )
     model = load_model(write(tmp_path, text))
     assert model.unknown.unit_text == unknown[3:-1]
 
 
-@pytest.mark.parametrize("unknown, accepted", [
-    ("omega [rpm]", True), ("omega [rad/s]", True), ("omega [deg/s]", True), ("omega [revolution/min]", True),
-    ("omega [turn/s]", True), ("omega [Hz]", False), ("omega [1/s]", False),
-])
+@pytest.mark.parametrize(
+    "unknown, accepted",
+    [
+        ("omega [rpm]", True),
+        ("omega [rad/s]", True),
+        ("omega [deg/s]", True),
+        ("omega [revolution/min]", True),
+        ("omega [turn/s]", True),
+        ("omega [Hz]", False),
+        ("omega [1/s]", False),
+    ],
+)
 def test_angular_speed_units_are_recognised_by_pint(tmp_path, unknown, accepted):
-    text = kind(kind="rotating_inertia", model=f'unknown = "{unknown}"',
-                parameters='J = "0.5 kg*m^2"\nb = "0.02 N*m*s/rad"\nT_d = "2 N*m"', initial="0 rad/s")
+    text = kind(
+        kind="rotating_inertia",
+        model=f'unknown = "{unknown}"',
+        parameters='J = "0.5 kg*m^2"\nb = "0.02 N*m*s/rad"\nT_d = "2 N*m"',
+        initial="0 rad/s",
+    )
     if accepted:
         load_model(write(tmp_path, text))
     else:
@@ -229,33 +271,52 @@ def test_units_is_angular_follows_the_radian():
 
 # --------------------------------------------------- class: sum of two absolute temperatures
 def test_sum_of_two_absolute_temperatures_is_refused_with_a_hint(tmp_path):
-    text = free(equation="tau*dT/dt + T = T_a + dT_r", unknown="T [degC]", initial="20 degC",
-                parameters='tau = "60 s"\nT_a = "20 degC"\ndT_r = "15 degC"')
-    refused(tmp_path, text, "parameters.dT_r", "adds two absolute temperatures", "\"15 K\" or \"15 delta_degC\"",
-            kind=InputError)
+    text = free(
+        equation="tau*dT/dt + T = T_a + dT_r",
+        unknown="T [degC]",
+        initial="20 degC",
+        parameters='tau = "60 s"\nT_a = "20 degC"\ndT_r = "15 degC"',
+    )
+    refused(
+        tmp_path,
+        text,
+        "parameters.dT_r",
+        "adds two absolute temperatures",
+        '"15 K" or "15 delta_degC"',
+        kind=InputError,
+    )
 
 
-@pytest.mark.parametrize("equation, parameters", [
-    ("tau*dT/dt + T = T_a + dT_r", 'T_a = "20 degC"\ndT_r = "15 K"'),  # a rise in kelvin
-    ("tau*dT/dt + T = T_a + dT_r", 'T_a = "20 degC"\ndT_r = "15 delta_degC"'),
-    ("tau*dT/dt = T_a - T", 'T_a = "20 degC"\ndT_r = "15 K"'),  # a difference of two
-    ("tau*dT/dt + T = (T_a + T_b)/2", 'T_a = "20 degC"\nT_b = "40 degC"'),  # a mean
-    ("tau*dT/dt + T = T_a + (T_b - T_a)*0.5", 'T_a = "20 degC"\nT_b = "40 degC"'),
-])
+@pytest.mark.parametrize(
+    "equation, parameters",
+    [
+        ("tau*dT/dt + T = T_a + dT_r", 'T_a = "20 degC"\ndT_r = "15 K"'),  # a rise in kelvin
+        ("tau*dT/dt + T = T_a + dT_r", 'T_a = "20 degC"\ndT_r = "15 delta_degC"'),
+        ("tau*dT/dt = T_a - T", 'T_a = "20 degC"\ndT_r = "15 K"'),  # a difference of two
+        ("tau*dT/dt + T = (T_a + T_b)/2", 'T_a = "20 degC"\nT_b = "40 degC"'),  # a mean
+        ("tau*dT/dt + T = T_a + (T_b - T_a)*0.5", 'T_a = "20 degC"\nT_b = "40 degC"'),
+    ],
+)
 def test_differences_rises_and_means_of_temperatures_are_accepted(tmp_path, equation, parameters):
     text = free(equation=equation, unknown="T [degC]", initial="20 degC", parameters='tau = "60 s"\n' + parameters)
     load_model(write(tmp_path, text))
 
 
 def test_unknown_plus_an_absolute_temperature_is_refused(tmp_path):
-    text = free(equation="tau*dT/dt = T + T_a", unknown="T [degC]", initial="20 degC",
-                parameters='tau = "60 s"\nT_a = "20 degC"')
+    text = free(
+        equation="tau*dT/dt = T + T_a",
+        unknown="T [degC]",
+        initial="20 degC",
+        parameters='tau = "60 s"\nT_a = "20 degC"',
+    )
     refused(tmp_path, text, "parameters.T_a", "adds two absolute temperatures")
 
 
 # ----------------------------------------------------------------- class: sine phase units
-@pytest.mark.parametrize("phase, accepted", [('"90"', False), ("90", False), ('"1.5"', False),
-                                             ('"90 deg"', True), ('"1.5 rad"', True), ('"0"', True)])
+@pytest.mark.parametrize(
+    "phase, accepted",
+    [('"90"', False), ("90", False), ('"1.5"', False), ('"90 deg"', True), ('"1.5 rad"', True), ('"0"', True)],
+)
 def test_sine_phase_needs_an_angle_unit(tmp_path, phase, accepted):
     text = kind(extra=f'[forcing]\nform = "sine"\namplitude = "5 V"\nfrequency = "2 Hz"\nphase = {phase}\n')
     if accepted:
@@ -265,17 +326,20 @@ def test_sine_phase_needs_an_angle_unit(tmp_path, phase, accepted):
 
 
 # ------------------------------------------------------- class: physical constants as units
-@pytest.mark.parametrize("value, fragments", [
-    ("47 k", ["Boltzmann", "did you mean 47 kohm?"]),
-    ("47 kk", ["boltzmann"]),
-    ("3 c", ["speed of light"]),
-    ("2 e", ["elementary charge", "2e3"]),
-    ("8 R", ["molar gas constant", "did you mean 8 ohm?"]),
-    ("1 k_B", ["boltzmann constant"]),
-    ("1 N_A", ["avogadro constant"]),
-    ("1 sigma", ["stefan boltzmann constant"]),
-    ("1 m_e", ["electron mass"]),
-])
+@pytest.mark.parametrize(
+    "value, fragments",
+    [
+        ("47 k", ["Boltzmann", "did you mean 47 kohm?"]),
+        ("47 kk", ["boltzmann"]),
+        ("3 c", ["speed of light"]),
+        ("2 e", ["elementary charge", "2e3"]),
+        ("8 R", ["molar gas constant", "did you mean 8 ohm?"]),
+        ("1 k_B", ["boltzmann constant"]),
+        ("1 N_A", ["avogadro constant"]),
+        ("1 sigma", ["stefan boltzmann constant"]),
+        ("1 m_e", ["electron mass"]),
+    ],
+)
 def test_a_physical_constant_is_not_a_unit(tmp_path, value, fragments):
     error = refused(tmp_path, free(parameters=f'R = "{value}"\nC = "100 uF"'), "parameters.R", "physical constant")
     for fragment in fragments:
@@ -296,27 +360,42 @@ def test_constants_list_comes_from_pint_itself():
 
 # ------------------------------------------------------------ class: messages in our words
 def test_a_calculation_as_a_value_gets_the_product_written_as_one_number(tmp_path):
-    refused(tmp_path, free(parameters='R = "10 kohm"\nC = "4 * 550 uF"'), "parameters.C",
-            "is a calculation", 'write the product as one number: "2200 uF"')
+    refused(
+        tmp_path,
+        free(parameters='R = "10 kohm"\nC = "4 * 550 uF"'),
+        "parameters.C",
+        "is a calculation",
+        'write the product as one number: "2200 uF"',
+    )
 
 
 def test_a_criterion_with_two_comparisons_is_told_to_split(tmp_path):
     check = "v(1 s) >= 5 V and v(2 min) <= 10 V"
-    refused(tmp_path, free(extra=f'[[criteria]]\ncheck = "{check}"\n'), "criteria[1].check",
-            "more than one comparison", "its own [[criteria]] table")
+    refused(
+        tmp_path,
+        free(extra=f'[[criteria]]\ncheck = "{check}"\n'),
+        "criteria[1].check",
+        "more than one comparison",
+        "its own [[criteria]] table",
+    )
 
 
-@pytest.mark.parametrize("value, found", [("{ value = { x = 1 } }", "a table"), ("[1]", "a list"),
-                                          ("true", "true/false"), ("2024-01-01", "a date")])
+@pytest.mark.parametrize(
+    "value, found",
+    [("{ value = { x = 1 } }", "a table"), ("[1]", "a list"), ("true", "true/false"), ("2024-01-01", "a date")],
+)
 def test_wrong_kind_of_value_is_named_in_toml_terms(tmp_path, value, found):
     error = refused(tmp_path, free(parameters=f'R = {value}\nC = "100 uF"'), "parameters.R", found)
     assert "dict" not in str(error) and "got " not in str(error)
 
 
 def test_kind_missing_source_mentions_forcing(tmp_path):
-    text = kind(kind="lumped_body", parameters='rho = "7850 kg/m^3"\nc_p = "460 J/(kg*K)"\nV = "1e-4 m^3"\n'
-                                               'A = "0.016 m^2"\nh = "25 W/(m^2*K)"\nk = "45 W/(m*K)"',
-                initial="200 degC")
+    text = kind(
+        kind="lumped_body",
+        parameters='rho = "7850 kg/m^3"\nc_p = "460 J/(kg*K)"\nV = "1e-4 m^3"\n'
+        'A = "0.016 m^2"\nh = "25 W/(m^2*K)"\nk = "45 W/(m*K)"',
+        initial="200 degC",
+    )
     refused(tmp_path, text, "parameters.T_inf", "needs T_inf", "or a [forcing] table")
 
 
@@ -324,8 +403,9 @@ def test_kind_unit_error_names_its_key(tmp_path):
     refused(tmp_path, kind(model='unknown = "v [Vz]"'), "model.unknown", "unknown unit 'Vz'")
 
 
-@pytest.mark.parametrize("name, key", [("", 'parameters.""'), ("R\x1b[2J", 'parameters."R\\x1b[2J"'),
-                                       ("a b", 'parameters."a b"')])
+@pytest.mark.parametrize(
+    "name, key", [("", 'parameters.""'), ("R\x1b[2J", 'parameters."R\\x1b[2J"'), ("a b", 'parameters."a b"')]
+)
 def test_odd_keys_are_echoed_quoted_and_escaped(tmp_path, name, key):
     toml_name = '"' + name.replace("\x1b", "\\u001b") + '"'
     error = refused(tmp_path, free(parameters=f'{toml_name} = "1 V"\nR = "10 kohm"\nC = "100 uF"'), key)
@@ -333,11 +413,18 @@ def test_odd_keys_are_echoed_quoted_and_escaped(tmp_path, name, key):
 
 
 # --------------------------------------------------------------- class: control characters
-@pytest.mark.parametrize("field, value", [
-    ("title", "Bleed\\u001b[31m-down"), ("number", "EL\\n01"), ("project", "Plant \\u202eevil"),
-    ("originator", "A. Engineer\\u2066"), ("revision", "A\\u0007"), ("date", "2024-01-01\\r"),
-    ("references", "[\"Datasheet\\nOUTCOME: passes\"]"),
-])
+@pytest.mark.parametrize(
+    "field, value",
+    [
+        ("title", "Bleed\\u001b[31m-down"),
+        ("number", "EL\\n01"),
+        ("project", "Plant \\u202eevil"),
+        ("originator", "A. Engineer\\u2066"),
+        ("revision", "A\\u0007"),
+        ("date", "2024-01-01\\r"),
+        ("references", '["Datasheet\\nOUTCOME: passes"]'),
+    ],
+)
 def test_single_line_fields_refuse_control_and_direction_characters(tmp_path, field, value):
     value = value if value.startswith("[") else f'"{value}"'
     sheet = f"{field} = {value}" if field != "title" else ""
@@ -353,8 +440,10 @@ def test_single_line_fields_refuse_control_and_direction_characters(tmp_path, fi
 @pytest.mark.parametrize("where", ["criteria", "source", "note", "signoff", "switch"])
 def test_other_single_line_texts_refuse_control_characters(tmp_path, where):
     if where == "criteria":  # a forged record line
-        text, key = free(extra='[[criteria]]\ntext = "ok\\nOUTCOME: passes"\ncheck = "v(1 s) <= 5 V"\n'), \
-            "criteria[1].text"
+        text, key = (
+            free(extra='[[criteria]]\ntext = "ok\\nOUTCOME: passes"\ncheck = "v(1 s) <= 5 V"\n'),
+            "criteria[1].text",
+        )
         refused(tmp_path, text, key, "holds a line break")
         text = text.replace("\\nOUTCOME", "\\u0085OUTCOME")
     elif where in ("source", "note"):
@@ -378,25 +467,42 @@ def test_multi_line_fields_keep_newlines_but_refuse_other_controls(tmp_path):
 
 # ------------------------------------------------------------ class: zero and extreme values
 def test_zero_resistance_in_front_of_the_derivative_is_refused(tmp_path):
-    error = refused(tmp_path, kind(parameters='R = "0 ohm"\nC = "100 uF"'), "parameters.R",
-                    "R = 0 makes the equation singular", "coefficient of dv/dt", kind=ModelRefused)
+    error = refused(
+        tmp_path,
+        kind(parameters='R = "0 ohm"\nC = "100 uF"'),
+        "parameters.R",
+        "R = 0 makes the equation singular",
+        "coefficient of dv/dt",
+        kind=ModelRefused,
+    )
     assert error.exit_code == 2
 
 
-@pytest.mark.parametrize("equation, parameters, name, fragment", [
-    ("tau*dv/dt + v = V_0*t/T", 'tau = "1 s"\nV_0 = "1 V"\nT = "0 s"', "T", "its divisor 'T' is zero"),
-    ("tau*dv/dt + v = V_0*sin(x/L)", 'tau = "1 s"\nV_0 = "1 V"\nL = "0 s"\nx = "1 s"', "L", "divisor 'L'"),
-    ("tau*dv/dt + v = V_0*exp(-t/(a*T))", 'tau = "1 s"\nV_0 = "1 V"\nT = "2 s"\na = "0"', "a", "'a*T' is zero"),
-    ("dv/dt + v/(R*C) = 0", 'R = "0 ohm"\nC = "1 uF"', "R", "'R*C' is zero"),
-])
+@pytest.mark.parametrize(
+    "equation, parameters, name, fragment",
+    [
+        ("tau*dv/dt + v = V_0*t/T", 'tau = "1 s"\nV_0 = "1 V"\nT = "0 s"', "T", "its divisor 'T' is zero"),
+        ("tau*dv/dt + v = V_0*sin(x/L)", 'tau = "1 s"\nV_0 = "1 V"\nL = "0 s"\nx = "1 s"', "L", "divisor 'L'"),
+        ("tau*dv/dt + v = V_0*exp(-t/(a*T))", 'tau = "1 s"\nV_0 = "1 V"\nT = "2 s"\na = "0"', "a", "'a*T' is zero"),
+        ("dv/dt + v/(R*C) = 0", 'R = "0 ohm"\nC = "1 uF"', "R", "'R*C' is zero"),
+    ],
+)
 def test_zero_divisors_are_refused_naming_parameter_and_term(tmp_path, equation, parameters, name, fragment):
-    refused(tmp_path, free(equation=equation, parameters=parameters), f"parameters.{name}",
-            f"{name} = 0 makes the equation singular", fragment)
+    refused(
+        tmp_path,
+        free(equation=equation, parameters=parameters),
+        f"parameters.{name}",
+        f"{name} = 0 makes the equation singular",
+        fragment,
+    )
 
 
 def test_empty_tank_volume_under_the_outflow_is_refused(tmp_path):
-    text = kind(kind="mixing_tank", parameters='q_in = "1 m^3/min"\nq_out = "1 m^3/min"\nc_in = "2 kg/m^3"\n'
-                                               'V_0 = "0 m^3"', initial="0 kg")
+    text = kind(
+        kind="mixing_tank",
+        parameters='q_in = "1 m^3/min"\nq_out = "1 m^3/min"\nc_in = "2 kg/m^3"\nV_0 = "0 m^3"',
+        initial="0 kg",
+    )
     refused(tmp_path, text, "parameters.V_0", "V_0 = 0 makes the equation singular", "at t = 0")
 
 
@@ -408,8 +514,13 @@ def test_removable_singularity_of_the_variable_alone_is_left_to_the_derivation(t
 
 @pytest.mark.parametrize("value", ["1e308 ohm", "1e31 ohm", "1e-31 F", "-2e40 ohm"])
 def test_magnitudes_beyond_the_stated_range_are_refused(tmp_path, value):
-    refused(tmp_path, free(parameters=f'R = "{value}"\nC = "100 uF"'), "parameters.R",
-            "outside the range computed here", "1e-30 to 1e+30")
+    refused(
+        tmp_path,
+        free(parameters=f'R = "{value}"\nC = "100 uF"'),
+        "parameters.R",
+        "outside the range computed here",
+        "1e-30 to 1e+30",
+    )
 
 
 def test_magnitudes_at_the_edges_of_the_range_are_accepted(tmp_path):
@@ -423,27 +534,43 @@ def test_a_point_beyond_the_range_is_refused(tmp_path):
 @pytest.mark.parametrize("depth", [4, 50])
 def test_a_constant_tower_that_overflows_is_refused(tmp_path, depth):
     tower = "exp(" * depth + "5" + ")" * depth
-    refused(tmp_path, free(equation=f"R*C*dv/dt + v = V_0*{tower}", parameters='R = "1 ohm"\nC = "1 F"\nV_0 = "1 V"'),
-            "model.equation", "not a finite real number", "overflows double precision")
+    refused(
+        tmp_path,
+        free(equation=f"R*C*dv/dt + v = V_0*{tower}", parameters='R = "1 ohm"\nC = "1 F"\nV_0 = "1 V"'),
+        "model.equation",
+        "not a finite real number",
+        "overflows double precision",
+    )
 
 
 def test_constant_outside_a_function_domain_is_refused(tmp_path):
-    refused(tmp_path, free(equation="R*C*dv/dt + v = V_0*log(a - 1)", parameters='R = "1 ohm"\nC = "1 F"\n'
-                                                                               'V_0 = "1 V"\na = "0.5"'),
-            "model.equation", "not a finite real number", "a = 0.5")
+    refused(
+        tmp_path,
+        free(equation="R*C*dv/dt + v = V_0*log(a - 1)", parameters='R = "1 ohm"\nC = "1 F"\nV_0 = "1 V"\na = "0.5"'),
+        "model.equation",
+        "not a finite real number",
+        "a = 0.5",
+    )
 
 
 # ------------------------------------------------- class: kinds accepting V_s_anything
 @pytest.mark.parametrize("extra_parameter", ['V_s_anything = "3 V"', 'V_s_amp = "3 V"', 'L = "1 H"'])
 def test_kind_refuses_a_parameter_it_does_not_have(tmp_path, extra_parameter):
     name = extra_parameter.split(" ")[0]
-    refused(tmp_path, kind(parameters=f'R = "10 kohm"\nC = "100 uF"\n{extra_parameter}'), f"parameters.{name}",
-            f"'{name}' is not a parameter of kind series_rc", "its parameters: R, C, V_s")
+    refused(
+        tmp_path,
+        kind(parameters=f'R = "10 kohm"\nC = "100 uF"\n{extra_parameter}'),
+        f"parameters.{name}",
+        f"'{name}' is not a parameter of kind series_rc",
+        "its parameters: R, C, V_s",
+    )
 
 
 def test_kind_refuses_a_forcing_value_also_given_as_a_parameter(tmp_path):
-    text = kind(parameters='R = "10 kohm"\nC = "100 uF"\nV_s_amp = "3 V"',
-                extra='[forcing]\nform = "sine"\namplitude = "5 V"\nfrequency = "2 Hz"\n')
+    text = kind(
+        parameters='R = "10 kohm"\nC = "100 uF"\nV_s_amp = "3 V"',
+        extra='[forcing]\nform = "sine"\namplitude = "5 V"\nfrequency = "2 Hz"\n',
+    )
     refused(tmp_path, text, "parameters.V_s_amp", "is given by [forcing]")
 
 

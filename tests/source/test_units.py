@@ -30,34 +30,37 @@ def ref():
 
 
 # --------------------------------------------------------------------- parse_quantity
-@pytest.mark.parametrize("text, si, pint_text", [
-    ("4.7 kohm", 4700.0, "4.7 kiloohm"),
-    ("2200 uF", 2.2e-3, "2200 microfarad"),
-    ("1 µF", 1e-6, "1 microfarad"),
-    ("1 μF", 1e-6, "1 microfarad"),  # Greek mu (U+03BC) as well as micro sign (U+00B5)
-    ("10 mH", 1e-2, "10 millihenry"),
-    ("1 Mohm", 1e6, "1 megaohm"),
-    ("2 Ω", 2.0, "2 ohm"),
-    ("3 m^3/min", 0.05, "3 meter**3/minute"),
-    ("15 W/(m^2*K)", 15.0, "15 watt/(meter**2*kelvin)"),
-    ("101.3 kPa", 101300.0, "101.3 kilopascal"),
-    ("2 N*m*s/rad", 2.0, "2 newton*meter*second/radian"),
-    ("1 N·m", 1.0, "1 newton*meter"),
-    ("2 kN*m", 2000.0, "2 kilonewton*meter"),
-    ("1 h", 3600.0, "1 hour"),
-    ("2 min", 120.0, "2 minute"),
-    ("1 L/min", 1e-3 / 60, "1 liter/minute"),
-    ("1 kWh", 3.6e6, "1 kilowatt_hour"),
-    ("-3.5e2 V", -350.0, "-350 volt"),
-    ("1.5 1/s", 1.5, "1.5 / second"),
-    ("2 /s", 2.0, "2 / second"),
-    ("2 s^-1", 2.0, "2 / second"),
-    ("  47   kohm  ", 47000.0, "47 kiloohm"),
-    ("+5 V", 5.0, "5 volt"),
-    (".5 s", 0.5, "0.5 second"),
-    ("5. s", 5.0, "5 second"),
-    ("1E3 Pa", 1000.0, "1000 pascal"),
-])
+@pytest.mark.parametrize(
+    "text, si, pint_text",
+    [
+        ("4.7 kohm", 4700.0, "4.7 kiloohm"),
+        ("2200 uF", 2.2e-3, "2200 microfarad"),
+        ("1 µF", 1e-6, "1 microfarad"),
+        ("1 μF", 1e-6, "1 microfarad"),  # Greek mu (U+03BC) as well as micro sign (U+00B5)
+        ("10 mH", 1e-2, "10 millihenry"),
+        ("1 Mohm", 1e6, "1 megaohm"),
+        ("2 Ω", 2.0, "2 ohm"),
+        ("3 m^3/min", 0.05, "3 meter**3/minute"),
+        ("15 W/(m^2*K)", 15.0, "15 watt/(meter**2*kelvin)"),
+        ("101.3 kPa", 101300.0, "101.3 kilopascal"),
+        ("2 N*m*s/rad", 2.0, "2 newton*meter*second/radian"),
+        ("1 N·m", 1.0, "1 newton*meter"),
+        ("2 kN*m", 2000.0, "2 kilonewton*meter"),
+        ("1 h", 3600.0, "1 hour"),
+        ("2 min", 120.0, "2 minute"),
+        ("1 L/min", 1e-3 / 60, "1 liter/minute"),
+        ("1 kWh", 3.6e6, "1 kilowatt_hour"),
+        ("-3.5e2 V", -350.0, "-350 volt"),
+        ("1.5 1/s", 1.5, "1.5 / second"),
+        ("2 /s", 2.0, "2 / second"),
+        ("2 s^-1", 2.0, "2 / second"),
+        ("  47   kohm  ", 47000.0, "47 kiloohm"),
+        ("+5 V", 5.0, "5 volt"),
+        (".5 s", 0.5, "0.5 second"),
+        ("5. s", 5.0, "5 second"),
+        ("1E3 Pa", 1000.0, "1000 pascal"),
+    ],
+)
 def test_parse_quantity_to_si(ref, text, si, pint_text):
     quantity = u.parse_quantity(text)
     assert u.to_si(quantity) == pytest.approx(si, rel=1e-12)
@@ -99,23 +102,26 @@ def test_percent_is_a_hundredth():
     assert u.to_si(u.parse_quantity("10 %")) == pytest.approx(0.1)
 
 
-@pytest.mark.parametrize("value, fragment", [
-    (True, "true/false"),
-    (False, "true/false"),
-    (None, "but found a value of another kind"),
-    ([1], "but found a list"),
-    ({"value": 1}, "but found a table"),
-    ("V", "is not a number followed by a unit"),
-    ("", "is not a number followed by a unit"),
-    ("nan V", "is not a number followed by a unit"),
-    ("inf V", "is not a number followed by a unit"),
-    ("1e999 V", "is not a finite number"),
-    ("5 V 3", "carries a number"),
-    ("4.7 kohmz", "unknown unit 'kohmz'"),
-    ("4.7 kOhm", "unknown unit 'kOhm'"),
-    ("__import__('os').system('touch X')", "is not a number followed by a unit"),
-    ("4 __import__('os')", "holds characters a unit cannot have"),
-])
+@pytest.mark.parametrize(
+    "value, fragment",
+    [
+        (True, "true/false"),
+        (False, "true/false"),
+        (None, "but found a value of another kind"),
+        ([1], "but found a list"),
+        ({"value": 1}, "but found a table"),
+        ("V", "is not a number followed by a unit"),
+        ("", "is not a number followed by a unit"),
+        ("nan V", "is not a number followed by a unit"),
+        ("inf V", "is not a number followed by a unit"),
+        ("1e999 V", "is not a finite number"),
+        ("5 V 3", "carries a number"),
+        ("4.7 kohmz", "unknown unit 'kohmz'"),
+        ("4.7 kOhm", "unknown unit 'kOhm'"),
+        ("__import__('os').system('touch X')", "is not a number followed by a unit"),
+        ("4 __import__('os')", "holds characters a unit cannot have"),
+    ],
+)
 def test_parse_quantity_refuses(value, fragment):
     with pytest.raises(InputError) as info:
         u.parse_quantity(value)
@@ -134,12 +140,25 @@ def test_empty_unit_is_dimensionless(text):
     assert u.parse_unit(text) == u.registry().dimensionless
 
 
-@pytest.mark.parametrize("text, pint_text", [
-    ("kohm", "kiloohm"), ("uF", "microfarad"), ("mH", "millihenry"), ("Mohm", "megaohm"),
-    ("m^3/min", "meter**3/minute"), ("m**2", "meter**2"), ("W/(m^2*K)", "watt/meter**2/kelvin"),
-    ("kPa", "kilopascal"), ("N*m*s/rad", "newton*meter*second/radian"), ("rad/s", "radian/second"),
-    ("rpm", "revolution/minute"), ("/s", "1/second"), ("ohm*F", "second"), ("Ω", "ohm"),
-])
+@pytest.mark.parametrize(
+    "text, pint_text",
+    [
+        ("kohm", "kiloohm"),
+        ("uF", "microfarad"),
+        ("mH", "millihenry"),
+        ("Mohm", "megaohm"),
+        ("m^3/min", "meter**3/minute"),
+        ("m**2", "meter**2"),
+        ("W/(m^2*K)", "watt/meter**2/kelvin"),
+        ("kPa", "kilopascal"),
+        ("N*m*s/rad", "newton*meter*second/radian"),
+        ("rad/s", "radian/second"),
+        ("rpm", "revolution/minute"),
+        ("/s", "1/second"),
+        ("ohm*F", "second"),
+        ("Ω", "ohm"),
+    ],
+)
 def test_parse_unit_matches_pint(ref, text, pint_text):
     unit = u.parse_unit(text)
     ours = u.registry().Quantity(1, unit).to_base_units()
@@ -148,19 +167,22 @@ def test_parse_unit_matches_pint(ref, text, pint_text):
     assert dict(ours.dimensionality) == dict(theirs.dimensionality)
 
 
-@pytest.mark.parametrize("text, fragment", [
-    ("V'", "holds characters a unit cannot have"),
-    ('"V"', "holds characters a unit cannot have"),
-    ("V,", "holds characters a unit cannot have"),
-    ("V;", "holds characters a unit cannot have"),
-    ("$V", "holds characters a unit cannot have"),
-    ("[V]", "holds characters a unit cannot have"),
-    ("__class__", "holds characters a unit cannot have"),
-    ("__import__('os').system('touch X')", "holds characters a unit cannot have"),
-    ("furlongz", "unknown unit 'furlongz'"),
-    ("2 m", "carries a number"),
-    ("3", "carries a number"),
-])
+@pytest.mark.parametrize(
+    "text, fragment",
+    [
+        ("V'", "holds characters a unit cannot have"),
+        ('"V"', "holds characters a unit cannot have"),
+        ("V,", "holds characters a unit cannot have"),
+        ("V;", "holds characters a unit cannot have"),
+        ("$V", "holds characters a unit cannot have"),
+        ("[V]", "holds characters a unit cannot have"),
+        ("__class__", "holds characters a unit cannot have"),
+        ("__import__('os').system('touch X')", "holds characters a unit cannot have"),
+        ("furlongz", "unknown unit 'furlongz'"),
+        ("2 m", "carries a number"),
+        ("3", "carries a number"),
+    ],
+)
 def test_parse_unit_refuses(text, fragment):
     with pytest.raises(InputError) as info:
         u.parse_unit(text)
@@ -180,8 +202,7 @@ def test_absolute_temperature_scales_are_offset(text):
     assert u.is_offset(u.parse_unit(text))
 
 
-@pytest.mark.parametrize("text", ["K", "delta_degC", "degC/min", "degF/h", "1/degC", "degC*min",
-                                  "W/(m^2*K)", "V", ""])
+@pytest.mark.parametrize("text", ["K", "delta_degC", "degC/min", "degF/h", "1/degC", "degC*min", "W/(m^2*K)", "V", ""])
 def test_other_units_are_not_offset(text):
     assert not u.is_offset(u.parse_unit(text))
 
@@ -211,7 +232,8 @@ def test_compound_celsius_rate_is_a_difference_rate(ref):
     assert not u.is_offset(unit)
     assert u.to_si(u.parse_quantity("5 degC/min")) == pytest.approx(5 / 60)
     assert u.to_si(u.parse_quantity("5 degC/min")) == pytest.approx(
-        ref.Quantity(5, "delta_degC/minute").to("K/s").magnitude)
+        ref.Quantity(5, "delta_degC/minute").to("K/s").magnitude
+    )
     assert u.from_si(1.0, unit) == pytest.approx(60.0)
     assert u.same_dimension(unit, u.parse_unit("K/s"))
 
@@ -226,8 +248,22 @@ def test_celsius_spelled_out_in_compound_is_a_difference():
 
 
 # ------------------------------------------------------------------ si_unit / from_si
-@pytest.mark.parametrize("text", ["4.7 kohm", "2200 uF", "10 mH", "3 m^3/min", "15 W/(m^2*K)",
-                                  "101.3 kPa", "1500 rpm", "80 degC", "5 degC/min", "2 h", "-12 V"])
+@pytest.mark.parametrize(
+    "text",
+    [
+        "4.7 kohm",
+        "2200 uF",
+        "10 mH",
+        "3 m^3/min",
+        "15 W/(m^2*K)",
+        "101.3 kPa",
+        "1500 rpm",
+        "80 degC",
+        "5 degC/min",
+        "2 h",
+        "-12 V",
+    ],
+)
 def test_from_si_inverts_to_si(text):
     quantity = u.parse_quantity(text)
     assert u.from_si(u.to_si(quantity), quantity.units) == pytest.approx(quantity.magnitude, rel=1e-12)
@@ -242,21 +278,24 @@ def test_si_unit_is_coherent_base_unit(ref):
 
 
 # ------------------------------------------------------------------------ dimensions
-@pytest.mark.parametrize("a, b, same", [
-    ("degC", "K", True),
-    ("degC/min", "K/s", True),
-    ("kohm", "V/A", True),
-    ("kohm*uF", "s", True),  # R*C is a time (common practice, no source)
-    ("mH/ohm", "s", True),   # L/R is a time (common practice, no source)
-    ("rad", "", True),
-    ("rpm", "Hz", True),
-    ("W/(m^2*K)", "kg/(s^3*K)", True),
-    ("N*m*s/rad", "kg*m^2/s", True),
-    ("V", "s", False),
-    ("degC", "degC/min", False),
-    ("m^3/min", "m^3", False),
-    ("kPa", "N/m", False),
-])
+@pytest.mark.parametrize(
+    "a, b, same",
+    [
+        ("degC", "K", True),
+        ("degC/min", "K/s", True),
+        ("kohm", "V/A", True),
+        ("kohm*uF", "s", True),  # R*C is a time (common practice, no source)
+        ("mH/ohm", "s", True),  # L/R is a time (common practice, no source)
+        ("rad", "", True),
+        ("rpm", "Hz", True),
+        ("W/(m^2*K)", "kg/(s^3*K)", True),
+        ("N*m*s/rad", "kg*m^2/s", True),
+        ("V", "s", False),
+        ("degC", "degC/min", False),
+        ("m^3/min", "m^3", False),
+        ("kPa", "N/m", False),
+    ],
+)
 def test_same_dimension(ref, a, b, same):
     assert u.same_dimension(u.parse_unit(a), u.parse_unit(b)) is same
     left, right = ref.Quantity(1, a or "dimensionless"), ref.Quantity(1, b or "dimensionless")
@@ -264,19 +303,22 @@ def test_same_dimension(ref, a, b, same):
     assert reference is same
 
 
-@pytest.mark.parametrize("text, expected", [
-    ("", "dimensionless"),
-    ("rad", "dimensionless"),
-    ("s", "[time]"),
-    ("1/s", "1/[time]"),
-    ("V", "[length]^2*[mass]/[current]/[time]^3"),
-    ("kohm", "[length]^2*[mass]/[current]^2/[time]^3"),
-    ("m^3/min", "[length]^3/[time]"),
-    ("degC", "[temperature]"),
-    ("degC/min", "[temperature]/[time]"),
-    ("W/(m^2*K)", "[mass]/[temperature]/[time]^3"),
-    ("kPa", "[mass]/[length]/[time]^2"),
-])
+@pytest.mark.parametrize(
+    "text, expected",
+    [
+        ("", "dimensionless"),
+        ("rad", "dimensionless"),
+        ("s", "[time]"),
+        ("1/s", "1/[time]"),
+        ("V", "[length]^2*[mass]/[current]/[time]^3"),
+        ("kohm", "[length]^2*[mass]/[current]^2/[time]^3"),
+        ("m^3/min", "[length]^3/[time]"),
+        ("degC", "[temperature]"),
+        ("degC/min", "[temperature]/[time]"),
+        ("W/(m^2*K)", "[mass]/[temperature]/[time]^3"),
+        ("kPa", "[mass]/[length]/[time]^2"),
+    ],
+)
 def test_dimension_text(text, expected):
     assert u.dimension_text(u.parse_unit(text)) == expected
 

@@ -24,8 +24,19 @@ from calcsheet.sheet.compose import sheet_labels
 from calcsheet.writers import dispatch, writer_for
 
 # Document types that are not nodes a Section holds: the sheet's frame and the parts of nodes.
-FRAME = {doc.Sheet, doc.Section, doc.TitleBlock, doc.Field, doc.Labels, doc.Outcome, doc.Math, doc.Guide,
-         doc.PointLimit, doc.SignOffLine, doc.Review}
+FRAME = {
+    doc.Sheet,
+    doc.Section,
+    doc.TitleBlock,
+    doc.Field,
+    doc.Labels,
+    doc.Outcome,
+    doc.Math,
+    doc.Guide,
+    doc.PointLimit,
+    doc.SignOffLine,
+    doc.Review,
+}
 NODE_WRITERS = ("txt", "html", "pdf")
 
 
@@ -35,12 +46,18 @@ def one_of_each_block() -> dict[type, tuple[object, str]]:
     return {
         doc.Paragraph: (doc.Paragraph("Plain paragraph alpha."), "Plain paragraph alpha."),
         doc.Equation: (doc.Equation(doc.Math("y = 2 x", "y = 2*x"), "bravo relation"), "bravo relation"),
-        doc.Table: (doc.Table(("Column charlie", "Symbol"), (("cell delta", doc.Math("k", "k")),), "Table echo"),
-                    "cell delta"),
+        doc.Table: (
+            doc.Table(("Column charlie", "Symbol"), (("cell delta", doc.Math("k", "k")),), "Table echo"),
+            "cell delta",
+        ),
         doc.Note: (doc.Note("method", "Remark foxtrot."), "Remark foxtrot."),
         doc.ItemList: (doc.ItemList(("item golf", "item hotel")), "item hotel"),
-        doc.Figure: (doc.Figure("Plot india", "t [s]", "y [K]", curve, curve[::5], ((5.0, 17.5, "y(5 s)"),),
-                                caption="Caption juliet"), "Caption juliet"),
+        doc.Figure: (
+            doc.Figure(
+                "Plot india", "t [s]", "y [K]", curve, curve[::5], ((5.0, 17.5, "y(5 s)"),), caption="Caption juliet"
+            ),
+            "Caption juliet",
+        ),
     }
 
 
@@ -61,13 +78,18 @@ def relabelled() -> doc.Labels:
 
 
 def sheet_with(blocks, labels: doc.Labels | None = None, field_label=lambda name: name.capitalize()) -> doc.Sheet:
-    fields = {name: doc.Field(field_label(name), f"val_{name}") for name in ("number", "revision", "project",
-                                                                               "originator")}
+    fields = {
+        name: doc.Field(field_label(name), f"val_{name}") for name in ("number", "revision", "project", "originator")
+    }
     return doc.Sheet(
-        title_block=doc.TitleBlock("Sheet kilo", **fields), labels=labels or sheet_labels(),
-        outcome=doc.Outcome(True, "Result lima."), sections=(doc.Section("s", "Section mike", tuple(blocks), 1),),
-        cautions=("Hazard line november.",), signoff=(doc.SignOffLine("Prepared", "P. Oscar", "2026-01-02"),),
-        revisions=(Revision("A", "2026-01-02", "issue papa"),))
+        title_block=doc.TitleBlock("Sheet kilo", **fields),
+        labels=labels or sheet_labels(),
+        outcome=doc.Outcome(True, "Result lima."),
+        sections=(doc.Section("s", "Section mike", tuple(blocks), 1),),
+        cautions=("Hazard line november.",),
+        signoff=(doc.SignOffLine("Prepared", "P. Oscar", "2026-01-02"),),
+        revisions=(Revision("A", "2026-01-02", "issue papa"),),
+    )
 
 
 def written_text(fmt: str, sheet: doc.Sheet) -> str:
@@ -110,8 +132,11 @@ class Sidebar:
 
 
 def test_every_dataclass_of_the_document_is_a_block_a_cell_or_part_of_the_frame():
-    defined = {obj for _, obj in inspect.getmembers(doc, inspect.isclass)
-               if dataclasses.is_dataclass(obj) and obj.__module__ == doc.__name__}
+    defined = {
+        obj
+        for _, obj in inspect.getmembers(doc, inspect.isclass)
+        if dataclasses.is_dataclass(obj) and obj.__module__ == doc.__name__
+    }
     blocks = set(get_args(doc.Block))
     assert defined == FRAME | blocks, "a new node type must join doc.Block (or FRAME, if it is no node)"
     assert set(dispatch.BLOCK_KINDS) == blocks
@@ -160,11 +185,34 @@ def test_a_table_cell_of_an_unknown_type_raises():
 # Where each label shows: the text record has no table heads for revisions nor a page frame; the
 # HTML has no "calculation sheet" prefix, outcome label or figure line; the PDF adds the page frame.
 SHOWN_BY = {
-    "txt": ("sheet", "outcome", "step", "revisions", "signoff", "signoff_columns1", "signoff_columns2", "cautions",
-            "notemethod", "figure", "figsum 21"),
-    "html": ("step", "revisions", "revision_columns0", "revision_columns1", "revision_columns2", "signoff",
-             "signoff_columns0", "signoff_columns1", "signoff_columns2", "signoff_columns3", "signoff_state", "cautions",
-             "notemethod"),
+    "txt": (
+        "sheet",
+        "outcome",
+        "step",
+        "revisions",
+        "signoff",
+        "signoff_columns1",
+        "signoff_columns2",
+        "cautions",
+        "notemethod",
+        "figure",
+        "figsum 21",
+    ),
+    "html": (
+        "step",
+        "revisions",
+        "revision_columns0",
+        "revision_columns1",
+        "revision_columns2",
+        "signoff",
+        "signoff_columns0",
+        "signoff_columns1",
+        "signoff_columns2",
+        "signoff_columns3",
+        "signoff_state",
+        "cautions",
+        "notemethod",
+    ),
 }
 SHOWN_BY["pdf"] = SHOWN_BY["html"] + ("page", "of", "footer")
 

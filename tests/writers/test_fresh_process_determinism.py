@@ -23,8 +23,17 @@ NO_FONTS = '<?xml version="1.0"?>\n<!DOCTYPE fontconfig SYSTEM "fonts.dtd">\n<fo
 def _build(out: Path, cwd: Path, **env_changes: str) -> subprocess.CompletedProcess:
     env = {k: v for k, v in os.environ.items() if k != "SOURCE_DATE_EPOCH"}
     env.update(env_changes)
-    command = [sys.executable, "-c", "from calcsheet.cli import main; main()",
-               "build", str(INPUTS), "--out", str(out), "--format", ",".join(FORMATS)]
+    command = [
+        sys.executable,
+        "-c",
+        "from calcsheet.cli import main; main()",
+        "build",
+        str(INPUTS),
+        "--out",
+        str(out),
+        "--format",
+        ",".join(FORMATS),
+    ]
     return subprocess.run(command, cwd=cwd, env=env, capture_output=True, text=True)
 
 
@@ -36,9 +45,15 @@ def test_every_demo_is_byte_identical_in_two_fresh_processes(tmp_path):
     (elsewhere / "cache").mkdir()
 
     first = _build(tmp_path / "first", ROOT, PYTHONHASHSEED="1")
-    second = _build(tmp_path / "second", elsewhere, PYTHONHASHSEED="2", TZ="Pacific/Kiritimati",
-                    FONTCONFIG_FILE=str(fontconfig), MPLCONFIGDIR=str(elsewhere / "mpl"),
-                    XDG_CACHE_HOME=str(elsewhere / "cache"))
+    second = _build(
+        tmp_path / "second",
+        elsewhere,
+        PYTHONHASHSEED="2",
+        TZ="Pacific/Kiritimati",
+        FONTCONFIG_FILE=str(fontconfig),
+        MPLCONFIGDIR=str(elsewhere / "mpl"),
+        XDG_CACHE_HOME=str(elsewhere / "cache"),
+    )
     for run in (first, second):
         assert run.returncode == 0, run.stderr
         assert "Traceback" not in run.stderr, run.stderr
@@ -47,6 +62,9 @@ def test_every_demo_is_byte_identical_in_two_fresh_processes(tmp_path):
     expected = sorted(f"{stem}.{fmt}" for stem in demos for fmt in FORMATS)
     assert sorted(p.name for p in (tmp_path / "first").iterdir()) == expected
     assert sorted(p.name for p in (tmp_path / "second").iterdir()) == expected
-    differing = [name for name in expected
-                 if (tmp_path / "first" / name).read_bytes() != (tmp_path / "second" / name).read_bytes()]
+    differing = [
+        name
+        for name in expected
+        if (tmp_path / "first" / name).read_bytes() != (tmp_path / "second" / name).read_bytes()
+    ]
     assert differing == [], f"outputs differ between the two builds: {differing}"

@@ -119,8 +119,10 @@ def test_no_pdf_or_plot_libraries_for_records_only(tmp_path):
 
 def test_signoff_and_revisions_from_the_input(tmp_path):
     text = (ROOT / "inputs" / "bus-capacitor-bleed-down.toml").read_text(encoding="utf-8")
-    text += ('\n[signoff]\nprepared = { name = "P. Person", date = "2026-11-30" }\nchecked = "C. Checker"\n'
-             '\n[[revisions]]\nrevision = "A"\ndate = "2026-11-30"\ndescription = "First issue"\n')
+    text += (
+        '\n[signoff]\nprepared = { name = "P. Person", date = "2026-11-30" }\nchecked = "C. Checker"\n'
+        '\n[[revisions]]\nrevision = "A"\ndate = "2026-11-30"\ndescription = "First issue"\n'
+    )
     path = tmp_path / "signed.toml"
     path.write_text(text, encoding="utf-8")
     sheet = build_sheet(path).sheet
@@ -147,6 +149,7 @@ def test_no_page_ends_with_a_step_heading(pdfs, demo):
 
     reader = PdfReader(io.BytesIO(pdfs[demo.stem]))
     for number, page in enumerate(reader.pages[:-1], start=1):
-        body = [line for line in page.extract_text().splitlines()
-                if line.strip() and "Prepared with calcsheet" not in line]
+        body = [
+            line for line in page.extract_text().splitlines() if line.strip() and "Prepared with calcsheet" not in line
+        ]
         assert not re.match(r"^Step \d+\b", body[-1]), f"page {number} ends with '{body[-1]}'"

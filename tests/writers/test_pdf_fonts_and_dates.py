@@ -25,8 +25,12 @@ ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
 # The PDF names a font after its CSS family and face; the subset tag is six capitals and a '+'.
 EMBEDDED_NAME = re.compile(r"^[A-Z]{6}\+Calcsheet-Sans(-Bold|-Italic|-BoldItalic)?$")
-FACE_OF_NAME = {"": "DejaVuSans.ttf", "-Bold": "DejaVuSans-Bold.ttf", "-Italic": "DejaVuSans-Oblique.ttf",
-                "-BoldItalic": "DejaVuSans-BoldOblique.ttf"}
+FACE_OF_NAME = {
+    "": "DejaVuSans.ttf",
+    "-Bold": "DejaVuSans-Bold.ttf",
+    "-Italic": "DejaVuSans-Oblique.ttf",
+    "-BoldItalic": "DejaVuSans-BoldOblique.ttf",
+}
 
 
 @pytest.fixture(scope="module")
@@ -125,20 +129,24 @@ def test_the_font_module_is_restored_after_a_build(built_pdf):
 
 def _undated_sheet() -> Sheet:
     untitled = SimpleNamespace(title="t", number="", revision="", project="", originator="", status="")
-    return Sheet(title_block=title_block(untitled), labels=sheet_labels(), outcome=Outcome(True, "ok"), sections=(),
-                 cautions=())
+    return Sheet(
+        title_block=title_block(untitled), labels=sheet_labels(), outcome=Outcome(True, "ok"), sections=(), cautions=()
+    )
 
 
-@pytest.mark.parametrize("value", ["", " ", "soon", "-5", "1.5", "1e9", "\u00b2", "\u0661\u0662", "0x10",
-                                   "253402300800", "99999999999999999999999"])
+@pytest.mark.parametrize(
+    "value",
+    ["", " ", "soon", "-5", "1.5", "1e9", "\u00b2", "\u0661\u0662", "0x10", "253402300800", "99999999999999999999999"],
+)
 def test_a_bad_source_date_epoch_is_ignored(value, monkeypatch):
     """Empty, non-integer, negative, non-ASCII digits, past year 9999: no date, no exception."""
     monkeypatch.setenv("SOURCE_DATE_EPOCH", value)
     assert pdf.creation_date(_undated_sheet()) == ""
 
 
-@pytest.mark.parametrize("value, date", [("0", "1970-01-01"), ("1700000000", "2023-11-14"),
-                                         ("253402300799", "9999-12-31")])
+@pytest.mark.parametrize(
+    "value, date", [("0", "1970-01-01"), ("1700000000", "2023-11-14"), ("253402300799", "9999-12-31")]
+)
 def test_a_valid_source_date_epoch_gives_the_date(value, date, monkeypatch):
     monkeypatch.setenv("SOURCE_DATE_EPOCH", value)  # 1700000000 s is 2023-11-14 22:13:20 UTC
     assert pdf.creation_date(_undated_sheet()) == date

@@ -33,7 +33,8 @@ def _figure(levels=(), limits=(), points=True, curve=None, **kw):
         curve=curve,
         independent=curve[::10],
         points=((40.0, 15 + 40 * (1 - math.exp(-1)), "w(40 s)"), (160.0, 15 + 40 * (1 - math.exp(-4)), "w(160 s)"))
-        if points else (),
+        if points
+        else (),
         levels=levels,
         limits=limits,
         caption="",
@@ -42,10 +43,16 @@ def _figure(levels=(), limits=(), points=True, curve=None, **kw):
 
 
 FULL = _figure(
-    levels=(Guide(40.3, "level 63 %", ""), Guide(52.0, "limit w(200 s) >= 52 mm", "pass"),
-            Guide(54.0, "limit w(200 s) <= 54 mm", "fail")),
-    limits=(Guide(60.0, "limit t_reach <= 60 s", "pass"), Guide(120.0, "limit t_95 <= 120 s", "fail"),
-            Guide(150.0, "limit tau <= 150 s", "")),
+    levels=(
+        Guide(40.3, "level 63 %", ""),
+        Guide(52.0, "limit w(200 s) >= 52 mm", "pass"),
+        Guide(54.0, "limit w(200 s) <= 54 mm", "fail"),
+    ),
+    limits=(
+        Guide(60.0, "limit t_reach <= 60 s", "pass"),
+        Guide(120.0, "limit t_95 <= 120 s", "fail"),
+        Guide(150.0, "limit tau <= 150 s", ""),
+    ),
 )
 
 
@@ -62,9 +69,12 @@ def built():
 @pytest.fixture(scope="module")
 def wide():
     """Levels above and below the curve, limits before and after it."""
-    return build_figure(_figure(levels=(Guide(70.0, "limit w <= 70 mm", "fail"), Guide(5.0, "level 5 mm", "")),
-                                limits=(Guide(-50.0, "limit t >= -50 s", "pass"),
-                                        Guide(300.0, "limit t_95 <= 300 s", "fail"))))
+    return build_figure(
+        _figure(
+            levels=(Guide(70.0, "limit w <= 70 mm", "fail"), Guide(5.0, "level 5 mm", "")),
+            limits=(Guide(-50.0, "limit t >= -50 s", "pass"), Guide(300.0, "limit t_95 <= 300 s", "fail")),
+        )
+    )
 
 
 def _lines(fig, prefix):
@@ -106,7 +116,7 @@ def test_data_uri_round_trips(svg):
     uri = data_uri(svg)
     prefix = "data:image/svg+xml;base64,"
     assert uri.startswith(prefix)
-    assert base64.b64decode(uri[len(prefix):]).decode("utf-8") == svg
+    assert base64.b64decode(uri[len(prefix) :]).decode("utf-8") == svg
 
 
 def test_axis_labels(built):
@@ -202,8 +212,9 @@ def test_legend_corner_follows_the_curve(built):
 
 
 def test_without_levels_limits_or_points_and_with_awkward_text():
-    plain = Figure(title="a <b> & $c$", x_label="cost [$]", y_label="q -- <W>", curve=_rise(), independent=(),
-                   points=())
+    plain = Figure(
+        title="a <b> & $c$", x_label="cost [$]", y_label="q -- <W>", curve=_rise(), independent=(), points=()
+    )
     svg = figure_svg(plain)
     assert svg.startswith("<svg") and "viewBox" in svg
     ET.fromstring(svg)  # '<', '&', '--' and '$' in the labels keep the SVG well-formed
@@ -218,8 +229,15 @@ def test_completely_empty_figure():
 
 def test_constant_curve_and_awkward_point_and_guide_labels():
     flat = tuple((float(i), 3.0) for i in range(5))
-    odd = Figure(title="flat", x_label="t", y_label="q", curve=flat, independent=(),
-                 points=((2.0, 3.0, "q(2) -- $x$"),), levels=(Guide(3.0, "limit q <= 3 & more", "pass"),))
+    odd = Figure(
+        title="flat",
+        x_label="t",
+        y_label="q",
+        curve=flat,
+        independent=(),
+        points=((2.0, 3.0, "q(2) -- $x$"),),
+        levels=(Guide(3.0, "limit q <= 3 & more", "pass"),),
+    )
     fig = build_figure(odd)
     low, high = fig.axes[0].get_ylim()
     assert low < 3.0 < high
