@@ -119,8 +119,13 @@ class Point:
     """A quantity from the input (an abscissa or a level), as written and in SI."""
 
     text: str
-    quantity: pint.Quantity
+    quantity: pint.Quantity | None  # None for a point derive makes (an interval's start value): SI only
     si: float
+
+    @classmethod
+    def derived(cls, si: float, declared: "Declared", note: str = "") -> "Point":
+        """A point found by the calculation, not written in the input: shown in the declared unit."""
+        return cls(f"{declared.shown(si):.6g} {declared.unit_text}" + (f" ({note})" if note else ""), None, si)
 
 
 @dataclass(frozen=True)

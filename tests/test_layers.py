@@ -43,3 +43,13 @@ def test_no_module_imports_from_a_higher_level():
                 if target in ORDER and own in ORDER and ORDER.index(target) > ORDER.index(own):
                     wrong.append(f"{relative}: imports {node.module}")
     assert not wrong, "\n".join(wrong)
+
+
+def test_derive_needs_no_unit_registry():
+    # Derive works on numbers in SI; the declared units' scale and offset come with the Model (DEVELOPERS.md).
+    offenders = [
+        str(path.relative_to(PACKAGE.parent))
+        for path in (PACKAGE / "derive").glob("*.py")
+        if "calcsheet.source.units" in path.read_text(encoding="utf-8") or "import pint" in path.read_text("utf-8")
+    ]
+    assert not offenders, offenders

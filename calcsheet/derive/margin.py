@@ -533,7 +533,6 @@ def _switched_numbers(model: Model, nominal, final_forms):
     from calcsheet.derive.evaluate import make_evaluator
     from calcsheet.derive.numbers import asks_for_extremes, verdict_for
     from calcsheet.derive.piecewise import Interval, Joined, _extreme_search, _scan, interval_model
-    from calcsheet.source.units import from_si, registry
 
     intervals, y_start = [], model.initial_value
     for k, done in enumerate(nominal.intervals):
@@ -545,11 +544,7 @@ def _switched_numbers(model: Model, nominal, final_forms):
         d = Derivation(local, d0.classification, d0.solution, numbers, None, (), None, y)
         intervals.append(Interval(done.start, done.end, done.text, d, done.carried))
         if done.end is not None:
-            value = y(done.end)
-            shown = from_si(value, model.unknown.unit)
-            y_start = Point(
-                f"{shown:.6g} {model.unknown.unit_text}", registry().Quantity(shown, model.unknown.unit), value
-            )
+            y_start = Point.derived(y(done.end), model.unknown)
     grid, samples = _scan(intervals)
     joined = Joined(intervals)
     last = intervals[-1].derivation.numbers

@@ -25,7 +25,6 @@ from calcsheet.derive.numbers import (
 )
 from calcsheet.derive.switched_checks import SwitchedVerification, verify_switched
 from calcsheet.model import Model, Point
-from calcsheet.source.units import from_si, registry
 
 
 @dataclass(frozen=True)
@@ -95,7 +94,6 @@ def _derive_intervals(model: Model) -> tuple[Interval, ...]:
     ends = starts[1:] + [None]
     texts = ["start"] + [s.text for s in model.switches]
     carried = [()] + [s.carried for s in model.switches]
-    unit = model.unknown.unit
     intervals, y_start = [], model.initial_value
     for k, (start, end, text) in enumerate(zip(starts, ends, texts)):
         inside = tuple(p for p in model.evaluate_at if p.si >= start and (end is None or p.si < end))
@@ -103,13 +101,7 @@ def _derive_intervals(model: Model) -> tuple[Interval, ...]:
         d = derive(replace(interval_model(model, k, y_start), evaluate_at=inside, plot_to=plot_to))
         intervals.append(Interval(start, end, text, d, carried[k]))
         if end is not None:
-            value = d.response(end)
-            shown = from_si(value, unit)
-            y_start = Point(
-                f"{shown:.6g} {model.unknown.unit_text} (end of interval {k + 1})",
-                registry().Quantity(shown, unit),
-                value,
-            )
+            y_start = Point.derived(d.response(end), model.unknown, f"end of interval {k + 1}")
     return tuple(intervals)
 
 
@@ -143,8 +135,7 @@ def _with_final_quadrature(intervals) -> tuple[Interval, ...]:
 
 
 def _point(si: float, declared) -> Point:
-    shown = from_si(si, declared.unit)
-    return Point(f"{shown:.6g} {declared.unit_text}", registry().Quantity(shown, declared.unit), si)
+    return Point.derived(si, declared)
 
 
 class Joined:
