@@ -34,6 +34,7 @@ from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
 from calcsheet.sheet.as_written import equation_latex
+from calcsheet.sheet.criterion_numbers import criterion_numbers, found_text, margin_text, utilisation_text
 from calcsheet.sheet.check_words import check_row, checks_lead, quadrature_words
 from calcsheet.sheet.document import (
     Equation,
@@ -707,8 +708,8 @@ def _reach_remark(r, m) -> str:
 
 def criteria_table(m, verdicts) -> Table:
     return Table(
-        ("Criterion", "Check", "Found", "Result"),
-        tuple((v.criterion.text, v.criterion.check, _found(v, m), _result(v)) for v in verdicts),
+        ("Criterion", "Check", "Found", "Margin", "Use of limit", "Result"),
+        tuple((v.criterion.text, v.criterion.check, _found(v, m), *_margin_cells(v), _result(v)) for v in verdicts),
         "Acceptance criteria",
         row_status=tuple({"pass": "pass", "fail": "fail"}.get(_status(v), "") for v in verdicts),
     )
@@ -824,15 +825,22 @@ _FINAL_WORDS = {
 
 
 def _found(v, m) -> str:
+    """The found value in the unit of the criterion's own limit (and where an extreme was taken)."""
     subject = SUBJECTS[v.criterion.subject]
     if v.actual is None:
         return "not reached" if subject.absent_is_never else "does not exist"
-    found = in_units(v.actual, m.unknown if subject.found == UNKNOWN else m.variable)
+    numbers = criterion_numbers(v)
+    found = (
+        found_text(numbers) if numbers else in_units(v.actual, m.unknown if subject.found == UNKNOWN else m.variable)
+    )
     extreme = getattr(v, "extreme", None)
-    if extreme is None:
-        return found
-    margin = v.criterion.limit.si - v.actual if v.criterion.operator in ("<=", "<") else v.actual - v.criterion.limit.si
-    return f"{found} {_extreme_where(extreme, m)}; margin {difference(margin, m.unknown)}"
+    return found if extreme is None else f"{found} {_extreme_where(extreme, m)}"
+
+
+def _margin_cells(v) -> tuple[str, str]:
+    """How far inside the limit the found value is, and how much of the limit it uses (sheet/criterion_numbers)."""
+    numbers = criterion_numbers(v) if getattr(v, "status", "") != "not assessed" else None
+    return (margin_text(numbers), utilisation_text(numbers)) if numbers else ("", "")
 
 
 def difference(si: float, declared) -> str:

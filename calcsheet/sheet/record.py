@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from calcsheet.derive.verify import bound
 from calcsheet.mathtext import plain
+from calcsheet.sheet.criterion_numbers import criterion_numbers
 from calcsheet.sheet.check_words import check_row, quadrature_words
 from calcsheet.subjects import SUBJECTS, UNKNOWN
 from calcsheet.sheet.quantities import record_value, rounded
@@ -135,6 +136,7 @@ def results_record(m, num) -> dict:
                 "status": getattr(v, "status", "pass" if v.passed else "fail"),
                 "not_assessed_because": getattr(v, "code", "") or None,
                 "found": _found(v, m),
+                **_margin(v),
             }
             for v in num.verdicts
         ],
@@ -171,6 +173,17 @@ def verification_record(verification) -> dict:
 def _check_record(check) -> dict:
     name, method, _, detail = check_row(check)
     return {"name": name, "code": check.code, "passed": check.passed, "method": method, "detail": detail}
+
+
+def _margin(verdict) -> dict:
+    """margin {value, unit} and utilisation (a fraction) as sheet/criterion_numbers.py defines them."""
+    numbers = criterion_numbers(verdict)
+    if numbers is None:
+        return {"margin": None, "utilisation": None}
+    return {
+        "margin": {"value": rounded(numbers.margin), "unit": numbers.margin_unit},
+        "utilisation": None if numbers.utilisation is None else rounded(numbers.utilisation),
+    }
 
 
 def _found(verdict, m):
