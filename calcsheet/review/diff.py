@@ -1,0 +1,270 @@
+"""Compare two JSON records (version 2) and return what changed as facts, with no words.
+
+The comparison reads records only, never inputs, so two sheets built by any means (a file, a git
+revision, a record kept from an earlier release) compare alike. Each fact names its section, what it
+is about (codes plus the user's own names) and the old and new values; ``diff_words.py`` words them.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+# Sections, in the order a reviewer reads them: what flipped first, then why, then what followed.
+VERDICT, INPUT, RESULT, FORM, SIGNOFF = "verdict", "input", "result", "form", "signoff"
+SECTIONS = (VERDICT, INPUT, RESULT, FORM, SIGNOFF)
+# Sections whose change means the calculation's answer changed (what --exit-code reports).
+ANSWER_SECTIONS = (VERDICT, RESULT)
+SOLUTION_FORMS = ("integrating_factor", "general", "particular", "natural", "forced")
+
+
+@dataclass(frozen=True)
+class Change:
+    """One difference: ``subject`` is a code (``parameter``, ``value``, ``criterion`` ...), ``name`` the
+    user's own label for it (a parameter's name, a check as written) and ``scope`` the interval of a
+    switched model ("" for the whole sheet). ``old``/``new`` are None when the item was added/removed."""
+
+    section: str
+    subject: str
+    name: str
+    old: object
+    new: object
+    scope: str = ""
+    absolute: float | None = None
+    relative: float | None = None
+
+
+def compare(old: dict, new: dict) -> list[Change]:
+    """Every difference between two records, sections in ``SECTIONS`` order, each in record order."""
+    found: list[Change] = []
+    found += _verdicts(old, new)
+    found += _inputs(old, new)
+    found += _results(old, new)
+    found += _forms(old, new)
+    found += _signoffs(old, new)
+    return found
+
+
+def answer_changed(changes: list[Change]) -> bool:
+    """True when a result or a verdict differs: the sheet's answer is no longer the one reviewed."""
+    return any(c.section in ANSWER_SECTIONS for c in changes)
+
+
+def _outcomes(record: dict) -> dict:
+    return record.get("across") or record
+
+
+def _keyed(items: list, key) -> dict:
+    """Items by their key; a repeated key is told apart by wrapping it (key, "again") as often as needed."""
+    out: dict = {}
+    for item in items or []:
+        k = key(item)
+        while k in out:
+            k = (k, "again")
+        out[k] = item
+    return out
+
+
+def _pairs(old_items: list, new_items: list, key):
+    """(key, old or None, new or None) for the union of keys: old order first, then new-only items."""
+    olds, news = _keyed(old_items, key), _keyed(new_items, key)
+    for k in list(olds) + [k for k in news if k not in olds]:
+        yield k, olds.get(k), news.get(k)
+
+
+def _status(criterion: dict | None) -> str | None:
+    return None if criterion is None else criterion.get("status")
+
+
+def _verdicts(old: dict, new: dict) -> list[Change]:
+    out = []
+    pairs = _pairs(_outcomes(old).get("criteria"), _outcomes(new).get("criteria"), lambda c: c.get("check", ""))
+    for check, before, after in pairs:
+        if before is not None and after is not None and _status(before) != _status(after):
+            out.append(Change(VERDICT, "criterion", check, _status(before), _status(after)))
+    if bool(old.get("passed")) != bool(new.get("passed")):
+        out.append(Change(VERDICT, "overall", "", bool(old.get("passed")), bool(new.get("passed"))))
+    return out
+
+
+def _quantity(item) -> tuple[float | None, str]:
+    if not isinstance(item, dict):
+        return None, ""
+    return item.get("value"), item.get("unit", "")
+
+
+def _numeric_change(section, subject, name, old, new, scope="", old_si=None, new_si=None) -> Change | None:
+    """A Change when two quantities ({value, unit}, or text with SI values) differ, with the absolute change
+    when both share a unit and the relative change when the old value is not zero."""
+    if old == new:
+        return None
+    if old_si is None and new_si is None:
+        (a, unit_a), (b, unit_b) = _quantity(old), _quantity(new)
+        same_unit = unit_a == unit_b
+    else:
+        a, b, same_unit = old_si, new_si, True
+    absolute = relative = None
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)) and same_unit:
+        absolute = b - a
+        relative = absolute / abs(a) if a != 0 else None
+    return Change(section, subject, name, old, new, scope, absolute, relative)
+
+
+def _parameters(old_params, new_params, scope) -> list[Change]:
+    out = []
+    for name, before, after in _pairs(old_params, new_params, lambda p: p.get("name", "")):
+        if before is None or after is None:
+            out.append(
+                Change(INPUT, "parameter", name, before and before.get("value"), after and after.get("value"), scope)
+            )
+        elif before.get("value") != after.get("value") or before.get("si") != after.get("si"):
+            change = _numeric_change(
+                INPUT,
+                "parameter",
+                name,
+                before.get("value"),
+                after.get("value"),
+                scope,
+                before.get("si"),
+                after.get("si"),
+            )
+            out.append(change or Change(INPUT, "parameter", name, before.get("value"), after.get("value"), scope))
+        elif before.get("source") != after.get("source"):
+            out.append(Change(INPUT, "parameter source", name, before.get("source"), after.get("source"), scope))
+    return out
+
+
+def _text(section, subject, old, new, scope="", name="") -> list[Change]:
+    return [] if old == new else [Change(section, subject, name, old, new, scope)]
+
+
+def _quantity_text(item) -> str | None:
+    value, unit = _quantity(item)
+    if value is None:
+        return None
+    shown = f"{value:.12g}" if isinstance(value, (int, float)) else str(value)
+    return f"{shown} {unit}".strip()
+
+
+def _inputs(old: dict, new: dict) -> list[Change]:
+    out: list[Change] = []
+    old_model, new_model = old.get("model", {}), new.get("model", {})
+    for part in ("at", "value"):
+        before = (old_model.get("initial") or {}).get(part)
+        after = (new_model.get("initial") or {}).get(part)
+        if before != after:
+            out.append(_numeric_change(INPUT, "initial " + part, "", before, after))
+    for interval, before, after in _intervals(old, new):
+        scope = interval
+        if before is None or after is None:
+            out.append(Change(INPUT, "interval", "", before is not None, after is not None, scope))
+            continue
+        out += _text(INPUT, "switch", before.get("switch"), after.get("switch"), scope)
+        out += _text(INPUT, "equation", before.get("equation"), after.get("equation"), scope)
+        out += _text(
+            INPUT, "kind", (before.get("kind") or {}).get("name"), (after.get("kind") or {}).get("name"), scope
+        )
+        out += _text(
+            INPUT, "forcing", (before.get("kind") or {}).get("forcing"), (after.get("kind") or {}).get("forcing"), scope
+        )
+        out += _parameters(before.get("parameters"), after.get("parameters"), scope)
+    pairs = _pairs(_outcomes(old).get("criteria"), _outcomes(new).get("criteria"), lambda c: c.get("check", ""))
+    for check, before, after in pairs:
+        if before is None or after is None:
+            out.append(Change(INPUT, "criterion", check, before and before.get("text"), after and after.get("text")))
+        else:
+            out += _text(INPUT, "criterion text", before.get("text"), after.get("text"), name=check)
+    return out
+
+
+def _intervals(old: dict, new: dict):
+    """(scope, old part, new part) for each interval of a switched record, or the one ordinary model."""
+    old_parts, new_parts = _parts(old), _parts(new)
+    for k in range(max(len(old_parts), len(new_parts))):
+        scope = "" if len(old_parts) == len(new_parts) == 1 else str(k + 1)
+        yield (
+            scope,
+            old_parts[k] if k < len(old_parts) else None,
+            new_parts[k] if k < len(new_parts) else None,
+        )
+
+
+def _parts(record: dict) -> list[dict]:
+    if record.get("intervals"):
+        return list(record["intervals"])
+    model = record.get("model", {})
+    return [
+        {
+            "equation": model.get("equation"),
+            "parameters": model.get("parameters"),
+            "kind": record.get("kind"),
+            "solution": record.get("solution"),
+            "time_constant": record.get("time_constant"),
+            "final_value": record.get("final_value"),
+        }
+    ]
+
+
+def _results(old: dict, new: dict) -> list[Change]:
+    out: list[Change] = []
+    a, b = _outcomes(old), _outcomes(new)
+    unknown = (new.get("model", {}).get("unknown") or {}).get("name", "")
+    for at, before, after in _pairs(a.get("values"), b.get("values"), lambda v: _quantity_text(v.get("at"))):
+        name = f"{unknown}({at})"
+        out.append(_numeric_change(RESULT, "value", name, before and before.get("value"), after and after.get("value")))
+    for level, before, after in _pairs(a.get("reach"), b.get("reach"), lambda r: _quantity_text(r.get("target"))):
+        out.append(_numeric_change(RESULT, "reach", level, before and before.get("at"), after and after.get("at")))
+    for key, before, after in _pairs(a.get("extremes"), b.get("extremes"), _extreme_key):
+        name = f"{key[0]} {key[1]}"
+        for part in ("value", "at"):
+            out.append(
+                _numeric_change(RESULT, "extreme " + part, name, before and before.get(part), after and after.get(part))
+            )
+    for scope, before, after in _intervals(old, new):
+        if before is None or after is None:
+            continue
+        for subject in ("time_constant", "final_value"):
+            out.append(_numeric_change(RESULT, subject, "", before.get(subject), after.get(subject), scope))
+    return [c for c in out if c is not None]
+
+
+def _extreme_key(extreme: dict) -> tuple[str, str, str, str]:
+    return (
+        extreme.get("type", ""),
+        extreme.get("of", ""),
+        _quantity_text(extreme.get("from")) or "",
+        _quantity_text(extreme.get("to")) or "",
+    )
+
+
+def _forms(old: dict, new: dict) -> list[Change]:
+    out: list[Change] = []
+    for scope, before, after in _intervals(old, new):
+        if before is None or after is None:
+            continue
+        old_solution, new_solution = before.get("solution") or {}, after.get("solution") or {}
+        for form in SOLUTION_FORMS:
+            out += _text(FORM, form, _form_text(old_solution.get(form)), _form_text(new_solution.get(form)), scope)
+    return out
+
+
+def _form_text(form) -> str | None:
+    return form.get("text") if isinstance(form, dict) else None
+
+
+def _role_state(entry: dict | None, fingerprint: str) -> str:
+    if not entry or not entry.get("signed_fingerprint"):
+        return "unsigned"
+    return "current" if entry["signed_fingerprint"] == fingerprint else "stale"
+
+
+def _signoffs(old: dict, new: dict) -> list[Change]:
+    """Each role whose state against its own record's fingerprint differs, then the fingerprint itself."""
+    out = []
+    old_fp, new_fp = old.get("fingerprint", ""), new.get("fingerprint", "")
+    for role, before, after in _pairs(old.get("signoff"), new.get("signoff"), lambda s: s.get("role", "")):
+        old_state, new_state = _role_state(before, old_fp), _role_state(after, new_fp)
+        if old_state != new_state:
+            signer = (after or before or {}).get("name", "")
+            out.append(Change(SIGNOFF, role, signer, old_state, new_state))
+    out += _text(SIGNOFF, "fingerprint", old_fp, new_fp)
+    return out
