@@ -81,9 +81,17 @@ def _verdicts(old: dict, new: dict) -> list[Change]:
     for check, before, after in pairs:
         if before is not None and after is not None and _status(before) != _status(after):
             out.append(Change(VERDICT, "criterion", check, _status(before), _status(after)))
+        if before is not None and after is not None and _worst(before) != _worst(after):
+            out.append(Change(VERDICT, "worst case", check, _worst(before), _worst(after)))
     if bool(old.get("passed")) != bool(new.get("passed")):
         out.append(Change(VERDICT, "overall", "", bool(old.get("passed")), bool(new.get("passed"))))
     return out
+
+
+def _worst(criterion: dict) -> str | None:
+    """The verdict at the worst corner of the tolerances, None where the sheet has no ranges."""
+    worst = criterion.get("worst_case")
+    return worst.get("verdict") if isinstance(worst, dict) else None
 
 
 def _quantity(item) -> tuple[float | None, str]:
@@ -167,6 +175,10 @@ def _inputs(old: dict, new: dict) -> list[Change]:
             INPUT, "forcing", (before.get("kind") or {}).get("forcing"), (after.get("kind") or {}).get("forcing"), scope
         )
         out += _parameters(before.get("parameters"), after.get("parameters"), scope)
+    for name, before, after in _pairs(old.get("tolerances"), new.get("tolerances"), lambda p: p.get("name", "")):
+        out += _text(
+            INPUT, "tolerance", before and before.get("as_stated"), after and after.get("as_stated"), name=name
+        )
     pairs = _pairs(_outcomes(old).get("criteria"), _outcomes(new).get("criteria"), lambda c: c.get("check", ""))
     for check, before, after in pairs:
         if before is None or after is None:

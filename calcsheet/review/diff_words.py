@@ -23,6 +23,8 @@ HEADINGS = {
 SUBJECTS = {
     "criterion": "criterion",
     "overall": "overall verdict",
+    "worst case": "at worst case of the tolerances, criterion",
+    "tolerance": "range of parameter",
     "parameter": "parameter",
     "parameter source": "source of parameter",
     "initial at": "initial condition, at",
@@ -58,7 +60,9 @@ def label(change: Change) -> str:
         text = SUBJECTS.get(change.subject, change.subject)
         if change.name:
             text += (
-                f' "{visible(change.name)}"' if change.subject.startswith("criterion") else f" {visible(change.name)}"
+                f' "{visible(change.name)}"'
+                if change.subject in ("criterion", "criterion text", "worst case")
+                else f" {visible(change.name)}"
             )
     return f"interval {change.scope}: {text}" if change.scope else text
 

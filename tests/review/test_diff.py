@@ -240,3 +240,41 @@ def test_rev_without_git_is_one_line_exit_2(tmp_path, monkeypatch):
     assert code == 2
     (line,) = err.strip().splitlines()
     assert "git is not installed" in line and str(path) in line
+
+
+VALVE = Path(__file__).resolve().parents[2] / "inputs" / "valve-coil-economiser.toml"
+
+
+def test_a_switched_model_reports_per_interval(tmp_path):
+    # The economiser demo's second interval: an RL circuit with V_s = 24 V, L = 0.8 H and R raised from
+    # 80 to 90 ohm. Its time constant is L / R and its final value V_s / R (common practice, no source).
+    text = VALVE.read_text(encoding="utf-8")
+    was = 'R = { value = "80 ohm", min = "78 ohm", max = "86.3 ohm"'
+    assert was in text
+    old, new = tmp_path / "old.toml", tmp_path / "new.toml"
+    old.write_text(text, encoding="utf-8")
+    new.write_text(text.replace(was, 'R = { value = "90 ohm", min = "78 ohm", max = "96.3 ohm"'), encoding="utf-8")
+    code, out, err = run("diff", old, new, "--format", "json")
+    assert code == 0, err
+    changes = json.loads(out)["comparisons"][0]["changes"]
+    by = {(c["subject"], c["scope"]): c for c in changes if c["name"] in ("", "R")}
+    assert (by[("parameter", "2")]["old"], by[("parameter", "2")]["new"]) == ("80 ohm", "90 ohm")
+    assert ("parameter", "1") not in by
+    tau, final = by[("time_constant", "2")], by[("final_value", "2")]
+    assert tau["old"]["value"] * {"ms": 1e-3, "s": 1.0}[tau["old"]["unit"]] == pytest.approx(0.8 / 80, rel=REL)
+    assert tau["new"]["value"] * {"ms": 1e-3, "s": 1.0}[tau["new"]["unit"]] == pytest.approx(0.8 / 90, rel=REL)
+    assert final["new"]["value"] == pytest.approx(24 / 90, rel=REL) and final["new"]["unit"] == "A"
+    tolerance = next(c for c in changes if c["subject"] == "tolerance")
+    assert "86.3 ohm" in tolerance["old"] and "96.3 ohm" in tolerance["new"]
+
+
+def test_a_worst_case_verdict_that_flips_is_a_verdict_flip():
+    def record(verdict):
+        criterion = {"check": "i(50 ms) >= 0.5 A", "status": "pass", "worst_case": {"verdict": verdict}}
+        return {"criteria": [criterion], "passed": verdict == "pass"}
+
+    changes = compare(record("pass"), record("fail"))
+    assert [(c.section, c.subject, c.old, c.new) for c in changes] == [
+        ("verdict", "worst case", "pass", "fail"),
+        ("verdict", "overall", True, False),
+    ]
