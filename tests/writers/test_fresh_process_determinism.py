@@ -14,6 +14,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+from tests.end_to_end.demo_verdicts import expected_exit
+
 ROOT = Path(__file__).resolve().parents[2]
 INPUTS = ROOT / "inputs"
 FORMATS = ("html", "pdf", "json", "txt")
@@ -54,8 +56,8 @@ def test_every_demo_is_byte_identical_in_two_fresh_processes(tmp_path):
         MPLCONFIGDIR=str(elsewhere / "mpl"),
         XDG_CACHE_HOME=str(elsewhere / "cache"),
     )
-    for run in (first, second):
-        assert run.returncode == 0, run.stderr
+    for run in (first, second):  # two demos honestly fail at worst case: exit 1 (tests/end_to_end/demo_verdicts.py)
+        assert run.returncode == expected_exit(p.stem for p in INPUTS.glob("*.toml")), run.stderr
         assert "Traceback" not in run.stderr, run.stderr
 
     demos = sorted(p.stem for p in INPUTS.glob("*.toml"))
