@@ -81,6 +81,18 @@ class Figure:
     point_limits: tuple["PointLimit", ...] = ()  # a limit on the unknown at one point, drawn there, not across
     switches: tuple[tuple[float, str], ...] = ()  # switch instants (x, what happens)
     crossings: tuple[tuple[float, float, str], ...] = ()  # where a level is first reached (x, y, label)
+    legend: "Legend | None" = None  # the words of the legend (compose's), None: no legend entries
+
+
+@dataclass(frozen=True)
+class Legend:
+    """The legend's words for each kind of mark; the writer draws, the sheet words."""
+
+    curve: str
+    independent: str
+    points: str
+    largest: str  # an extreme that is a largest value
+    smallest: str
 
 
 @dataclass(frozen=True)

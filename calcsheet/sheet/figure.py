@@ -2,9 +2,18 @@
 
 from __future__ import annotations
 
-from calcsheet.sheet.document import Figure, Guide, PointLimit
+from calcsheet.sheet.document import Figure, Guide, Legend, PointLimit
 from calcsheet.source.units import from_si
 from calcsheet.subjects import SUBJECTS, UNKNOWN, VARIABLE
+
+
+LEGEND = Legend(
+    curve="derived solution",
+    independent="independent integration",
+    points="evaluated points",
+    largest="extremes (max)",
+    smallest="extremes (min)",
+)
 
 
 def response_figure(d) -> Figure:
@@ -56,6 +65,7 @@ def response_figure(d) -> Figure:
         extremes=extremes,
         point_limits=tuple(point_limits),
         crossings=crossings,
+        legend=LEGEND,
         switches=tuple((x_of(s.at.si), s.text) for s in m.switches if start <= s.at.si <= end),
         caption=(
             f"Line: the particular solution; open circles: the independent numerical integration; "

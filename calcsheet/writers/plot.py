@@ -34,10 +34,6 @@ FRAME = "#4a525c"
 FIGSIZE_IN = (6.3, 3.35)  # about 16 cm x 8.5 cm
 MARGIN = 0.05  # fraction of the data span added above and below
 
-CURVE_LABEL = "derived solution"
-INDEPENDENT_LABEL = "independent integration"
-POINTS_LABEL = "evaluated points"
-EXTREMES_LABEL = "extremes"
 EXTREME = "#7a4a00"
 
 # status -> (colour, matplotlib linestyle, linewidth in pt); the dash patterns are set in _RC
@@ -132,7 +128,7 @@ def _build(figure):
             color=INK,
             linewidth=1.5,
             solid_capstyle="round",
-            label=CURVE_LABEL,
+            label=_legend(figure, "curve"),
             zorder=3,
             gid="calcsheet-curve",
         )
@@ -146,7 +142,7 @@ def _build(figure):
             markerfacecolor="white",
             markeredgecolor=INDEPENDENT,
             markeredgewidth=0.9,
-            label=INDEPENDENT_LABEL,
+            label=_legend(figure, "independent"),
             zorder=4,
             clip_on=False,
             gid="calcsheet-independent",
@@ -161,7 +157,7 @@ def _build(figure):
             markerfacecolor=INK,
             markeredgecolor="white",
             markeredgewidth=0.8,
-            label=POINTS_LABEL,
+            label=_legend(figure, "points"),
             zorder=5,
             clip_on=False,
             gid="calcsheet-points",
@@ -180,7 +176,7 @@ def _build(figure):
                 markerfacecolor=EXTREME,
                 markeredgecolor="white",
                 markeredgewidth=0.7,
-                label=f"{EXTREMES_LABEL} ({kind})",
+                label=_legend(figure, "largest" if kind == "max" else "smallest"),
                 zorder=6,
                 clip_on=False,
                 gid=f"calcsheet-extremes-{kind}",
@@ -282,6 +278,13 @@ def _build(figure):
     for mark in point_limits:
         placer.point_label(mark.x, mark.value, mark.label)
     return fig
+
+
+def _legend(figure, mark: str) -> str:
+    """The legend's words for a kind of mark, from the Figure (the sheet words; a writer only draws). No
+    words, no legend entry (matplotlib leaves out labels that start with an underscore)."""
+    legend = getattr(figure, "legend", None)
+    return getattr(legend, mark) if legend is not None else "_nolegend_"
 
 
 def _finite(*values) -> bool:

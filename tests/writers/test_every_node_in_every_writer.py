@@ -34,6 +34,7 @@ FRAME = {
     doc.Math,
     doc.Guide,
     doc.PointLimit,
+    doc.Legend,
     doc.SignOffLine,
     doc.Review,
 }

@@ -11,6 +11,7 @@ from pathlib import Path
 import pytest
 
 from calcsheet.sheet.document import Figure, Guide
+from calcsheet.sheet.figure import LEGEND
 from calcsheet.writers.plot import GUIDE_STYLE, build_figure, figure_svg
 from calcsheet.writers.svgmath import data_uri
 
@@ -38,6 +39,7 @@ def _figure(levels=(), limits=(), points=True, curve=None, **kw):
         levels=levels,
         limits=limits,
         caption="",
+        legend=kw.pop("legend", LEGEND),
         **kw,
     )
 
@@ -255,3 +257,12 @@ def test_a_limit_at_one_point_is_drawn_at_that_point_not_across_the_plot():
     assert not any(g.label.startswith("limit v(60 s)") for g in figure.levels)
     assert any(g.label == "level 50 V" for g in figure.levels)
     assert len(figure.crossings) == 2  # the two levels asked for, each where it is first reached
+
+
+def test_the_legend_words_come_from_the_figure_not_the_writer():
+    from calcsheet.sheet.document import Legend
+
+    words = Legend("LINE-X", "RINGS-X", "DOTS-X", "UP-X", "DOWN-X")
+    svg = figure_svg(_figure(legend=words))
+    assert "LINE-X" in svg and "RINGS-X" in svg and "DOTS-X" in svg
+    assert "derived solution" not in svg
