@@ -12,10 +12,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import mpmath
 import sympy as sp
 
-from calcsheet.derive.safe_numeric import NotFinite, real_float
+from calcsheet.derive.safe_numeric import NotFinite
 from calcsheet.derive.verify import (
     AGREEMENT,
     ATOL_SHARE,
@@ -30,6 +29,7 @@ from calcsheet.derive.verify import (
     Check,
     IntegrationFailed,
     difference_measure,
+    bounded_integral,
     integrate_pieces,
     slope_function,
 )
@@ -37,7 +37,7 @@ from calcsheet.model import Model
 
 CONTINUITY_LIMIT = 1e-9  # both sides are the same closed form to about 1e-12 (QUADPACK's rtol for integral terms)
 DIGITS = 30  # working precision of the independent evaluation at a switch
-QUAD_PIECES, QUAD_DEGREE = 8, 8  # the bound on the work of an integral term at a switch
+QUAD_DEGREE = 8  # the bound on the work of an integral term at a switch (verify.bounded_integral)
 
 
 @dataclass(frozen=True)
@@ -102,7 +102,7 @@ def particular_at(model: Model, solution, x: float) -> float:
     expr = solution.particular.subs(exact)
     integrals = expr.atoms(sp.Integral)
     if integrals:
-        expr = expr.xreplace({i: _integral_value(i) for i in integrals})
+        expr = expr.xreplace({i: bounded_integral(i, DIGITS, QUAD_DEGREE, tolerance=1e-12) for i in integrals})
     try:
         value = complex(sp.N(expr, DIGITS))
     except (TypeError, ValueError, ArithmeticError):
@@ -110,26 +110,6 @@ def particular_at(model: Model, solution, x: float) -> float:
     if not (math.isfinite(value.real) and abs(value.imag) <= 1e-12 * max(1.0, abs(value.real))):
         return math.nan
     return value.real
-
-
-def _integral_value(integral: sp.Integral) -> sp.Expr:
-    """A definite integral by tanh-sinh quadrature on QUAD_PIECES pieces of bounded degree (a fixed
-    ceiling on the work); NaN when its own error estimate says it did not converge."""
-    ((variable, low, high),) = integral.limits
-    f = sp.lambdify(variable, integral.function, modules="mpmath")
-    with mpmath.workdps(DIGITS):
-        a, b = mpmath.mpf(real_float(sp.N(low, DIGITS))), mpmath.mpf(real_float(sp.N(high, DIGITS)))
-        if not (mpmath.isfinite(a) and mpmath.isfinite(b)):
-            return sp.nan
-        nodes = [a + (b - a) * k / QUAD_PIECES for k in range(QUAD_PIECES + 1)]
-        try:
-            value, error = mpmath.quad(f, nodes, maxdegree=QUAD_DEGREE, error=True)
-        except (ArithmeticError, ValueError, TypeError, NameError):
-            return sp.nan
-        value = real_float(value)
-        if not math.isfinite(value) or float(error) > 1e-12 * max(abs(value), 1e-300):
-            return sp.nan
-    return sp.Float(value, DIGITS)
 
 
 # ----------------------------------------------------------------------------- switched integration

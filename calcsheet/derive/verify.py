@@ -352,38 +352,40 @@ def _sample_points(points: list[float]) -> list[float]:
 
 
 def _number(expr: sp.Expr) -> float:
-    """A constant expression in 20 digits; integrals in it by bounded quadrature (see _integral_value)."""
+    """A constant expression in 20 digits; integrals in it by bounded quadrature (see bounded_integral)."""
     integrals = expr.atoms(sp.Integral)
     if integrals:
-        expr = expr.xreplace({i: _integral_value(i) for i in integrals})
+        expr = expr.xreplace({i: bounded_integral(i) for i in integrals})
         if expr.has(sp.nan):
             return math.nan
     value = complex(sp.N(expr, 20))
     return value.real if abs(value.imag) <= 1e-12 * max(1.0, abs(value.real)) else math.nan
 
 
-def _integral_value(integral: sp.Integral) -> sp.Expr:
-    """A definite integral by tanh-sinh quadrature (mpmath) on QUAD_PIECES pieces, each of a bounded
-    degree: the work has a fixed ceiling, so a slow integrand cannot hang the check. NaN when the
-    quadrature's own error estimate says it did not converge within that bound.
+def bounded_integral(
+    integral: sp.Integral, digits: int = 20, degree: int = QUAD_DEGREE, tolerance: float = 1e-14
+) -> sp.Expr:
+    """A definite integral by tanh-sinh quadrature (mpmath) on QUAD_PIECES pieces, each of at most
+    ``degree``: the work has a fixed ceiling, so a slow integrand cannot hang a check. NaN when the
+    quadrature's own error estimate exceeds ``tolerance`` relative to the value.
 
     (sympy.N would raise its precision until satisfied, without any bound on the time taken.)
     """
     ((variable, low, high),) = integral.limits
     f = sp.lambdify(variable, integral.function, modules="mpmath")
-    with mpmath.workdps(20):
-        a, b = mpmath.mpf(real_float(sp.N(low, 20))), mpmath.mpf(real_float(sp.N(high, 20)))
+    with mpmath.workdps(digits):
+        a, b = mpmath.mpf(real_float(sp.N(low, digits))), mpmath.mpf(real_float(sp.N(high, digits)))
         if not (mpmath.isfinite(a) and mpmath.isfinite(b)):
             return sp.nan
         nodes = [a + (b - a) * k / QUAD_PIECES for k in range(QUAD_PIECES + 1)]
         try:
-            value, error = mpmath.quad(f, nodes, maxdegree=QUAD_DEGREE, error=True)
-        except (ArithmeticError, ValueError, TypeError):
+            value, error = mpmath.quad(f, nodes, maxdegree=degree, error=True)
+        except (ArithmeticError, ValueError, TypeError, NameError):
             return sp.nan
         value = real_float(value)
-        if not math.isfinite(value) or float(error) > 1e-14 * max(abs(value), 1e-300) + 1e-300:
+        if not math.isfinite(value) or float(error) > tolerance * max(abs(value), 1e-300) + 1e-300:
             return sp.nan
-    return sp.Float(value, 20)
+    return sp.Float(value, digits)
 
 
 def bound(value: float) -> str:
