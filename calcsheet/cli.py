@@ -13,6 +13,16 @@ from calcsheet.errors import EXIT_CHECK_FAILED, EXIT_INPUT_ERROR, EXIT_OK, Calcs
 EXIT_INTERNAL = 3
 
 
+# A what-if replaces parameters for one run (build and check take it alike).
+_what_if = click.option(
+    "--set",
+    "assignments",
+    multiple=True,
+    metavar="NAME=VALUE",
+    help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*',
+)
+
+
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(package_name="calcsheet")
 def main() -> None:
@@ -38,13 +48,7 @@ def _neutralise_bad_source_date_epoch() -> None:
     default=None,
     help="Folder of a house style overriding the default templates and CSS (wins over [sheet] style).",
 )
-@click.option(
-    "--set",
-    "assignments",
-    multiple=True,
-    metavar="NAME=VALUE",
-    help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*',
-)
+@_what_if
 def build(
     inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None, assignments: tuple[str, ...]
 ) -> None:
@@ -69,13 +73,7 @@ def build(
 
 @main.command()
 @click.argument("inputs", nargs=-1, required=True)
-@click.option(
-    "--set",
-    "assignments",
-    multiple=True,
-    metavar="NAME=VALUE",
-    help='What-if: replace a parameter, e.g. --set R="5.1 kohm" (repeatable); outputs go to <stem>.whatif.*',
-)
+@_what_if
 def check(inputs: tuple[str, ...], assignments: tuple[str, ...]) -> None:
     """Derive, verify and evaluate the criteria of each INPUT; write nothing."""
     overrides = _guard(lambda: _assignments(assignments))

@@ -87,7 +87,7 @@ def _extreme_marks(m, num, start, end, x_of, y_of) -> tuple[tuple[float, float, 
     from calcsheet.sheet.quantities import in_units
 
     marks = {}
-    for e in getattr(num, "extremes", ()):
+    for e in num.extremes:
         if e.at is not None and e.value is not None and start <= e.at <= end:
             marks.setdefault((e.kind, e.at), (x_of(e.at), y_of(e.value), f"{e.kind} {in_units(e.value, m.unknown)}"))
     return tuple(marks[k] for k in sorted(marks, key=lambda k: (k[1], k[0])))

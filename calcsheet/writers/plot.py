@@ -163,7 +163,7 @@ def _build(figure):
             gid="calcsheet-points",
         )
 
-    extremes = [e for e in getattr(figure, "extremes", ()) if _finite(e[0], e[1])]
+    extremes = [e for e in figure.extremes if _finite(e[0], e[1])]
     for kind in ("max", "min"):  # an upward triangle on a largest value, a downward one on a smallest
         marks = [e for e in extremes if e[2].startswith(kind)]
         if marks:
@@ -182,7 +182,7 @@ def _build(figure):
                 gid=f"calcsheet-extremes-{kind}",
             )
 
-    crossings = [c for c in getattr(figure, "crossings", ()) if _finite(c[0], c[1])]
+    crossings = [c for c in figure.crossings if _finite(c[0], c[1])]
     if crossings:
         ax.plot(
             [c[0] for c in crossings],
@@ -196,7 +196,7 @@ def _build(figure):
             clip_on=False,
             gid="calcsheet-crossings",
         )
-    point_limits = [p for p in getattr(figure, "point_limits", ()) if _finite(p.x, p.value)]
+    point_limits = [p for p in figure.point_limits if _finite(p.x, p.value)]
     for i, mark in enumerate(point_limits):  # a bar at the limit, a caret on the side allowed
         colour, _, _ = GUIDE_STYLE.get(mark.status, GUIDE_STYLE[""])
         ax.plot(
@@ -221,31 +221,22 @@ def _build(figure):
             zorder=6,
             clip_on=False,
         )
-    for i, (x, _) in enumerate(s for s in getattr(figure, "switches", ()) if _finite(s[0])):
+    for i, (x, _) in enumerate(s for s in figure.switches if _finite(s[0])):
         ax.axvline(x, color=GREY, linestyle="-.", linewidth=0.9, zorder=2, gid=f"calcsheet-switch-{i}")
 
     levels = [g for g in figure.levels if _finite(g.value)]
     limits = [g for g in figure.limits if _finite(g.value)]
-    for i, guide in enumerate(levels):
-        colour, style, width = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])
-        ax.axhline(
-            guide.value,
-            color=colour,
-            linestyle=style,
-            linewidth=width,
-            zorder=2,
-            gid=f"calcsheet-level-{guide.status or 'none'}-{i}",
-        )
-    for i, guide in enumerate(limits):
-        colour, style, width = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])
-        ax.axvline(
-            guide.value,
-            color=colour,
-            linestyle=style,
-            linewidth=width,
-            zorder=2,
-            gid=f"calcsheet-limit-{guide.status or 'none'}-{i}",
-        )
+    for draw, kind, guides in ((ax.axhline, "level", levels), (ax.axvline, "limit", limits)):
+        for i, guide in enumerate(guides):
+            colour, style, width = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])
+            draw(
+                guide.value,
+                color=colour,
+                linestyle=style,
+                linewidth=width,
+                zorder=2,
+                gid=f"calcsheet-{kind}-{guide.status or 'none'}-{i}",
+            )
 
     legend = None
     if ax.get_legend_handles_labels()[0]:
@@ -283,7 +274,7 @@ def _build(figure):
 def _legend(figure, mark: str) -> str:
     """The legend's words for a kind of mark, from the Figure (the sheet words; a writer only draws). No
     words, no legend entry (matplotlib leaves out labels that start with an underscore)."""
-    legend = getattr(figure, "legend", None)
+    legend = figure.legend
     return getattr(legend, mark) if legend is not None else "_nolegend_"
 
 
@@ -315,7 +306,7 @@ def _ranges(figure, curve):
         + [y for _, y in figure.independent]
         + [p[1] for p in figure.points]
         + [g.value for g in figure.levels]
-        + [p.value for p in getattr(figure, "point_limits", ())]
+        + [p.value for p in figure.point_limits]
     )
     y0, y1 = _span(ys, (0.0, 1.0))
     pad = 0.1 * (abs(y0) or 1.0) if y0 == y1 else MARGIN * (y1 - y0)
@@ -359,7 +350,7 @@ class _Placer:
         self.curve = [self._frac(x, y) for x, y in curve]
         self.markers = [self._frac(x, y) for x, y in figure.independent if _finite(x, y)]
         self.markers += [self._frac(p[0], p[1]) for p in figure.points if _finite(p[0], p[1])]
-        self.markers += [self._frac(p[0], p[1]) for p in getattr(figure, "extremes", ()) if _finite(p[0], p[1])]
+        self.markers += [self._frac(p[0], p[1]) for p in figure.extremes if _finite(p[0], p[1])]
         self.hlines = [self._frac(self.xlim[0], g.value)[1] for g in levels]
         self.vlines = [self._frac(g.value, self.ylim[0])[0] for g in limits]
 
