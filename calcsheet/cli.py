@@ -85,6 +85,88 @@ def check(inputs: tuple[str, ...], assignments: tuple[str, ...]) -> None:
     sys.exit(_run_each(inputs, one, overrides=overrides))
 
 
+FAMILY_CURVES = 5  # response curves a --family plot overlays (every point when the sweep has fewer)
+
+
+@main.command()
+@click.argument("input_file", metavar="INPUT")
+@click.option(
+    "--vary",
+    "vary",
+    required=True,
+    metavar="NAME=LOW..HIGH",
+    help='The parameter swept, e.g. --vary R="1 kohm..100 kohm".',
+)
+@click.option("--steps", default="25", show_default=True, help="Points of the sweep, both ends included (2 to 1000).")
+@click.option("--log", "log", is_flag=True, help="Space the points evenly in the logarithm and draw the axis so.")
+@click.option(
+    "--of",
+    "of",
+    multiple=True,
+    metavar="QUANTITY",
+    help='A quantity to tabulate, named as a check names it: "v(60 s)", "max(T)", "reach(50 V)" (repeatable; '
+    "default: every criterion's subject).",
+)
+@click.option("--family", is_flag=True, help=f"Also plot the response for {FAMILY_CURVES} values of the parameter.")
+@click.option("--format", "formats", default=None, help="Comma-separated: csv,svg,png (default: csv,svg).")
+@click.option("--out", "out_dir", default=None, help="Folder for the outputs (default: beside INPUT).")
+@_what_if
+def sweep(
+    input_file: str,
+    vary: str,
+    steps: str,
+    log: bool,
+    of: tuple[str, ...],
+    family: bool,
+    formats: str | None,
+    out_dir: str | None,
+    assignments: tuple[str, ...],
+) -> None:
+    """Evaluate INPUT's criteria and quantities over a range of one parameter: a CSV table and a plot,
+    <stem>.sweep-NAME.csv and .svg, with each limiting value found where a verdict changes."""
+    from calcsheet.load.sweep_range import parse_vary
+    from calcsheet.pipeline import (
+        DEFAULT_SWEEP_FORMATS,
+        SWEEP_FORMATS,
+        SweepRequest,
+        parse_formats,
+        sweep_outputs,
+        write_all,
+    )
+
+    path = Path(input_file)
+    if not path.is_file():
+        _guard(lambda: _refuse("no such file", input_file))
+    chosen = _guard(lambda: parse_formats(formats, SWEEP_FORMATS) if formats else DEFAULT_SWEEP_FORMATS)
+    overrides = _guard(lambda: _assignments(assignments))
+    request = SweepRequest(
+        vary=_guard(lambda: parse_vary(vary)),
+        steps=_guard(lambda: _whole_number(steps, "--steps")),
+        log=log,
+        of=of,
+        family=FAMILY_CURVES if family else 0,
+        formats=chosen,
+    )
+    folder = Path(out_dir) if out_dir is not None else path.parent
+
+    def one(_) -> int:
+        files, lines = sweep_outputs(path, request, overrides)
+        written = write_all(folder, files)
+        click.echo(f"{path}: " + "\n".join(lines) + f"\n  -> {', '.join(str(w) for w in written)}")
+        return EXIT_OK
+
+    sys.exit(_run_each((input_file,), one, build=False))
+
+
+def _whole_number(text: str, key: str) -> int:
+    from calcsheet.errors import InputError
+
+    try:
+        return int(text.strip())
+    except ValueError:
+        raise InputError(f"'{text}' is not a whole number", key) from None
+
+
 def _issue_guard(built, code: int) -> int:
     """An issued sheet without current prepared, checked and approved sign-offs fails, with the reason."""
     if not built.sheet.review.problem:
@@ -308,14 +390,15 @@ def _assignments(assignments: tuple[str, ...]) -> tuple[tuple[str, str], ...]:
     return tuple(parse_assignment(text) for text in assignments)
 
 
-def _run_each(inputs: tuple[str, ...], action, writes: bool = False, overrides: tuple = ()) -> int:
+def _run_each(inputs: tuple[str, ...], action, writes: bool = False, overrides: tuple = (), build: bool = True) -> int:
+    """``action`` on each input's built sheet (on its path, with ``build`` False), every error one line."""
     from calcsheet.pipeline import build_sheet, collect_inputs
 
     paths = _guard(lambda: collect_inputs(inputs, writes))
     worst = EXIT_OK
     for path in paths:
         try:
-            worst = max(worst, _os_guarded(lambda: action(build_sheet(path, overrides)), str(path)))
+            worst = max(worst, _os_guarded(lambda: action(build_sheet(path, overrides) if build else path), str(path)))
         except CalcsheetError as error:
             click.echo(str(error.located(file=str(path))), err=True)
             worst = max(worst, error.exit_code)

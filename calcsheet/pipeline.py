@@ -45,6 +45,63 @@ def build_sheet(path: Path, overrides: tuple[tuple[str, str], ...] = ()) -> Buil
     return Built(path, derivation, seal(compose(derivation), model.sheet))
 
 
+SWEEP_FORMATS = ("csv", "svg", "png")
+DEFAULT_SWEEP_FORMATS = ("csv", "svg")
+
+
+@dataclass(frozen=True)
+class SweepRequest:
+    """What ``calcsheet sweep`` asks for, as the command line gives it (checked while loading)."""
+
+    vary: tuple[str, str, str]  # (name, low, high) as written
+    steps: int = 25
+    log: bool = False
+    of: tuple[str, ...] = ()  # quantities as a check names them; () for every criterion's subject
+    family: int = 0  # response curves to overlay; 0 for no family plot
+    formats: tuple[str, ...] = DEFAULT_SWEEP_FORMATS
+
+
+def sweep_outputs(path: Path, request: SweepRequest, overrides: tuple[tuple[str, str], ...] = ()):
+    """A sweep of one parameter: (file name -> contents, summary lines), all in memory before anything is
+    written. Loads as a build does (``--set`` first), derives once, and evaluates each point through the
+    margin study (derive/sweep.py)."""
+    from calcsheet.derive.sweep import find_sweep
+    from calcsheet.load.loader import load_for_sweep, read_subject
+    from calcsheet.load.sweep_range import check_steps
+    from calcsheet.sheet import sweep_layout as layout
+    from calcsheet.writers.sweep_csv import table_csv
+
+    check_steps(request.steps)
+    model, vary = load_for_sweep(path, overrides, request.vary, request.log)
+    asked = tuple(read_subject(model, text, "--of") for text in request.of)
+    if model.switches:
+        from calcsheet.derive.piecewise import derive_piecewise
+
+        derivation = derive_piecewise(model)
+    else:
+        from calcsheet.derive.derivation import derive
+
+        derivation = derive(model)
+    sweep = find_sweep(
+        derivation, vary.name, vary.low, vary.high, request.steps, request.log, asked, family=request.family
+    )
+    stem = f"{path.stem}{'.whatif' if overrides else ''}.sweep-{vary.name}"
+    files: dict[str, str | bytes] = {}
+    if "csv" in request.formats:
+        files[f"{stem}.csv"] = table_csv(layout.sweep_table(sweep, model, vary))
+    images = [f for f in request.formats if f in ("svg", "png")]
+    if images:
+        from calcsheet.writers.sweep_plot import family_image, sweep_image
+
+        plot = layout.sweep_plot(sweep, model, vary)
+        family = layout.family_plot(sweep, model, vary) if request.family else None
+        for fmt in images:
+            files[f"{stem}.{fmt}"] = sweep_image(plot, fmt)
+            if family is not None:
+                files[f"{stem}.family.{fmt}"] = family_image(family, fmt)
+    return files, layout.summary_lines(sweep, model, vary)
+
+
 def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[str, str | bytes]:
     """Every requested format as text, all in memory before anything touches the disk."""
     from calcsheet.writers import writer_for
@@ -53,15 +110,20 @@ def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[s
 
 
 def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str | bytes]) -> list[Path]:
-    """Write a sheet's outputs as ``out_dir/<stem>.<format>``: every format goes to a temporary file first,
-    and only when all are complete are they renamed into place, one right after another. A failed run
-    leaves the previous outputs as they were; no file under a final name is ever partly written."""
+    """Write a sheet's outputs as ``out_dir/<stem>.<format>``, all or none (``write_all``)."""
+    return write_all(out_dir, {f"{stem}.{fmt}": data for fmt, data in rendered.items()})
+
+
+def write_all(out_dir: Path, named: dict[str, str | bytes]) -> list[Path]:
+    """Write each file of ``named`` into ``out_dir``: every one goes to a temporary file first, and only when
+    all are complete are they renamed into place, one right after another. A failed run leaves the previous
+    outputs as they were; no file under a final name is ever partly written."""
     out_dir.mkdir(parents=True, exist_ok=True)
     remove_stale_parts(out_dir)
     staged = []
     try:
-        for fmt, data in rendered.items():
-            staged.append((_staged(out_dir / f"{stem}.{fmt}", data), out_dir / f"{stem}.{fmt}"))
+        for name, data in named.items():
+            staged.append((_staged(out_dir / name, data), out_dir / name))
     except BaseException:
         for temporary, _ in staged:
             temporary.unlink(missing_ok=True)

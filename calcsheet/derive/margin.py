@@ -67,6 +67,17 @@ class Probe:
 
 
 @dataclass(frozen=True)
+class Outcome:
+    """One evaluation away from nominal: each probe's quantity (SI), each criterion's verdict, and what gave them."""
+
+    quantities: tuple[float | None, ...]
+    passed: tuple[bool, ...]
+    statuses: tuple[str, ...]  # each criterion's Verdict.status: "pass", "fail" or "not assessed"
+    numbers: object  # derive.numbers.Numbers
+    response: object  # y(x) in SI: the ResponseEvaluator, or the intervals joined for a switched model
+
+
+@dataclass(frozen=True)
 class Sensitivity:
     quantity: int  # index into Margin.quantities
     parameter: str  # Toleranced.key
@@ -171,12 +182,13 @@ def _window_key(window) -> tuple | None:
 
 
 class _Study:
-    def __init__(self, derivation, toleranced: tuple[Toleranced, ...]):
+    def __init__(self, derivation, toleranced: tuple[Toleranced, ...], asked: tuple[Probe, ...] | None = None):
+        """``asked``: the quantities to evaluate, the model's criteria first (default: ``probes``)."""
         self.d = derivation
         self.model = derivation.model
         self.toleranced = toleranced
         self.switched = bool(self.model.switches)
-        self.probes = probes(self.model, derivation.numbers)
+        self.probes = asked if asked is not None else probes(self.model, derivation.numbers)
         self.nominal_values = tuple(t.nominal for t in toleranced)
         self._cache: dict = {}
         pieces = [i.derivation for i in derivation.intervals] if self.switched else [derivation]
@@ -186,12 +198,17 @@ class _Study:
     # ------------------------------------------------------------------ evaluation
     def evaluate(self, values: tuple[float, ...]) -> tuple[tuple[float | None, ...], tuple[bool, ...]]:
         """Every probe's quantity (SI) and every criterion's verdict with the toleranced parameters at ``values``."""
+        found = self.outcome(values)
+        return found.quantities, found.passed
+
+    def outcome(self, values: tuple[float, ...]) -> Outcome:
+        """The evaluation at ``values`` in full: quantities, verdicts, the numbers and the response y(x)."""
         values = tuple(float(v) for v in values)
         if values in self._cache:
             return self._cache[values]
         model = replace(self._replaced(values), criteria=tuple(p.criterion for p in self.probes))
         if self.switched:
-            numbers = _switched_numbers(model, self.d, self.final_forms)
+            numbers, y = _switched_numbers(model, self.d, self.final_forms)
         else:
             from calcsheet.derive.evaluate import make_evaluator
 
@@ -199,10 +216,16 @@ class _Study:
             y = make_evaluator(model, self.d.solution, scale=max(reach + [1.0]))
             final = self.final_forms[0](model) if self.final_forms[0] else None
             numbers = compute_numbers(model, self.d.classification, self.d.solution, y, final=final)
-        quantities = tuple(_finite(v.actual) for v in numbers.verdicts)
-        verdicts = tuple(v.passed for v in numbers.verdicts[: len(self.model.criteria)])
-        self._cache[values] = (quantities, verdicts)
-        return quantities, verdicts
+        criteria = numbers.verdicts[: len(self.model.criteria)]
+        found = Outcome(
+            quantities=tuple(_finite(v.actual) for v in numbers.verdicts),
+            passed=tuple(v.passed for v in criteria),
+            statuses=tuple(v.status for v in criteria),
+            numbers=numbers,
+            response=y,
+        )
+        self._cache[values] = found
+        return found
 
     def _replaced(self, values) -> Model:
         """The Model with each toleranced parameter at its value (a switch's own ones in its law)."""
@@ -484,16 +507,8 @@ class _Study:
     def _bracketed(self, k: int, j: int) -> LimitingValue:
         """Step away from the nominal value in doubling steps (the range's width first) until the criterion
         changes, then Brent's method on the bracket; bounded in evaluations, and kept to the parameter's sign."""
-        criterion, t = self.model.criteria[k], self.toleranced[j]
-        badness = self._badness(criterion)
-        limit_score = badness(criterion.limit.si)
-
-        def g(value: float) -> float:
-            point = list(self.nominal_values)
-            point[j] = value
-            score = badness(self.quantity(point, k)) - limit_score
-            return score if math.isfinite(score) else math.copysign(1e300, score)
-
+        t = self.toleranced[j]
+        g = self.beyond_limit(k, j)
         g0 = g(t.nominal)
         width = t.parameter.high - t.parameter.low
         searched = [t.nominal, t.nominal]
@@ -508,15 +523,7 @@ class _Study:
                 searched = [min(searched[0], value), max(searched[1], value)]
                 g_value = g(value)
                 if (g_previous <= 0) != (g_value <= 0):
-                    root = optimize.brentq(
-                        g,
-                        min(previous, value),
-                        max(previous, value),
-                        maxiter=ROOT_ITERATIONS,
-                        xtol=1e-12 * max(abs(value), abs(previous)),
-                        rtol=1e-12,
-                        disp=False,
-                    )
+                    root = self.crossing(k, j, previous, value)
                     return LimitingValue(
                         t.key, float(root), BRACKETED, direction="rise" if root > t.nominal else "fall"
                     )
@@ -524,11 +531,42 @@ class _Study:
         code = HOLDS_THROUGHOUT if g0 <= 0 else FAILS_THROUGHOUT
         return LimitingValue(t.key, None, code, searched=(searched[0], searched[1]))
 
+    def beyond_limit(self, k: int, j: int):
+        """g(p): how far criterion k's quantity lies on the failing side of its limit with parameter j at p (the
+        others nominal); g <= 0 where it holds."""
+        criterion = self.model.criteria[k]
+        badness = self._badness(criterion)
+        limit_score = badness(criterion.limit.si)
+
+        def g(value: float) -> float:
+            point = list(self.nominal_values)
+            point[j] = value
+            score = badness(self.quantity(point, k)) - limit_score
+            return score if math.isfinite(score) else math.copysign(1e300, score)
+
+        return g
+
+    def crossing(self, k: int, j: int, a: float, b: float) -> float:
+        """Where criterion k changes between parameter j at a and at b (its verdicts differ there): Brent's
+        method, bounded in iterations."""
+        return float(
+            optimize.brentq(
+                self.beyond_limit(k, j),
+                min(a, b),
+                max(a, b),
+                maxiter=ROOT_ITERATIONS,
+                xtol=1e-12 * max(abs(a), abs(b)),
+                rtol=1e-12,
+                disp=False,
+            )
+        )
+
 
 # ----------------------------------------------------------------------------- helpers
 def _switched_numbers(model: Model, nominal, final_forms):
     """The joined numbers of a switched Model: each interval's symbolic solution (from the nominal derivation)
-    evaluated with the new numbers, joined as derive_piecewise joins them, without the verification."""
+    evaluated with the new numbers, joined as derive_piecewise joins them, without the verification; and the
+    joined response y(x)."""
     from calcsheet.derive.derivation import Derivation
     from calcsheet.derive.evaluate import make_evaluator
     from calcsheet.derive.numbers import asks_for_extremes, verdict_for
@@ -553,7 +591,7 @@ def _switched_numbers(model: Model, nominal, final_forms):
         verdict_for(c, joined, grid, samples, last.time_constant, last.final_value, search=search)
         for c in model.criteria
     )
-    return replace(last, verdicts=verdicts)
+    return replace(last, verdicts=verdicts), joined
 
 
 def final_form(d):

@@ -20,6 +20,7 @@ from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.load import sheet_keys
 from calcsheet.load.overrides import apply_overrides
+from calcsheet.load.sweep_range import Vary, apply_sweep_range
 from calcsheet.model import (
     Criterion,
     Declared,
@@ -40,7 +41,16 @@ from calcsheet.source.singular import Values, check_equation_values
 from calcsheet.source.symbolic import to_sympy
 from calcsheet.source.text_rules import MAX_FILE_BYTES, check_raw, toml_kind
 from calcsheet.source.tolerances import RANGE_KEYS, read_range
-from calcsheet.subjects import CONDITION_SUBJECT, UNKNOWN, VARIABLE, WINDOW, reserved_words, spellings, written_subject
+from calcsheet.subjects import (
+    CONDITION_SUBJECT,
+    UNKNOWN,
+    VARIABLE,
+    WINDOW,
+    Subject,
+    reserved_words,
+    spellings,
+    written_subject,
+)
 
 TABLES = {
     "sheet": {
@@ -75,6 +85,7 @@ _CHECK = re.compile(
     r"(?P<op><=|>=|<|>)(?P<limit>.*)",
     re.DOTALL,
 )
+_SUBJECT = re.compile(r"(?P<subject>[A-Za-z][A-Za-z0-9_]*)\s*(?:\((?P<argument>[^()]*)\))?")
 _SECOND_COMPARISON = re.compile(r"[<>=]|\b(?:and|or)\b")
 # A condition over a window: "T <= 90 degC for t in 0 s .. 10 min" or, to the end of the range, "for t >= 5 s".
 _FOR = re.compile(r"\s+for\s+")
@@ -139,6 +150,46 @@ def load_model(path: str | Path, overrides: tuple[tuple[str, str], ...] = ()) ->
         raise error.located(file=name)
     except RecursionError:  # a defect of ours if it happens: the parsers bound their nesting
         raise InputError("the input nests too deeply to be read", file=name) from None
+
+
+def load_for_sweep(
+    path: str | Path, overrides: tuple[tuple[str, str], ...], vary: tuple[str, str, str], log: bool
+) -> tuple[Model, Vary]:
+    """The Model for a sweep (``--set`` applied, the varied parameter's range covering the sweep), and the
+    sweep's range; refusals as load_model's."""
+    name = str(path)
+    try:
+        raw = _read_toml(Path(path))
+        problems = check_raw(raw)
+        raw, replaced = apply_overrides(raw, overrides)
+        raw, found = apply_sweep_range(raw, vary, log, tuple(o.name for o in replaced))
+        model = _Builder(name, raw, text_problems=problems).build()
+        return (replace(model, overrides=replaced) if replaced else model), found
+    except CalcsheetError as error:
+        raise error.located(file=name)
+    except RecursionError:
+        raise InputError("the input nests too deeply to be read", file=name) from None
+
+
+def read_subject(model: Model, text: str, where: str) -> Criterion:
+    """A quantity named as a check names its subject ("v(60 s)", "max(T)", "reach(50 degC)", "time_constant"),
+    as a Criterion with no limit (the form derive evaluates a quantity in)."""
+    match = _SUBJECT.fullmatch(text.strip())
+    if match is None:
+        raise InputError(
+            f"'{shortened(text)}' must name a quantity as a check does, e.g. \"{model.unknown.name}(60 s)\", "
+            f'"reach(50 V)", "max({model.unknown.name})" or "time_constant"',
+            where,
+            file=model.path,
+        )
+    builder = _Builder(model.path, {})
+    try:
+        found, argument, window = builder.subject(
+            match.group("subject"), match.group("argument"), model.unknown, model.variable, model.initial_at, where
+        )
+    except CalcsheetError as error:
+        raise error.located(file=model.path)
+    return Criterion(text.strip(), text.strip(), found.name, argument, "<=", Point("", None, 0.0), window=window)
 
 
 def _read_toml(path: Path) -> dict:
@@ -740,39 +791,45 @@ class _Builder:
                 '"v(2 min) <= 10 V")',
                 where,
             )
-        subject, argument = match.group("subject"), match.group("argument")
+        found, argument, window = self.subject(
+            match.group("subject"), match.group("argument"), unknown, variable, initial_at, where
+        )
+        limit_like = {UNKNOWN: unknown, VARIABLE: variable}[found.found]
+        return Criterion(
+            text=text,
+            check=check,
+            subject=found.name,
+            argument=argument,
+            operator=match.group("op"),
+            limit=self.point(match.group("limit").strip(), limit_like, where),
+            window=window,
+        )
+
+    def subject(
+        self,
+        subject: str,
+        argument: str | None,
+        unknown: Declared,
+        variable: Declared,
+        initial_at: Point | None,
+        where: str,
+    ) -> tuple[Subject, Point | None, Window | None]:
+        """What a check is about, as written before its comparison: v(60 s), reach(50 V), max(T, 0 s, 60 s)."""
         argument = None if argument is None else argument.strip()
         found = written_subject(subject, unknown.name)
         if found is None:
             raise InputError(f"'{subject}' is not {spellings(unknown.name)}", where)
-        like = {UNKNOWN: unknown, VARIABLE: variable}
         if found.argument == WINDOW:
             if argument is None:
                 raise InputError(
                     f"'{subject}' needs an argument: {subject}({unknown.name}) or {subject}({unknown.name}, 0 s, 60 s)",
                     where,
                 )
-            window = self.windowed(subject, argument, unknown, variable, initial_at, where)
-            return Criterion(
-                text=text,
-                check=check,
-                subject=found.name,
-                argument=None,
-                operator=match.group("op"),
-                limit=self.point(match.group("limit").strip(), like[found.found], where),
-                window=window,
-            )
-        argument_like, limit_like = like.get(found.argument), like[found.found]
+            return found, None, self.windowed(subject, argument, unknown, variable, initial_at, where)
+        argument_like = {UNKNOWN: unknown, VARIABLE: variable}.get(found.argument)
         if (argument_like is None) != (argument is None):
             raise InputError(f"'{subject}' {'takes no' if argument_like is None else 'needs an'} argument", where)
-        return Criterion(
-            text=text,
-            check=check,
-            subject=found.name,
-            argument=None if argument is None else self.point(argument, argument_like, where),
-            operator=match.group("op"),
-            limit=self.point(match.group("limit").strip(), limit_like, where),
-        )
+        return found, None if argument is None else self.point(argument, argument_like, where), None
 
 
 def _unit_as_written(text: str) -> str:

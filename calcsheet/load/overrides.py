@@ -25,7 +25,7 @@ def apply_overrides(raw: dict, assignments: tuple[tuple[str, str], ...]) -> tupl
     if not assignments:
         return raw, ()
     parameters = dict(raw.get("parameters", {})) if isinstance(raw.get("parameters", {}), dict) else {}
-    known = _settable(raw, parameters)
+    known = settable(raw, parameters)
     errors, done = [], []
     for name, value in assignments:
         key = f"--set {key_part(name)}"
@@ -42,7 +42,7 @@ def apply_overrides(raw: dict, assignments: tuple[tuple[str, str], ...]) -> tupl
             )
             continue
         try:
-            _check_like(value, known[name], key)
+            check_like(value, known[name], key)
         except InputError as error:
             errors.append(error)
             continue
@@ -55,7 +55,7 @@ def apply_overrides(raw: dict, assignments: tuple[tuple[str, str], ...]) -> tupl
     return {**raw, "parameters": parameters}, tuple(done)
 
 
-def _settable(raw: dict, parameters: dict) -> dict[str, str]:
+def settable(raw: dict, parameters: dict) -> dict[str, str]:
     """Each parameter a what-if may set, with a value of the unit it needs (None: any unit)."""
     known = {}
     for name, entry in parameters.items():
@@ -72,7 +72,7 @@ def _settable(raw: dict, parameters: dict) -> dict[str, str]:
     return known
 
 
-def _check_like(value: str, like, key: str) -> None:
+def check_like(value: str, like, key: str) -> None:
     try:
         quantity = units.parse_quantity(value)
         reference = units.parse_quantity(like) if like is not None else None
