@@ -20,6 +20,7 @@ from calcsheet.derive.margin import Probe, Toleranced, _Study, probes
 from calcsheet.derive.safe_numeric import NotFinite
 from calcsheet.errors import CalcsheetError
 from calcsheet.model import Criterion, Model
+from calcsheet.subjects import SUBJECTS, VARIABLE
 
 FAMILY_CURVE_POINTS = 241  # points per response curve of the family plot, as the sheet's own curve
 PASS, FAIL = "pass", "fail"
@@ -154,6 +155,7 @@ def _family(study: _Study, model: Model, values, outcomes, count: int) -> tuple[
         end = model.plot_to.si
     else:
         end = max([o.numbers.span[1] for _, o in chosen] + [study.d.curve[-1][0]])
+    end = max([end] + _criteria_abscissae(model))  # every criterion's point or time limit is on the plot
     grid = np.linspace(start, end, FAMILY_CURVE_POINTS)
     curves = []
     for value, outcome in chosen:
@@ -167,6 +169,17 @@ def _family(study: _Study, model: Model, values, outcomes, count: int) -> tuple[
                 points.append((float(x), y))
         curves.append(Curve(value, tuple(points)))
     return tuple(curves)
+
+
+def _criteria_abscissae(model: Model) -> list[float]:
+    """The points on the variable the criteria name: where a value is checked, a time a level must be reached by."""
+    found = []
+    for c in model.criteria:
+        if SUBJECTS[c.subject].argument == VARIABLE:
+            found.append(c.argument.si)
+        elif SUBJECTS[c.subject].found == VARIABLE and c.subject != "time_constant":
+            found.append(c.limit.si)
+    return found
 
 
 def _curve_end(numbers, end: float) -> float:

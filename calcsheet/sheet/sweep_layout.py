@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from calcsheet.formatting import number
-from calcsheet.subjects import SUBJECTS, UNKNOWN
+from calcsheet.subjects import SUBJECTS, UNKNOWN, VARIABLE
 
 TABLE_SIGNIFICANT = 6  # significant figures in the table: enough to see a verdict change between points
 
@@ -47,6 +47,7 @@ class SweepPlot:
     log: bool
     panels: tuple[Panel, ...]
     legend: tuple[tuple[str, str], ...]  # (status, words) for the point markers
+    absent: str = ""  # words for a point whose quantity does not exist, drawn on the panel's top edge
 
 
 @dataclass(frozen=True)
@@ -57,9 +58,11 @@ class FamilyPlot:
     curves: tuple[tuple[str, tuple[tuple[float, float], ...]], ...]  # (label, points), in declared units
     levels: tuple[tuple[float, str], ...]  # horizontal limits on the unknown (value, label)
     limits: tuple[tuple[float, str], ...]  # vertical limits on the variable
+    point_limits: tuple[tuple[float, float, str], ...] = ()  # a limit on the unknown at one point (x, value, label)
 
 
 STATUS_WORDS = (("pass", "criterion holds"), ("fail", "criterion fails"), ("not assessed", "not assessed"))
+ABSENT_WORDS = "does not exist (never reached): on the top edge"
 
 
 def sweep_table(sweep, model, vary) -> SweepTable:
@@ -103,6 +106,7 @@ def sweep_plot(sweep, model, vary) -> SweepPlot:
         log=sweep.log,
         panels=tuple(panels),
         legend=STATUS_WORDS,
+        absent=ABSENT_WORDS,
     )
 
 
@@ -115,10 +119,12 @@ def family_plot(sweep, model, vary) -> FamilyPlot:
         )
         for c in sweep.family
     )
-    levels, limits = [], []
+    levels, limits, point_limits = [], [], []
     for c in model.criteria:
         subject = SUBJECTS[c.subject]
-        if subject.guide == "level":
+        if subject.argument == VARIABLE:  # a limit at one point is drawn there, as on the sheet's plot
+            point_limits.append((x_of(c.argument.si), y_of(c.limit.si), f"limit {c.check}"))
+        elif subject.guide == "level":
             levels.append((y_of(c.limit.si), f"limit {c.check}"))
         else:
             limits.append((x_of(c.limit.si), f"limit {c.check}"))
@@ -129,6 +135,7 @@ def family_plot(sweep, model, vary) -> FamilyPlot:
         curves=curves,
         levels=tuple(levels),
         limits=tuple(limits),
+        point_limits=tuple(point_limits),
     )
 
 

@@ -27,6 +27,8 @@ MARKERS = {
 }
 FAMILY_STYLES = ("-", "--", "-.", ":", (0, (6, 1.5, 1, 1.5, 1, 1.5)))
 LABEL_SIZE = 7.0
+ABSENT = "^"  # a point whose quantity does not exist, on the panel's top edge
+_LABEL_BOX = {"boxstyle": "square,pad=0.1", "facecolor": "white", "edgecolor": "none", "alpha": 0.8}
 
 
 def sweep_image(plot, fmt: str) -> str | bytes:
@@ -70,19 +72,24 @@ def _sweep_figure(plot):
     for i, (ax, panel) in enumerate(zip(axes, plot.panels)):
         _panel(ax, panel, plot.log, gid=f"calcsheet-sweep-{i}")
     axes[-1].set_xlabel(plot.x_label, parse_math=False)
-    shown = {s for p in plot.panels for s in p.statuses if s}
+    shown = {s for p in plot.panels for (_, y), s in zip(p.points, p.statuses) if s and y is not None}
     handles = []
     for status, words in plot.legend:
         if status in shown:
             marker, face, edge = MARKERS[status]
-            (handle,) = axes[0].plot(
-                [], [], linestyle="none", marker=marker, markerfacecolor=face, markeredgecolor=edge
-            )
-            handle.set_label(words)
-            handles.append(handle)
+            handles.append(_handle(axes[0], marker, face, edge, words))
+    if any(y is None for p in plot.panels for _, y in p.points):
+        handles.append(_handle(axes[0], ABSENT, "white", INK, plot.absent))
     if handles:
         axes[0].legend(handles=handles, loc="best", frameon=True, framealpha=0.92, edgecolor=GRID, fancybox=False)
     return fig
+
+
+def _handle(ax, marker, face, edge, words):
+    """A legend entry for a kind of point marker."""
+    (handle,) = ax.plot([], [], linestyle="none", marker=marker, markerfacecolor=face, markeredgecolor=edge)
+    handle.set_label(words)
+    return handle
 
 
 def _panel(ax, panel, log: bool, gid: str) -> None:
@@ -111,6 +118,30 @@ def _panel(ax, panel, log: bool, gid: str) -> None:
                 clip_on=False,
                 gid=f"{gid}-{status.replace(' ', '-') or 'points'}",
             )
+    absent = [(x, s) for (x, y), s in zip(panel.points, panel.statuses) if y is None]
+    if absent:  # the quantity does not exist there (a level never reached): marked on the top edge
+        for status in MARKERS:
+            chosen = [x for x, s in absent if s == status]
+            if chosen:
+                _, face, edge = MARKERS[status]
+                ax.plot(
+                    chosen,
+                    [1.0] * len(chosen),
+                    transform=ax.get_xaxis_transform(),
+                    linestyle="none",
+                    marker=ABSENT,
+                    markersize=5.0,
+                    markerfacecolor="white" if status == "" else face,
+                    markeredgecolor=edge,
+                    zorder=4,
+                    clip_on=False,
+                    gid=f"{gid}-absent-{status.replace(' ', '-') or 'points'}",
+                )
+    values = [y for _, y in panel.points if y is not None] + [limit.value for limit in panel.limits]
+    if values:
+        low, high = min(values), max(values)
+        pad = 0.08 * (high - low) if high > low else 0.1 * (abs(low) or 1.0)
+        ax.set_ylim(low - pad, high + pad)
     for j, limit in enumerate(panel.limits):
         ax.axhline(limit.value, color=GREY, linestyle="--", linewidth=1.1, zorder=2, gid=f"{gid}-limit-{j}")
         ax.annotate(
@@ -149,7 +180,7 @@ def _panel(ax, panel, log: bool, gid: str) -> None:
                 color=EXTREME,
                 parse_math=False,
                 zorder=6,
-                bbox={"boxstyle": "square,pad=0.1", "facecolor": "white", "edgecolor": "none", "alpha": 0.8},
+                bbox=_LABEL_BOX,
             )
 
 
@@ -184,6 +215,32 @@ def _family_figure(plot):
     for j, (value, label) in enumerate(plot.limits):
         ax.axvline(value, color=GREY, linestyle="--", linewidth=1.0, zorder=2, gid=f"calcsheet-family-limit-{j}")
         _guide_label(ax, label, (value, 0.98), ax.get_xaxis_transform(), 90)
+    for j, (x, value, label) in enumerate(plot.point_limits):
+        ax.plot(
+            [x],
+            [value],
+            linestyle="none",
+            marker="_",
+            markersize=16,
+            markeredgewidth=2.4,
+            color=GREY,
+            zorder=5,
+            clip_on=False,
+            gid=f"calcsheet-family-point-limit-{j}",
+        )
+        ax.annotate(
+            label,
+            (x, value),
+            xytext=(0, 4),
+            textcoords="offset points",
+            ha="center",
+            va="bottom",
+            fontsize=LABEL_SIZE,
+            color=GREY,
+            parse_math=False,
+            bbox=_LABEL_BOX,
+            zorder=6,
+        )
     if plot.curves:
         ax.legend(loc="best", frameon=True, framealpha=0.92, edgecolor=GRID, fancybox=False)
     return fig
@@ -202,4 +259,5 @@ def _guide_label(ax, label: str, at, transform, rotation: int) -> None:
         fontsize=LABEL_SIZE,
         color=GREY,
         parse_math=False,
+        bbox=_LABEL_BOX,
     )
