@@ -97,7 +97,9 @@ FAMILY_CURVES = 5  # response curves a --family plot overlays (every point when 
     metavar="NAME=LOW..HIGH",
     help='The parameter swept, e.g. --vary R="1 kohm..100 kohm".',
 )
-@click.option("--steps", default="25", show_default=True, help="Points of the sweep, both ends included (2 to 1000).")
+@click.option(
+    "--steps", default="25", show_default=True, metavar="N", help="Points of the sweep, both ends included (2 to 1000)."
+)
 @click.option("--log", "log", is_flag=True, help="Space the points evenly in the logarithm and draw the axis so.")
 @click.option(
     "--of",
@@ -108,8 +110,10 @@ FAMILY_CURVES = 5  # response curves a --family plot overlays (every point when 
     "default: every criterion's subject).",
 )
 @click.option("--family", is_flag=True, help=f"Also plot the response for {FAMILY_CURVES} values of the parameter.")
-@click.option("--format", "formats", default=None, help="Comma-separated: csv,svg,png (default: csv,svg).")
-@click.option("--out", "out_dir", default=None, help="Folder for the outputs (default: beside INPUT).")
+@click.option(
+    "--format", "formats", default=None, metavar="LIST", help="Comma-separated: csv,svg,png (default: csv,svg)."
+)
+@click.option("--out", "out_dir", default=None, metavar="DIR", help="Folder for the outputs (default: beside INPUT).")
 @_what_if
 def sweep(
     input_file: str,

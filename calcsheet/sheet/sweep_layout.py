@@ -155,7 +155,10 @@ def summary_lines(sweep, model, vary) -> list[str]:
         elif all(s == "fail" for s in column):
             said = "fails at every point"
         else:
-            said = "not assessed at some points; no change between pass and fail"
+            said = "no change between pass and fail"
+        unassessed = sum(1 for s in column if s == "not assessed")
+        if unassessed:
+            said += f"; not assessed at {unassessed} of {len(column)} points (the model does not hold there)"
         lines.append(f'  criterion {k + 1} "{c.check}": {said}')
     refused = sum(1 for r in sweep.refusals if r)
     if refused:

@@ -116,3 +116,14 @@ def test_kind_sweep_on_a_temperature_in_degc(tmp_path):
     assert f"holds for T_inf <= {(60 - 480 * e) / (1 - e):.2f} degC" in result.output
     rows = list(csv.reader(io.StringIO((tmp_path / "flange-cool-down.sweep-T_inf.csv").read_text(encoding="utf-8"))))
     assert rows[0][:3] == ["T_inf [degC]", "reach(50 degC) [min]", "T(45 min) [degC]"]
+
+
+def test_points_where_the_kind_does_not_hold_are_not_assessed(tmp_path):
+    # a lumped body needs Bi = h L_c / k <= 0.1 (the kind cites standard heat-transfer texts): at h = 5000 W/(m^2*K) the
+    # flange (L_c = V/A = 3.6 mm, k = 50 W/(m*K)) has Bi = 0.36, beyond the kind's limit, so no verdict there
+    flange = Path(shutil.copy(FLANGE, tmp_path / FLANGE.name))
+    result = _run([str(flange), "--vary", "h=5 W/(m^2*K)..5000 W/(m^2*K)", "--log", "--steps", "4", "--format", "csv"])
+    assert result.exit_code == 0, result.output
+    rows = list(csv.reader(io.StringIO((tmp_path / "flange-cool-down.sweep-h.csv").read_text(encoding="utf-8"))))
+    assert rows[-1][-2:] == ["not assessed", "not assessed"] and rows[1][-2:] == ["fail", "fail"]
+    assert "not assessed at 1 of 4 points" in result.output
