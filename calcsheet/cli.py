@@ -59,16 +59,60 @@ def build(
     chosen = _guard(lambda: parse_formats(formats, tuple(WRITERS)) if formats else DEFAULT_FORMATS)
     style_dir = _guard(lambda: _style(style))
     overrides = _guard(lambda: _assignments(assignments))
+    jobs, failures, done = [], {}, {}
 
     def one(built) -> int:
+        package = next((j.session.package for j in jobs if j.path == built.path and j.session), None)
         house = style_dir or (Path(built.sheet.style) if built.sheet.style else None)
+        house = house or (package.style if package else None)
         rendered = render(built.sheet, chosen, house)
         stem = built.path.stem + (".whatif" if overrides else "")  # a what-if never overwrites the issued sheet
         written = write_outputs(Path(out_dir), stem, rendered)  # an OSError is the user's: see _run_each
         click.echo(f"{built.path}: {_summary(built.derivation)} -> {', '.join(str(w) for w in written)}")
+        done[built.path] = (built, _pages(rendered.get("pdf")))
         return _issue_guard(built, EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED)
 
-    sys.exit(_run_each(inputs, one, writes=True, overrides=overrides))
+    worst = _run_each(inputs, one, writes=True, overrides=overrides, jobs=jobs, failures=failures)
+    if not overrides:
+        _write_registers(jobs, done, failures, Path(out_dir))
+    sys.exit(worst)
+
+
+def _pages(pdf: bytes | None) -> int | None:
+    if pdf is None:
+        return None
+    import io
+
+    from pypdf import PdfReader
+
+    return len(PdfReader(io.BytesIO(pdf)).pages)
+
+
+def _write_registers(jobs, done: dict, failures: dict, out_dir: Path) -> None:
+    """A package built through its folder gets its register beside the sheets: register.csv, .json and .html."""
+    from calcsheet.package.register import built_row, failed_row, register_csv, register_html, register_json
+    from calcsheet.pipeline import write_file
+
+    sessions = {id(j.session): j.session for j in jobs if j.whole_package}
+    for session in sessions.values():
+        rows = []
+        for entry in session.entries:  # register order
+            upstream = tuple(
+                f"{n} rev {session.by_number[n].revision}" if session.by_number[n].revision else n
+                for n in entry.upstream
+            )
+            if entry.path in done:
+                rows.append(built_row(entry, done[entry.path][0], done[entry.path][1], upstream))
+            else:
+                rows.append(failed_row(entry, failures.get(entry.path, "not built"), upstream))
+        package = session.package
+        for name, text in (
+            ("register.csv", register_csv(rows)),
+            ("register.json", register_json(package, rows)),
+            ("register.html", register_html(package, rows)),
+        ):
+            target = _guard(lambda: _os_guarded(lambda: write_file(out_dir / name, text), str(out_dir / name)))
+            click.echo(f"{package.file}: register -> {target}")
 
 
 @main.command()
@@ -358,6 +402,17 @@ def _refuse(message: str, file: str):
 
 
 @main.command()
+@click.argument("folder")
+@click.argument("target", metavar="basis.NAME|SHEET")
+def impact(folder: str, target: str) -> None:
+    """List the sheets of the package in FOLDER that use TARGET (a design-basis value written basis.NAME, or a
+    sheet number), directly or through other sheets' results: what to rebuild and re-check after a change."""
+    from calcsheet.package.impact import impact_lines
+
+    click.echo("\n".join(_guard(lambda: impact_lines(Path(folder), target))))
+
+
+@main.command()
 @click.argument("name", required=False)
 def kinds(name: str | None) -> None:
     """List the model kinds, or show one kind's parameters, dimensions and equation."""
@@ -394,17 +449,31 @@ def _assignments(assignments: tuple[str, ...]) -> tuple[tuple[str, str], ...]:
     return tuple(parse_assignment(text) for text in assignments)
 
 
-def _run_each(inputs: tuple[str, ...], action, writes: bool = False, overrides: tuple = (), build: bool = True) -> int:
-    """``action`` on each input's built sheet (on its path, with ``build`` False), every error one line."""
-    from calcsheet.pipeline import build_sheet, collect_inputs
+def _run_each(
+    inputs: tuple[str, ...],
+    action,
+    writes: bool = False,
+    overrides: tuple = (),
+    jobs=None,
+    failures=None,
+    build: bool = True,
+) -> int:
+    """Build each input (a package's sheets in their build order) and act on it (on its path, with ``build``
+    False); one sheet's failure is reported on one line and the others go on. The exit code is the worst."""
+    from calcsheet.package.session import jobs_for
 
-    paths = _guard(lambda: collect_inputs(inputs, writes))
+    found = _guard(lambda: jobs_for(inputs, writes))
+    if jobs is not None:
+        jobs.extend(found)
+    failures = {} if failures is None else failures
     worst = EXIT_OK
-    for path in paths:
+    for job in found:
+        path = job.path
         try:
-            worst = max(worst, _os_guarded(lambda: action(build_sheet(path, overrides) if build else path), str(path)))
+            worst = max(worst, _os_guarded(lambda: action(job.build(overrides) if build else path), str(path)))
         except CalcsheetError as error:
             click.echo(str(error.located(file=str(path))), err=True)
+            failures[path] = str(error)
             worst = max(worst, error.exit_code)
         except Exception as error:  # a defect of ours, not the user's: one line, no traceback
             if os.environ.get("CALCSHEET_DEBUG"):
@@ -414,6 +483,7 @@ def _run_each(inputs: tuple[str, ...], action, writes: bool = False, overrides: 
                 "(set CALCSHEET_DEBUG=1 for details and please report it)",
                 err=True,
             )
+            failures[path] = f"internal error: {type(error).__name__}"
             worst = max(worst, EXIT_INTERNAL)
     return worst
 

@@ -19,10 +19,12 @@ class Built:
     sheet: object
 
 
-def build_sheet(path: Path, overrides: tuple[tuple[str, str], ...] = ()) -> Built:
+def build_sheet(path: Path, overrides: tuple[tuple[str, str], ...] = (), upstream: dict | None = None) -> Built:
     """Load, derive and compose one input (imports sympy lazily: only commands that solve pay for it);
     ``overrides`` (--set) replace parameters for a what-if. Where parameters have ranges, the derivation
-    carries its margin (derive/margin.py), which the sheet shows and the verdict includes."""
+    carries its margin (derive/margin.py), which the sheet shows and the verdict includes. A sheet of a package
+    that uses other sheets' results has them built first (``upstream``: records by sheet number, shared by the
+    sheets of one command so that each is built once)."""
     from dataclasses import replace
 
     from calcsheet.derive.margin import find_margin
@@ -32,7 +34,7 @@ def build_sheet(path: Path, overrides: tuple[tuple[str, str], ...] = ()) -> Buil
 
     from calcsheet.review.seal import seal
 
-    model = load_model(path, overrides)
+    model = load_model(path, overrides, upstream_results(path, {} if upstream is None else upstream))
     if model.switches:
         from calcsheet.derive.piecewise import derive_piecewise
         from calcsheet.sheet.piecewise import compose_piecewise
@@ -72,7 +74,7 @@ def sweep_outputs(path: Path, request: SweepRequest, overrides: tuple[tuple[str,
     from calcsheet.writers.sweep_csv import table_csv
 
     check_steps(request.steps)
-    model, vary = load_for_sweep(path, overrides, request.vary, request.log)
+    model, vary = load_for_sweep(path, overrides, request.vary, request.log, upstream_results(path, {}))
     asked = tuple(read_subject(model, text, "--of") for text in request.of)
     if model.switches:
         from calcsheet.derive.piecewise import derive_piecewise
@@ -100,6 +102,52 @@ def sweep_outputs(path: Path, request: SweepRequest, overrides: tuple[tuple[str,
             if family is not None:
                 files[f"{stem}.family.{fmt}"] = family_image(family, fmt)
     return files, layout.summary_lines(sweep, model, vary)
+
+
+def upstream_results(path: Path, records: dict) -> dict:
+    """The results of other sheets that ``path`` uses, each with the citation its parameter table shows:
+    (number, result) -> (value with unit, "sheet EL-014 rev B, time_constant, fingerprint ..."). ``records``
+    caches each upstream sheet's JSON record by number (or the error that stopped it)."""
+    from calcsheet.errors import CalcsheetError
+    from calcsheet.load.package_file import find_package, read_package
+    from calcsheet.load.references import build_order, references_in, sheet_entries
+    from calcsheet.load.results import result_quantity
+    from calcsheet.load.toml_file import read_toml
+
+    try:
+        references = [r for r in references_in(read_toml(path)) if r.sheet]
+    except CalcsheetError:
+        return {}  # the loader reports it, with the file and key
+    file = find_package(path) if references else None
+    if file is None:
+        return {}
+    entries = sheet_entries(read_package(file))
+    build_order(entries)  # a cycle is refused here, named
+    by_number = {e.number: e for e in entries if e.number}
+    results = {}
+    for reference in references:
+        if reference.sheet not in records:
+            try:
+                records[reference.sheet] = build_sheet(by_number[reference.sheet].path, (), records).sheet.record
+            except CalcsheetError as error:
+                records[reference.sheet] = error
+        record = records[reference.sheet]
+        if isinstance(record, CalcsheetError):
+            raise InputError(
+                f"uses sheet {reference.sheet}, which did not build ({record.message}); fix that sheet first",
+                f"{reference.where}.from",
+            )
+        try:
+            value = result_quantity(record, reference.result, reference.sheet)
+        except CalcsheetError as error:
+            raise error.located(key=f"{reference.where}.result")
+        revision = record["sheet"].get("revision") or ""
+        citation = (
+            f"sheet {reference.sheet}{f' rev {revision}' if revision else ''}, {reference.result}, "
+            f"fingerprint {str(record.get('fingerprint', ''))[:12]}"
+        )
+        results[(reference.sheet, reference.result)] = (value, citation)
+    return results
 
 
 def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[str, str | bytes]:
@@ -187,11 +235,11 @@ def collect_inputs(items: tuple[str, ...], writes: bool = False) -> list[Path]:
         else:
             raise InputError("no such file or folder", file=item)
     if writes:
-        _refuse_same_stems(paths)
+        refuse_same_stems(paths)
     return paths
 
 
-def _refuse_same_stems(paths: list[Path]) -> None:
+def refuse_same_stems(paths: list[Path]) -> None:
     """Outputs are named after the input's stem: two inputs of one stem would overwrite each other."""
     seen: dict[str, Path] = {}
     for path in paths:

@@ -21,6 +21,7 @@ ORDER = [
     "writers",
     "review",
     "pipeline",
+    "package",
     "cli",
 ]
 

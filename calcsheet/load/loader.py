@@ -9,7 +9,6 @@ and all their problems are reported together, one per line; a check that needs a
 from __future__ import annotations
 
 import re
-import tomllib
 from dataclasses import replace
 from pathlib import Path
 from typing import Any
@@ -21,6 +20,7 @@ from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.load import sheet_keys
 from calcsheet.load.overrides import apply_overrides
 from calcsheet.load.sweep_range import Vary, apply_sweep_range
+from calcsheet.load.toml_file import read_toml
 from calcsheet.model import (
     Criterion,
     Declared,
@@ -33,13 +33,14 @@ from calcsheet.model import (
     Switch,
     Window,
 )
+from calcsheet.load.package_values import fill_package_values
 from calcsheet.source import expressions as ex
 from calcsheet.source import units
 from calcsheet.source.declared import declared_parts
 from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
 from calcsheet.source.singular import Values, check_equation_values
 from calcsheet.source.symbolic import to_sympy
-from calcsheet.source.text_rules import MAX_FILE_BYTES, check_raw, toml_kind
+from calcsheet.source.text_rules import check_raw, toml_kind
 from calcsheet.source.tolerances import RANGE_KEYS, read_range
 from calcsheet.subjects import (
     CONDITION_SUBJECT,
@@ -98,7 +99,6 @@ _FOR_CLAUSE = re.compile(
 _EXTREME = re.compile(
     r"(?P<kind>max|min)(?:\s+(?:from\s+(?P<open>.+)|(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)))?", re.DOTALL
 )
-_TOML_POSITION = re.compile(r"\(at line (\d+), column (\d+)\)$")
 MAX_STYLE_NAME = 200
 
 
@@ -136,13 +136,16 @@ def _same_place(a: str, b: str) -> bool:
     return long == short or long.startswith(short + ".") or long.startswith(short + "[")
 
 
-def load_model(path: str | Path, overrides: tuple[tuple[str, str], ...] = ()) -> Model:
+def load_model(path: str | Path, overrides: tuple[tuple[str, str], ...] = (), results=None) -> Model:
     """Read and validate ``path``; raise an InputError or ModelRefused naming file and key. ``overrides``:
-    (name, value) pairs from ``--set`` that replace parameters' values before anything is checked."""
+    (name, value) pairs from ``--set`` that replace parameters' values before anything is checked.
+    A sheet of a package takes design-basis values and other sheets' ``results`` (load/package_values.py)
+    before the overrides and every check."""
     name = str(path)
     try:
-        raw = _read_toml(Path(path))
+        raw = read_toml(Path(path))
         problems = check_raw(raw)
+        raw = fill_package_values(Path(path), raw, results or {})
         raw, replaced = apply_overrides(raw, overrides)
         model = _Builder(name, raw, text_problems=problems).build()
         return replace(model, overrides=replaced) if replaced else model
@@ -153,14 +156,15 @@ def load_model(path: str | Path, overrides: tuple[tuple[str, str], ...] = ()) ->
 
 
 def load_for_sweep(
-    path: str | Path, overrides: tuple[tuple[str, str], ...], vary: tuple[str, str, str], log: bool
+    path: str | Path, overrides: tuple[tuple[str, str], ...], vary: tuple[str, str, str], log: bool, results=None
 ) -> tuple[Model, Vary]:
     """The Model for a sweep (``--set`` applied, the varied parameter's range covering the sweep), and the
     sweep's range; refusals as load_model's."""
     name = str(path)
     try:
-        raw = _read_toml(Path(path))
+        raw = read_toml(Path(path))
         problems = check_raw(raw)
+        raw = fill_package_values(Path(path), raw, results or {})
         raw, replaced = apply_overrides(raw, overrides)
         raw, found = apply_sweep_range(raw, vary, log, tuple(o.name for o in replaced))
         model = _Builder(name, raw, text_problems=problems).build()
@@ -190,33 +194,6 @@ def read_subject(model: Model, text: str, where: str) -> Criterion:
     except CalcsheetError as error:
         raise error.located(file=model.path)
     return Criterion(text.strip(), text.strip(), found.name, argument, "<=", Point("", None, 0.0), window=window)
-
-
-def _read_toml(path: Path) -> dict:
-    try:
-        with path.open("rb") as handle:
-            data = handle.read(MAX_FILE_BYTES + 1)
-    except OSError as exc:
-        raise InputError(f"cannot read the file ({exc.strerror or exc})")
-    if len(data) > MAX_FILE_BYTES:
-        raise InputError(f"the file is larger than {MAX_FILE_BYTES:,} bytes; an input is a short text")
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError:
-        raise InputError("the file is not UTF-8 text")
-    try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        message = str(exc)
-        position = _TOML_POSITION.search(message)
-        if position:
-            line, column = int(position.group(1)), int(position.group(2))
-            raise InputError(f"not valid TOML: {message[: position.start()].strip()}", line=line, column=column)
-        raise InputError(f"not valid TOML: {message}")
-    except RecursionError:
-        raise InputError("not valid here: lists or tables are nested too deeply to be read") from None
-    except (ValueError, MemoryError) as exc:  # an integer of thousands of digits, say
-        raise InputError(f"cannot be read: {type(exc).__name__} while reading a value (a number too long?)")
 
 
 class _Builder:

@@ -24,9 +24,10 @@ from click.testing import CliRunner
 
 from calcsheet.cli import main
 from tests.end_to_end.demo_verdicts import expected_exit
+from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+DEMOS = DEMO_SHEETS
 
 STARTUP_SECONDS = 30
 COMMAND_SECONDS = 20

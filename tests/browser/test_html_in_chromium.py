@@ -12,9 +12,10 @@ import struct
 from pathlib import Path
 
 import pytest
+from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+DEMOS = DEMO_SHEETS
 
 A4_WIDTH = 794  # A4 portrait, 210 mm at 96 px per inch
 WIDTHS = [1000, A4_WIDTH]  # a desktop window, and A4

@@ -13,9 +13,10 @@ import pytest
 
 from calcsheet.derive import budget
 from calcsheet.pipeline import build_sheet, render
+from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+DEMOS = DEMO_SHEETS
 
 
 def _records(path: Path) -> dict:

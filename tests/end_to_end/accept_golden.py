@@ -18,9 +18,10 @@ from calcsheet.cli import main
 
 sys.path.insert(0, str(Path(__file__).parent))
 from demo_verdicts import expected_exit  # noqa: E402
+from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+DEMOS = DEMO_SHEETS
 GOLDEN = Path(__file__).parent / "golden"
 RECORDS = ("txt", "json")
 

@@ -16,9 +16,10 @@ from click.testing import CliRunner
 
 from calcsheet.cli import main
 from tests.end_to_end.demo_verdicts import FAILS_AT_WORST_CASE, expected_exit
+from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+DEMOS = DEMO_SHEETS
 GOLDEN = Path(__file__).parent / "golden"
 
 

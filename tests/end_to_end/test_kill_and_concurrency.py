@@ -13,6 +13,7 @@ import subprocess
 import sys
 import time
 from pathlib import Path
+from tests.end_to_end.demo_verdicts import copy_demo
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMOS = [ROOT / "inputs" / "bus-capacitor-bleed-down.toml", ROOT / "inputs" / "flange-cool-down.toml"]
@@ -32,9 +33,7 @@ def _contents(folder: Path) -> dict[str, bytes]:
 def test_a_killed_build_leaves_every_output_whole(tmp_path):
     # The inputs change between the first build and the killed ones, so each output must be either
     # the previous file or the new one, byte for byte, never a part of either.
-    inputs = [tmp_path / demo.name for demo in DEMOS]
-    for demo, copy in zip(DEMOS, inputs):
-        copy.write_text(demo.read_text(encoding="utf-8"), encoding="utf-8")
+    inputs = [copy_demo(demo, tmp_path) for demo in DEMOS]
     out, fresh = tmp_path / "out", tmp_path / "fresh"
     subprocess.run(_command(out, inputs), check=False, capture_output=True, timeout=600)
     old = _contents(out)

@@ -15,6 +15,7 @@ import pytest
 from calcsheet.review.diff import compare
 
 from .helpers import COUPON, coupon, run, sign
+from tests.end_to_end.demo_verdicts import copy_demo
 
 BUS = Path(__file__).resolve().parents[2] / "inputs" / "bus-capacitor-bleed-down.toml"
 V0, C = 680.0, 2200e-6  # the bus demo's initial voltage [V] and capacitance [F]
@@ -251,8 +252,7 @@ def test_a_switched_model_reports_per_interval(tmp_path):
     text = VALVE.read_text(encoding="utf-8")
     was = 'R = { value = "80 ohm", min = "78 ohm", max = "86.3 ohm"'
     assert was in text
-    old, new = tmp_path / "old.toml", tmp_path / "new.toml"
-    old.write_text(text, encoding="utf-8")
+    old, new = copy_demo(VALVE, tmp_path, "old.toml"), tmp_path / "new.toml"
     new.write_text(text.replace(was, 'R = { value = "90 ohm", min = "78 ohm", max = "96.3 ohm"'), encoding="utf-8")
     code, out, err = run("diff", old, new, "--format", "json")
     assert code == 0, err

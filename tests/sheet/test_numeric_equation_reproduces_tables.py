@@ -14,9 +14,10 @@ from calcsheet.pipeline import build_sheet
 from calcsheet.sheet.document import Equation, Table
 from calcsheet.source.expressions import parse_expression
 from calcsheet.source.symbolic import to_sympy
+from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+DEMOS = DEMO_SHEETS
 
 
 def _inputs(tmp_path) -> list[Path]:

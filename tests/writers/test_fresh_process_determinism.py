@@ -14,7 +14,7 @@ import subprocess
 import sys
 from pathlib import Path
 
-from tests.end_to_end.demo_verdicts import expected_exit
+from tests.end_to_end.demo_verdicts import DEMOS, expected_exit
 
 ROOT = Path(__file__).resolve().parents[2]
 INPUTS = ROOT / "inputs"
@@ -57,10 +57,10 @@ def test_every_demo_is_byte_identical_in_two_fresh_processes(tmp_path):
         XDG_CACHE_HOME=str(elsewhere / "cache"),
     )
     for run in (first, second):  # two demos honestly fail at worst case: exit 1 (tests/end_to_end/demo_verdicts.py)
-        assert run.returncode == expected_exit(p.stem for p in INPUTS.glob("*.toml")), run.stderr
+        assert run.returncode == expected_exit(p.stem for p in DEMOS), run.stderr
         assert "Traceback" not in run.stderr, run.stderr
 
-    demos = sorted(p.stem for p in INPUTS.glob("*.toml"))
+    demos = sorted(p.stem for p in DEMOS)
     expected = sorted(f"{stem}.{fmt}" for stem in demos for fmt in FORMATS)
     assert sorted(p.name for p in (tmp_path / "first").iterdir()) == expected
     assert sorted(p.name for p in (tmp_path / "second").iterdir()) == expected

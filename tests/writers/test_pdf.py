@@ -13,9 +13,10 @@ from pypdf import PdfReader
 from calcsheet.pipeline import build_sheet, render
 from calcsheet.sheet.document import Equation
 from calcsheet.writers import pdf, svgmath
+from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted((ROOT / "inputs").glob("*.toml"))
+DEMOS = DEMO_SHEETS
 # A4 is 210 mm wide; print.css sets 16 mm side margins, a 6 mm indent, the 140 mm equation column
 # and a 24 mm label column beside it.
 CONTENT_MM = 210 - 2 * 16
