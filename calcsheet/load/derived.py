@@ -168,19 +168,19 @@ class _Reader:
         reg = units.registry()
         base = units.unit_label(units.si_unit(unit)) if units.is_offset(unit) else unit_text
         product = (reg.Quantity(1, units.parse_unit(base or "")) * reg.Quantity(1, self.variable.unit)).units
+        parts = [f"({p})" if "/" in p else p for p in (base, self.variable.unit_text) if p]
+        text = "*".join(parts)
         if written:
             chosen = _located(lambda: units.parse_unit(written), where)
             if not units.same_dimension(chosen, product):
                 raise InputError(
                     f"'{shortened(written)}' has dimension {units.dimension_text(chosen)}, but an integral of {name} "
-                    f"over {self.variable.name} has dimension {units.dimension_text(product)}",
+                    f"over {self.variable.name} has dimension {units.dimension_text(product)}, as {text} has",
                     where,
                 )
             text = written
         else:
             chosen = product
-            parts = [f"({p})" if "/" in p else p for p in (base, self.variable.unit_text) if p]
-            text = "*".join(parts)
         scale, offset = units.scale_and_offset(chosen)
         return Declared(f"integral of {name}", chosen, text, sp.Symbol(f"int_{name}", real=True), scale, offset)
 
