@@ -237,3 +237,17 @@ def test_values_are_finite_numbers_on_a_grid(tmp_path):
     curve = DerivedCurve(model.derived[0], model, d.solution, d.classification, d.response, piece, (0.0, 60.0), 10.34)
     grid = np.linspace(0.0, 60.0, 7)
     assert curve.on_grid(grid) == pytest.approx([curve(float(t)) for t in grid], rel=1e-12)
+
+
+def test_every_offer_of_every_kind_reads_with_its_unit(tmp_path):
+    """Each kind's offers pass the same dimension check as a typed [[derived]] (a property of our own code)."""
+    from calcsheet.kinds import KIND_MODULES, kind_named
+    from calcsheet.kinds.catalogue import starter_text
+
+    for name in KIND_MODULES:
+        kind = kind_named(name)
+        tables = "".join(f'\n[[derived]]\nname = "{o.name}"\n' for o in kind.offers)
+        path = tmp_path / f"{name}.toml"
+        path.write_text(starter_text(name) + tables, encoding="utf-8")
+        model = load_model(path)
+        assert [q.name for q in model.derived] == [o.name for o in kind.offers]
