@@ -50,10 +50,10 @@ def derived_section(d, n) -> Section:
         rights = [definition]
         if dv.closed is not None:
             rights.append(numeric_expression(dv.closed, {}))
-        label = (q.text or q.name) + (f", in {q.declared.unit_text}" if q.declared.unit_text else "")
-        if q.offered_by:
-            label += " (offered by the kind)"
-        blocks.append(n.eq(latex(sp.Symbol(q.name)), q.name, *rights, label=label))
+        unit = f", in {q.declared.unit_text}" if q.declared.unit_text else ", a pure number"
+        offered = " (offered by the model kind)" if q.offered_by else ""
+        blocks.append(Paragraph(f"{q.name}: {q.text or 'as defined'}{unit}{offered}."))
+        blocks.append(n.eq(latex(sp.Symbol(q.name)), q.name, *rights, label="definition"))
     if m.evaluate_at and num.derived:
         header = (x,) + tuple(dv.quantity.name for dv in num.derived)
         rows = tuple(
