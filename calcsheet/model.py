@@ -165,7 +165,36 @@ class Criterion:
     argument: Point | None
     operator: str
     limit: Point
-    window: Window | None = None  # for max and min
+    window: Window | None = None  # for max, min and integral
+    of: str = ""  # the [[derived]] quantity the subject is about; "" for the unknown itself
+
+
+@dataclass(frozen=True)
+class DerivedQuantity:
+    """A quantity computed from the response, ``[[derived]]`` or offered by a kind: P_R = v^2/R.
+
+    ``expr`` is in the unknown's symbol, the derivative symbol (the Model's ``derivative``), the variable and
+    the parameters' symbols; derive substitutes the response. ``declared`` holds its unit as for the unknown,
+    ``integral`` the unit its integrals over the variable are shown in.
+    """
+
+    name: str
+    text: str  # what it is, in words
+    expression_text: str  # as written
+    expression: ex.Node
+    expr: sp.Expr
+    declared: Declared
+    integral: Declared
+    offered_by: str = ""  # the kind that offers it, when the input took it by name
+
+
+@dataclass(frozen=True)
+class IntegralRequest:
+    """``integral(P_R, 0 s, 60 s)``: a derived quantity integrated over a window of the variable."""
+
+    of: str
+    window: Window
+    text: str  # as written
 
 
 @dataclass(frozen=True)
@@ -217,6 +246,8 @@ class Model:
     reach: tuple[Point, ...] = ()
     extremes: tuple[ExtremeRequest, ...] = ()
     criteria: tuple[Criterion, ...] = ()
+    derived: tuple[DerivedQuantity, ...] = ()  # [[derived]] and the kind's offers the input uses
+    integrals: tuple[IntegralRequest, ...] = ()  # [evaluate] integrals
     plot_to: Point | None = None  # end of the plotted range, when the input sets it
     kind: KindUse | None = None  # when the input named a model kind
     switches: tuple[Switch, ...] = ()  # later intervals, in order
@@ -227,6 +258,15 @@ class Model:
     def residual(self) -> sp.Expr:
         """lhs - rhs: the equation as F(x, y, y') = 0."""
         return self.lhs - self.rhs
+
+    def quantity(self, name: str) -> Declared:
+        """The unknown, or the derived quantity of that name: what a criterion's value is measured like."""
+        if not name or name == self.unknown.name:
+            return self.unknown
+        return next(d.declared for d in self.derived if d.name == name)
+
+    def derived_named(self, name: str) -> DerivedQuantity:
+        return next(d for d in self.derived if d.name == name)
 
     def numeric_values(self) -> dict[sp.Symbol, float]:
         """Parameter symbols mapped to their SI values."""

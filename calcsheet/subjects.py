@@ -11,7 +11,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 UNKNOWN, VARIABLE = "unknown", "variable"  # what a number is measured like: the unknown or the variable
-# An argument that is the unknown's name, optionally followed by a window on the variable: max(T) or max(T, 0 s, 60 s)
+# What an integral over the variable is measured like: its quantity times the variable (a power over time: energy)
+INTEGRAL = "integral"
+# An argument that is the unknown's name (or a derived quantity's), optionally followed by a window on the variable:
+# max(T) or max(P_R, 0 s, 60 s). "UNKNOWN" below then means that quantity, not only the unknown.
 WINDOW = "window"
 
 
@@ -21,9 +24,11 @@ class Subject:
     written: str  # how a check writes it; "" for the unknown's own name, as in v(60 s)
     argument: str | None  # what its argument is measured like (UNKNOWN, VARIABLE or WINDOW), None: it takes none
     found: str  # what the found quantity, and so the limit, is measured like
-    guide: str  # the plot's guide for the limit: "level" (horizontal, on the unknown) or "limit_x" (vertical)
+    guide: str  # the plot's guide: "level" (horizontal, on the unknown), "limit_x" (vertical) or "" (none)
     absent_is_never: bool = False  # a quantity that does not exist counts as never happening (a level not reached)
     depends_on_whole_response: bool = False  # needs the response as the variable grows without bound
+    needs_window: bool = False  # a WINDOW argument whose two ends must be written: integral(P_R, 0 s, 60 s)
+    derived_only: bool = False  # about a [[derived]] quantity only, not the unknown
 
 
 SUBJECTS: dict[str, Subject] = {
@@ -35,6 +40,7 @@ SUBJECTS: dict[str, Subject] = {
         Subject("final_value", "final_value", None, UNKNOWN, "level", depends_on_whole_response=True),
         Subject("max", "max", WINDOW, UNKNOWN, "level"),
         Subject("min", "min", WINDOW, UNKNOWN, "level"),
+        Subject("integral", "integral", WINDOW, INTEGRAL, "", needs_window=True, derived_only=True),
     )
 }
 # A condition over a window, "T <= 90 degC for t in 0 s .. 10 min", is the extreme that decides it: the largest
@@ -42,9 +48,10 @@ SUBJECTS: dict[str, Subject] = {
 CONDITION_SUBJECT = {"<=": "max", "<": "max", ">=": "min", ">": "min"}
 
 
-def written_subject(written: str, unknown_name: str) -> Subject | None:
-    """The subject a check's leading word names: the unknown's own name is its value at a point."""
-    if written == unknown_name:
+def written_subject(written: str, unknown_name: str, derived: frozenset[str] = frozenset()) -> Subject | None:
+    """The subject a check's leading word names: the unknown's own name, or a derived quantity's, is its value
+    at a point."""
+    if written == unknown_name or written in derived:
         return SUBJECTS["value"]
     return next((s for s in SUBJECTS.values() if s.written and s.written == written), None)
 

@@ -65,10 +65,11 @@ class Extreme:
     solved: bool = False  # the stationary points are sympy's solution on every stretch (else bracketed)
     tail_from: float | None = None  # open window: the response is monotone from here on
     text: str = ""  # the request as written
+    of: str = ""  # the derived quantity it is an extreme of; "" for the unknown
 
     @property
     def key(self) -> tuple:
-        return self.kind, self.start, self.end, self.open_ended
+        return self.of, self.kind, self.start, self.end, self.open_ended
 
 
 class Piece:

@@ -285,9 +285,9 @@ class _Study:
     def symbolic(self, q: int, t: Toleranced):
         """(dy/dp, method, expression) from the closed form, or None where there is none to differentiate."""
         d = self.d
-        if self.switched or not d.solution.closed_form or t.interval:
-            return None
         probe = self.probes[q]
+        if self.switched or not d.solution.closed_form or t.interval or probe.criterion.of:
+            return None  # a derived quantity's sensitivity is by central differences
         found, done = within(SOLVE_SECONDS, lambda: self._symbolic(probe, q, t.parameter.symbol), None)
         return found if done else None
 
@@ -452,6 +452,7 @@ class _Study:
             or t.interval
             or not d.solution.closed_form
             or criterion.subject not in ("value", "reach", "time_constant")
+            or criterion.of
         ):
             return None
         found, done = within(SOLVE_SECONDS, lambda: self._solve_for(criterion, t), None)

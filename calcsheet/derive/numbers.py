@@ -13,6 +13,7 @@ from scipy import optimize
 from calcsheet.derive.budget import LIMIT_SECONDS, within
 from calcsheet.derive.classify import Classification
 from calcsheet.derive.evaluate import ResponseEvaluator
+from calcsheet.derive.derived import DerivedCurve, DerivedValues, WindowIntegral, derived_values
 from calcsheet.derive.extremes import Extreme, ExtremeSearch, Piece
 from calcsheet.derive.integrating_factor import Solution
 from calcsheet.derive.readable import compact
@@ -65,6 +66,7 @@ class Verdict:
     assessed: bool = True  # False: the model is not valid for the case, or the criterion needs points past its limit
     code: str = ""  # why not assessed: "model_not_valid" or "past_validity_limit"
     extreme: Extreme | None = None  # for max and min: the extreme that decides it, and how it was found
+    integral: WindowIntegral | None = None  # for integral: how it was found
 
     @property
     def status(self) -> str:
@@ -101,6 +103,8 @@ class Numbers:
     valid_until: tuple[float, str] | None = None  # (SI, what happens) where a kind's model stops holding
     not_valid: tuple[str, ...] = ()  # the kind's findings that the model does not hold for this case
     extremes: tuple[Extreme, ...] = ()  # those asked for in [evaluate], then those criteria compare, each once
+    derived: tuple[DerivedValues, ...] = ()  # each derived quantity's closed form and values
+    integrals: tuple[WindowIntegral, ...] = ()  # those asked for in [evaluate], then those criteria compare, each once
 
     @property
     def all_passed(self) -> bool:
@@ -165,14 +169,15 @@ def compute_numbers(
     stop = (OVERFLOWS, domain_end) if overflow else _stop(limit, domain_end, searched_to)
     reaches = tuple(reach_for(level, y, searched, samples, final, stop=stop) for level in model.reach)
     analysed = (x0, float(searched[-1]) if len(searched) else x0 + scale)
-    search = (
-        ExtremeSearch([Piece(model, solution, cls, y, x0, None, scale=scale)], y, analysed, final)
-        if asks_for_extremes(model)
-        else None
-    )
+    piece = Piece(model, solution, cls, y, x0, None, scale=scale) if asks_for_extremes(model) or model.derived else None
+    search = ExtremeSearch([piece], y, analysed, final) if asks_for_extremes(model) else None
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
+    curves = {q.name: DerivedCurve(q, model, solution, cls, y, piece, analysed, scale) for q in model.derived}
+    integrals = tuple(curves[i.of].integral(i.window, i.text) for i in model.integrals)
     verdicts = tuple(
-        verdict_for(c, y, searched, samples, tau, final, valid_until=limit, not_valid=not_valid, search=search)
+        verdict_for(
+            c, y, searched, samples, tau, final, valid_until=limit, not_valid=not_valid, search=search, derived=curves
+        )
         for c in model.criteria
     )
     return Numbers(
@@ -191,13 +196,24 @@ def compute_numbers(
         valid_until=limit,
         not_valid=not_valid,
         extremes=extremes_shown(asked, verdicts),
+        derived=derived_values(model, curves, lambda pt: limit is None or pt.si <= limit[0]),
+        integrals=integrals_shown(integrals, verdicts),
     )
 
 
 def asks_for_extremes(model: Model) -> bool:
-    """Does the input ask for an extreme ([evaluate] extremes, or a criterion over a window)? The search is
-    built only then: it differentiates and compiles the solution, which a sheet without one need not pay for."""
-    return bool(model.extremes) or any(SUBJECTS[c.subject].argument == WINDOW for c in model.criteria)
+    """Does the input ask for an extreme of the unknown ([evaluate] extremes, or a criterion over a window)? The
+    search is built only then: it differentiates and compiles the solution, which a sheet without one need not
+    pay for."""
+    return bool(model.extremes) or any(SUBJECTS[c.subject].argument == WINDOW and not c.of for c in model.criteria)
+
+
+def integrals_shown(asked, verdicts) -> tuple[WindowIntegral, ...]:
+    """The integrals asked for, then those the criteria compare, each quantity and window once."""
+    shown = {}
+    for integral in list(asked) + [v.integral for v in verdicts if v.integral is not None]:
+        shown.setdefault(integral.key, integral)
+    return tuple(shown.values())
 
 
 def extremes_shown(asked, verdicts) -> tuple[Extreme, ...]:
@@ -489,10 +505,11 @@ def verdict_for(
     valid_until: tuple[float, str] | None = None,
     not_valid: tuple[str, ...] = (),
     search: ExtremeSearch | None = None,
+    derived: dict | None = None,
 ) -> Verdict:
     """PASS or FAIL, or not assessed: when the model is not valid for the case, or the criterion needs
     the response past the kind's validity limit (a tank that has overflowed)."""
-    verdict = _verdict(criterion, Response(y, grid, samples, tau, final, search))
+    verdict = _verdict(criterion, Response(y, grid, samples, tau, final, search, derived or {}))
     if not_valid:
         return replace(verdict, passed=False, assessed=False, code=MODEL_NOT_VALID)
     if valid_until is not None and _needs_past(criterion, verdict, valid_until[0]):
@@ -510,17 +527,28 @@ class Response:
     tau: float | None
     final: float | None
     search: ExtremeSearch | None = None  # extremes over windows
+    derived: dict | None = None  # name -> DerivedCurve
+
+    def curve(self, of: str):
+        """The unknown's y(x), or a derived quantity's g(x)."""
+        return self.derived[of] if of else self.y
+
+    def extreme(self, kind: str, criterion: Criterion) -> Extreme:
+        if criterion.of:
+            return self.derived[criterion.of].extreme(kind, criterion.window, criterion.check)
+        return self.search.find(kind, criterion.window, criterion.check)
 
 
 # One function per subject of calcsheet/subjects.py: the quantity a criterion compares, in SI, or None; or an
 # Extreme, whose value is the quantity and which the sheet shows as what decided the criterion.
 QUANTITIES = {
-    "value": lambda c, r: r.y(c.argument.si),
+    "value": lambda c, r: r.curve(c.of)(c.argument.si),
     "reach": lambda c, r: first_crossing(c.argument.si, r.y, r.grid, r.samples),
     "time_constant": lambda c, r: r.tau,
     "final_value": lambda c, r: r.final,
-    "max": lambda c, r: r.search.find("max", c.window, c.check),
-    "min": lambda c, r: r.search.find("min", c.window, c.check),
+    "max": lambda c, r: r.extreme("max", c),
+    "min": lambda c, r: r.extreme("min", c),
+    "integral": lambda c, r: r.derived[c.of].integral(c.window, c.check),
 }
 
 
@@ -528,14 +556,19 @@ def _verdict(criterion: Criterion, response: Response) -> Verdict:
     subject = SUBJECTS[criterion.subject]
     found = QUANTITIES[subject.name](criterion, response)
     extreme = found if isinstance(found, Extreme) else None
-    actual = found.value if extreme is not None else found
+    integral = found if isinstance(found, WindowIntegral) else None
+    actual = found.value if extreme is not None or integral is not None else found
     if actual is not None and not math.isfinite(actual):
         actual = None
     if actual is None and not subject.absent_is_never:  # the quantity does not exist for this response
-        return Verdict(criterion, None, False, extreme=extreme)
+        return Verdict(criterion, None, False, extreme=extreme, integral=integral)
     compared = math.inf if actual is None else actual  # a level never reached is reached at infinity
     return Verdict(
-        criterion, actual, bool(OPERATORS[criterion.operator](compared, criterion.limit.si)), extreme=extreme
+        criterion,
+        actual,
+        bool(OPERATORS[criterion.operator](compared, criterion.limit.si)),
+        extreme=extreme,
+        integral=integral,
     )
 
 

@@ -86,6 +86,17 @@ class Slot:
 
 
 @dataclass(frozen=True)
+class Offer:
+    """A quantity a kind derives from its response, taken by name (``[[derived]] name = "P_R"``, or named in a
+    criterion): its expression in the kind's slot names, the unknown and its derivative, and its unit."""
+
+    name: str
+    expression: str
+    unit: str
+    text: str
+
+
+@dataclass(frozen=True)
 class Starter:
     """A kind's own parts of a starter input; `kinds/catalogue.py` writes the [sheet] header from them and
     adds [model], [parameters] with the slots' examples and [initial]."""
@@ -126,6 +137,8 @@ class Kind:
     carry: Callable[[dict[str, float], float], dict[str, float]] = field(default=lambda values, at: {})
     # the law steps written with the shifted clock, ending in `shifted_equation`
     shifted_law_steps: tuple[tuple[str, str], ...] = ()
+    # the quantities the trade usually derives from this response (a resistor's power, a stored energy)
+    offers: tuple[Offer, ...] = ()
 
     def slot(self, name: str) -> Slot:
         return next(s for s in self.slots if s.name == name)

@@ -32,6 +32,9 @@ def describe(name: str) -> list[str]:
         extra = f"; default {slot.default}" if slot.default is not None else ""
         source = "; may be a [forcing] form" if slot.name == kind.source else ""
         lines.append(f"  {slot.name} [{unit}] - {slot.meaning} (e.g. {slot.example}{extra}{source})")
+    if kind.offers:
+        lines += ["", 'Derived quantities (name one in a criterion, or in [[derived]] name = "..."):']
+        lines += [f"  {o.name} = {o.expression} [{o.unit}] - {o.text}" for o in kind.offers]
     lines += ["", "Assumptions:"] + [f"  - {a}" for a in kind.assumptions]
     return lines
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import math
 
-from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid, warning
+from calcsheet.kinds.base import Kind, Note, Offer, Slot, Starter, info, invalid, warning
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
@@ -65,6 +65,7 @@ KIND = Kind(
         "reads the medium's temperature has K = 1, and a calibration error is "
         "better stated as an offset.",
     },
+    offers=(Offer("rate", "dT/dt", "K/s", "rate of change of the reading"),),
     starter=Starter(
         title="Probe plunged into a hot rinse bath (example, edit)",
         number="IN-101",

@@ -2,7 +2,7 @@
 
 import math
 
-from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid, warning
+from calcsheet.kinds.base import Kind, Note, Offer, Slot, Starter, info, invalid, warning
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
@@ -57,6 +57,7 @@ KIND = Kind(
         "linear_reservoir.settles": "With the inflow held at Q_in = {Q_in} m^3/s the storage settles at "
         "S = k*Q_in = {storage} m^3, where the outflow equals the inflow.",
     },
+    offers=(Offer("Q_out", "S/k", "m^3/s", "outflow of the reservoir"),),
     starter=Starter(
         title="Storage in the detention basin during a steady storm inflow",
         number="HY-052",

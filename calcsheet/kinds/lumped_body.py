@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid
+from calcsheet.kinds.base import Kind, Note, Offer, Slot, Starter, info, invalid
 
 # Lumped-capacitance analysis is accepted while the Biot number Bi = h*Lc/k, with Lc = V/A, stays at or
 # below 0.1 (standard heat-transfer texts, e.g. Incropera et al., Fundamentals of Heat and Mass Transfer,
@@ -71,6 +71,7 @@ KIND = Kind(
         "uniform, so the lumped model is not valid; a transient conduction analysis "
         "is needed.",
     },
+    offers=(Offer("Q_conv", "h*A*(T - T_inf)", "W", "heat flow from the body to the ambient by convection"),),
     starter=Starter(
         title="Warm-up of a steel mounting block carrying a 10 W heater (example, edit)",
         number="TH-101",

@@ -1,6 +1,6 @@
 """Mass with linear drag: the speed of a body pushed along a line against a resistance proportional to speed."""
 
-from calcsheet.kinds.base import Kind, Note, Slot, Starter, positive
+from calcsheet.kinds.base import Kind, Note, Offer, Slot, Starter, positive
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
@@ -48,6 +48,11 @@ KIND = Kind(
         "speed grows instead of settling).",
         "mass_with_drag.m_negative": "m is negative; a mass is positive, so check the sign.",
     },
+    offers=(
+        Offer("F_d", "c*u", "N", "drag force"),
+        Offer("P_d", "c*u^2", "W", "power dissipated by the drag"),
+        Offer("E_k", "m*u^2/2", "J", "kinetic energy of the moving mass"),
+    ),
     starter=Starter(
         title="Test-rig carriage pushed against an oil damper",
         number="ME-401",

@@ -1,6 +1,6 @@
 """Well-mixed tank: the mass of a dissolved substance while the tank fills, drains or runs full."""
 
-from calcsheet.kinds.base import Kind, Slot, Starter
+from calcsheet.kinds.base import Kind, Offer, Slot, Starter
 from calcsheet.kinds import tank_volume as tank
 from calcsheet.kinds.tank_volume import FROM_START, FROM_ZERO, Clock
 
@@ -44,6 +44,12 @@ KIND = Kind(
     source="c_in",
     checks=tank.volume_notes,
     findings=tank.findings("m"),
+    offers=(
+        Offer(
+            "m_dot_out", "q_in*c_in - dm/dt", "kg/s", "mass of the substance leaving with the outflow, per unit time"
+        ),
+        Offer("c_out", "(q_in*c_in - dm/dt)/q_out", "kg/m^3", "concentration of the outflow (the tank's own)"),
+    ),
     starter=Starter(
         title="Salt mass in the brine make-up tank during topping up",
         number="PR-214",

@@ -1,6 +1,6 @@
 """Well-mixed tank: the concentration of a dissolved substance while the tank fills, drains or runs full."""
 
-from calcsheet.kinds.base import Kind, Slot, Starter
+from calcsheet.kinds.base import Kind, Offer, Slot, Starter
 from calcsheet.kinds import tank_volume as tank
 from calcsheet.kinds.tank_volume import FROM_START, FROM_ZERO, Clock
 
@@ -49,6 +49,7 @@ KIND = Kind(
     source="c_in",
     checks=tank.volume_notes,
     findings=tank.findings("c"),
+    offers=(Offer("m_dot_out", "q_out*c", "kg/s", "mass of the substance leaving with the outflow, per unit time"),),
     starter=Starter(
         title="Nutrient concentration in the irrigation mixing tank while it fills",
         number="AG-027",

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from calcsheet.kinds.base import Kind, Note, Slot, Starter, info, invalid
+from calcsheet.kinds.base import Kind, Note, Offer, Slot, Starter, info, invalid
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
@@ -64,6 +64,7 @@ KIND = Kind(
         "pipe_temperature.ntu": "Heat loss per unit length and kelvin of difference U*P = {per_length} W/(m*K); over "
         "a length L the number of transfer units is NTU = U*P*L/(m_dot*c_p) = L/({length} m).",
     },
+    offers=(Offer("q_loss", "U*P*(T - T_s)", "W/m", "heat lost through the wall per unit length of pipe"),),
     starter=Starter(
         title="Hot-water line across an unheated hall (example, edit)",
         number="TH-201",

@@ -1,6 +1,6 @@
 """Rotating inertia with viscous friction: the shaft speed when a torque drives it."""
 
-from calcsheet.kinds.base import Kind, Note, Slot, Starter, positive
+from calcsheet.kinds.base import Kind, Note, Offer, Slot, Starter, positive
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
@@ -48,6 +48,10 @@ KIND = Kind(
         "(with b < 0 the speed grows instead of settling).",
         "rotating_inertia.J_negative": "J is negative; a moment of inertia is positive, so check the sign.",
     },
+    offers=(
+        Offer("T_f", "b*omega", "N*m", "friction torque"),
+        Offer("E_k", "J*omega^2/2", "J", "kinetic energy of the rotating parts"),
+    ),
     starter=Starter(
         title="Run-up of a test-rig flywheel to working speed",
         number="ME-301",

@@ -1,6 +1,6 @@
 """Series RC circuit: the capacitor voltage when a source drives it through a resistor."""
 
-from calcsheet.kinds.base import Kind, Slot, Starter
+from calcsheet.kinds.base import Kind, Offer, Slot, Starter
 
 KIND = Kind(
     name="series_rc",
@@ -25,6 +25,11 @@ KIND = Kind(
         "The source's internal resistance is included in R.",
     ),
     source="V_s",
+    offers=(
+        Offer("i", "C*dv/dt", "A", "current into the capacitor (the loop current)"),
+        Offer("P_R", "R*(C*dv/dt)^2", "W", "power dissipated in the resistor"),
+        Offer("E_C", "C*v^2/2", "J", "energy stored in the capacitor"),
+    ),
     starter=Starter(
         title="Charging of the hold-up capacitor of a door controller",
         number="EL-101",

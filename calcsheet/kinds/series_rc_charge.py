@@ -1,6 +1,6 @@
 """Series RC circuit written for the capacitor's charge rather than its voltage."""
 
-from calcsheet.kinds.base import Kind, Slot, Starter
+from calcsheet.kinds.base import Kind, Offer, Slot, Starter
 from calcsheet.kinds.series_rc import KIND as VOLTAGE_FORM
 
 KIND = Kind(
@@ -19,6 +19,12 @@ KIND = Kind(
     ),
     assumptions=VOLTAGE_FORM.assumptions,
     source="V_s",
+    offers=(
+        Offer("i", "dq/dt", "A", "current into the capacitor (the loop current)"),
+        Offer("v_C", "q/C", "V", "capacitor voltage"),
+        Offer("P_R", "R*(dq/dt)^2", "W", "power dissipated in the resistor"),
+        Offer("E_C", "q^2/(2*C)", "J", "energy stored in the capacitor"),
+    ),
     starter=Starter(
         title="Charge delivered to the hold-up capacitor of a door controller",
         number="EL-102",

@@ -1,6 +1,6 @@
 """Series RL circuit: the inductor current when a source drives it through a resistance."""
 
-from calcsheet.kinds.base import Kind, Note, Slot, Starter, positive
+from calcsheet.kinds.base import Kind, Note, Offer, Slot, Starter, positive
 
 
 def _checks(values: dict[str, float]) -> tuple[Note, ...]:
@@ -52,6 +52,11 @@ KIND = Kind(
         "current grows instead of settling).",
         "series_rl.L_negative": "L is negative; the inductance of a coil is positive, so check the sign.",
     },
+    offers=(
+        Offer("v_L", "L*di/dt", "V", "voltage across the coil's inductance"),
+        Offer("P_R", "R*i^2", "W", "power dissipated in the resistance"),
+        Offer("E_L", "L*i^2/2", "J", "energy stored in the coil's magnetic field"),
+    ),
     starter=Starter(
         title="Current rise in the coil of a 24 V solenoid valve",
         number="EL-201",

@@ -18,13 +18,16 @@ import sympy as sp
 from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part, shortened
 from calcsheet.kinds.expand import expand_kind, kind_checks
 from calcsheet.load import sheet_keys
+from calcsheet.load.derived import KEYS as DERIVED_KEYS, read_derived
 from calcsheet.load.overrides import apply_overrides
 from calcsheet.load.sweep_range import Vary, apply_sweep_range
 from calcsheet.load.toml_file import read_toml
 from calcsheet.model import (
     Criterion,
     Declared,
+    DerivedQuantity,
     ExtremeRequest,
+    IntegralRequest,
     IntervalLaw,
     Model,
     Parameter,
@@ -44,6 +47,8 @@ from calcsheet.source.text_rules import check_raw, toml_kind
 from calcsheet.source.tolerances import RANGE_KEYS, read_range
 from calcsheet.subjects import (
     CONDITION_SUBJECT,
+    INTEGRAL,
+    SUBJECTS,
     UNKNOWN,
     VARIABLE,
     WINDOW,
@@ -71,14 +76,15 @@ TABLES = {
     "forcing": None,  # keys depend on the form; checked in kinds/forcing.py
     "parameters": None,  # any parameter name
     "initial": {"at", "value"},
-    "evaluate": {"at", "reach", "extremes"},
+    "evaluate": {"at", "reach", "extremes", "integrals"},
     "criteria": {"text", "check"},
     "plot": {"to"},
     "signoff": set(sheet_keys.ROLES),
     "revisions": {"revision", "date", "description"},
     "switch": {"at", "text", "parameters", "forcing"},
+    "derived": set(DERIVED_KEYS),
 }
-LISTS = {"criteria", "revisions", "switch"}  # written as [[name]]
+LISTS = {"criteria", "revisions", "switch", "derived"}  # written as [[name]]
 RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | reserved_words()
 # Applied to stripped text: one optional group between single runs of spaces, so it is linear.
 _CHECK = re.compile(
@@ -99,6 +105,8 @@ _FOR_CLAUSE = re.compile(
 _EXTREME = re.compile(
     r"(?P<kind>max|min)(?:\s+(?:from\s+(?P<open>.+)|(?P<start>[^.]+?)\s*\.\.\s*(?P<end>[^.].*)))?", re.DOTALL
 )
+# [evaluate] integrals: "integral(P_R, 0 s, 60 s)"
+_INTEGRAL = re.compile(r"integral\s*\((?P<argument>[^()]*)\)", re.DOTALL)
 MAX_STYLE_NAME = 200
 
 
@@ -188,12 +196,18 @@ def read_subject(model: Model, text: str, where: str) -> Criterion:
         )
     builder = _Builder(model.path, {})
     try:
-        found, argument, window = builder.subject(
-            match.group("subject"), match.group("argument"), model.unknown, model.variable, model.initial_at, where
+        found, argument, window, of, _ = builder.subject(
+            match.group("subject"),
+            match.group("argument"),
+            model.unknown,
+            model.variable,
+            model.initial_at,
+            where,
+            {q.name: q for q in model.derived},
         )
     except CalcsheetError as error:
         raise error.located(file=model.path)
-    return Criterion(text.strip(), text.strip(), found.name, argument, "<=", Point("", None, 0.0), window=window)
+    return Criterion(text.strip(), text.strip(), found.name, argument, "<=", Point("", None, 0.0), window=window, of=of)
 
 
 class _Builder:
@@ -252,6 +266,11 @@ class _Builder:
                     "model.equation",
                 )
             )
+        declared_derived, derived = (), {}
+        if symbolic is not None and ("derived" in self.raw or kind_use is not None):
+            declared_derived, derived = errors.attempt(
+                lambda: self.derived(unknown, variable, parameters, derivative, kind_use), ((), {})
+            )
         evaluate = self.table("evaluate")
         evaluate_at = errors.attempt(lambda: self.points(evaluate, "at", variable), ()) if variable else ()
         for index, point in enumerate(evaluate_at if initial_at else ()):
@@ -266,7 +285,14 @@ class _Builder:
         reach = errors.attempt(lambda: self.points(evaluate, "reach", unknown), ()) if unknown else ()
         extremes = errors.attempt(lambda: self.extremes(evaluate, variable, initial_at), ()) if variable else ()
         criteria = (
-            errors.attempt(lambda: self.criteria(unknown, variable, initial_at), ()) if unknown and variable else ()
+            errors.attempt(lambda: self.criteria(unknown, variable, initial_at, derived), ())
+            if unknown and variable
+            else ()
+        )
+        integrals = (
+            errors.attempt(lambda: self.integrals(evaluate, unknown, variable, initial_at, derived), ())
+            if unknown and variable
+            else ()
         )
         plot_to = errors.attempt(lambda: self.plot_end(initial_at, variable)) if variable else None
         kind = None
@@ -295,6 +321,8 @@ class _Builder:
             reach=reach,
             extremes=extremes,
             criteria=criteria,
+            derived=_used_derived(declared_derived, derived, criteria, integrals),
+            integrals=integrals,
             unused_parameters=unused,
             plot_to=plot_to,
             kind=kind,
@@ -308,6 +336,12 @@ class _Builder:
         changes only what it names, and carries over every state the kind's law holds besides the
         unknown (a tank's volume); the unknown itself carries over in the derivation.
         """
+        if first.derived:
+            raise InputError(
+                "derived quantities are not yet computed for a model with [[switch]] tables; "
+                "remove the [[derived]] tables, or the criteria and integrals that name them",
+                "derived" if self.original.get("derived") else "switch",
+            )
         result, previous = [], first
         parameters, forcing = dict(self.original.get("parameters", {})), self.original.get("forcing")
         for index, entry in enumerate(self.original.get("switch", [])):
@@ -325,7 +359,9 @@ class _Builder:
             parameters = {**parameters, **changes, **{name: value for name, (value, _) in carried.items()}}
             forcing = entry.get("forcing", forcing)
             raw = {
-                k: v for k, v in self.original.items() if k not in ("evaluate", "criteria", "plot", "switch", "forcing")
+                k: v
+                for k, v in self.original.items()
+                if k not in ("evaluate", "criteria", "plot", "switch", "forcing", "derived")
             }
             raw["parameters"] = parameters
             raw["initial"] = {"at": entry["at"], "value": self.original.get("initial", {}).get("value")}
@@ -682,7 +718,43 @@ class _Builder:
             raise InputError(f"the window '{window.start.text} .. {window.end.text}' must end after it starts", where)
         return window
 
-    def criteria(self, unknown: Declared, variable: Declared, initial_at: Point | None = None) -> tuple[Criterion, ...]:
+    def derived(self, unknown, variable, parameters, derivative, kind_use):
+        """``[[derived]]`` and the kind's offers: (those declared, every one a check may name by name)."""
+        offers = ()
+        if kind_use is not None:
+            from calcsheet.kinds import kind_named
+
+            offers = kind_named(kind_use.name).offers
+        return read_derived(self.raw.get("derived", []), unknown, variable, parameters, derivative, RESERVED, offers)
+
+    def integrals(self, table: dict, unknown, variable, initial_at, derived) -> tuple[IntegralRequest, ...]:
+        """``evaluate.integrals``: "integral(P_R, 0 s, 60 s)", a derived quantity over a window."""
+        raw = table.get("integrals", [])
+        if not isinstance(raw, list):
+            raw = [raw]
+        errors, result = _Errors(), []
+        for index, item in enumerate(raw):
+            where = f"evaluate.integrals[{index + 1}]"
+            result.append(
+                errors.attempt(lambda: self.integral_request(item, unknown, variable, initial_at, derived, where))
+            )
+        errors.raise_any()
+        return tuple(result)
+
+    def integral_request(self, item, unknown, variable, initial_at, derived, where) -> IntegralRequest:
+        match = _INTEGRAL.fullmatch(item.strip()) if isinstance(item, str) else None
+        if match is None:
+            raise InputError(
+                f"'{shortened(item)}' must read \"integral(P_R, 0 s, 60 s)\": a derived quantity's name and the "
+                "window's two ends",
+                where,
+            )
+        of, window = self.windowed("integral", match.group("argument"), unknown, variable, initial_at, where, derived)
+        return IntegralRequest(of, window, item.strip())
+
+    def criteria(
+        self, unknown: Declared, variable: Declared, initial_at: Point | None = None, derived=None
+    ) -> tuple[Criterion, ...]:
         """Every [[criteria]] table, each checked on its own."""
         errors, result = _Errors(), []
         for index, entry in enumerate(self.raw.get("criteria", [])):
@@ -692,14 +764,23 @@ class _Builder:
             if check is not None:
                 result.append(
                     errors.attempt(
-                        lambda: self.criterion(text or check, check, unknown, variable, f"{where}.check", initial_at)
+                        lambda: self.criterion(
+                            text or check, check, unknown, variable, f"{where}.check", initial_at, derived or {}
+                        )
                     )
                 )
         errors.raise_any()
         return tuple(result)
 
     def condition(
-        self, text: str, check: str, unknown: Declared, variable: Declared, where: str, initial_at: Point | None
+        self,
+        text: str,
+        check: str,
+        unknown: Declared,
+        variable: Declared,
+        where: str,
+        initial_at: Point | None,
+        derived: dict | None = None,
     ) -> Criterion:
         """A condition over a window, "T <= 90 degC for t in 0 s .. 10 min": the extreme that decides it."""
         head, clause = _FOR.split(check.strip(), maxsplit=1)
@@ -710,9 +791,15 @@ class _Builder:
                 f'"for {variable.name} >= 5 s"',
                 where,
             )
-        if match is None or match.group("subject") != unknown.name or match.group("argument") is not None:
+        derived = derived or {}
+        if (
+            match is None
+            or match.group("subject") not in {unknown.name, *derived}
+            or match.group("argument") is not None
+        ):
             raise InputError(
-                f"'{shortened(check)}': a condition over a window compares {unknown.name} itself, as in "
+                f"'{shortened(check)}': a condition over a window compares {unknown.name} itself or a derived "
+                f"quantity, as in "
                 f'"{unknown.name} <= 90 degC for {variable.name} in 0 s .. 10 min"',
                 where,
             )
@@ -721,38 +808,67 @@ class _Builder:
                 f"'{shortened(check)}' holds more than one comparison; write each as its own [[criteria]] table", where
             )
         operator = match.group("op")
+        of = "" if match.group("subject") == unknown.name else match.group("subject")
         return Criterion(
             text=text,
             check=check,
             subject=CONDITION_SUBJECT[operator],
             argument=None,
             operator=operator,
-            limit=self.point(match.group("limit").strip(), unknown, where),
+            limit=self.point(match.group("limit").strip(), derived[of].declared if of else unknown, where),
             window=self.window(
                 window.group("start"), window.group("end"), window.group("open"), variable, initial_at, where
             ),
+            of=of,
         )
 
     def windowed(
-        self, subject: str, argument: str, unknown: Declared, variable: Declared, initial_at: Point | None, where: str
-    ) -> Window:
-        """The argument of max(T) or max(T, 0 s, 60 s): the unknown's name, then no window or both its ends."""
+        self,
+        subject: str,
+        argument: str,
+        unknown: Declared,
+        variable: Declared,
+        initial_at: Point | None,
+        where: str,
+        derived: dict | None = None,
+    ) -> tuple[str, Window]:
+        """The argument of max(T), max(P_R, 0 s, 60 s) or integral(P_R, 0 s, 60 s): the name of the unknown or
+        of a derived quantity ("" for the unknown), then no window or both its ends."""
+        found = SUBJECTS[subject]
+        names = set(derived or {}) | (set() if found.derived_only else {unknown.name})
         parts = [part.strip() for part in argument.split(",")]
-        if parts[0] != unknown.name or len(parts) not in (1, 3):
+        counts = (3,) if found.needs_window else (1, 3)
+        if parts[0] not in names or len(parts) not in counts:
+            example = next(iter(derived or {}), "P_R") if found.derived_only else unknown.name
+            known = (
+                f"; {subject}() takes a derived quantity ({', '.join(derived) if derived else 'none is declared'})"
+                if found.derived_only and parts[0] not in names
+                else ""
+            )
             raise InputError(
-                f"'{subject}({shortened(argument)})' must read {subject}({unknown.name}) or "
-                f"{subject}({unknown.name}, 0 s, 60 s)",
+                f"'{subject}({shortened(argument)})' must read "
+                + ("" if found.needs_window else f"{subject}({example}) or ")
+                + f"{subject}({example}, 0 s, 60 s){known}",
                 where,
             )
+        of = "" if parts[0] == unknown.name else parts[0]
         if len(parts) == 1:
-            return Window()
-        return self.window(parts[1], parts[2], None, variable, initial_at, where)
+            return of, Window()
+        return of, self.window(parts[1], parts[2], None, variable, initial_at, where)
 
     def criterion(
-        self, text: str, check: str, unknown: Declared, variable: Declared, where: str, initial_at: Point | None = None
+        self,
+        text: str,
+        check: str,
+        unknown: Declared,
+        variable: Declared,
+        where: str,
+        initial_at: Point | None = None,
+        derived: dict | None = None,
     ) -> Criterion:
+        derived = derived or {}
         if _FOR.search(check.strip()):
-            return self.condition(text, check, unknown, variable, where, initial_at)
+            return self.condition(text, check, unknown, variable, where, initial_at, derived)
         match = _CHECK.fullmatch(check.strip())
         if not match:
             raise InputError(
@@ -768,10 +884,9 @@ class _Builder:
                 '"v(2 min) <= 10 V")',
                 where,
             )
-        found, argument, window = self.subject(
-            match.group("subject"), match.group("argument"), unknown, variable, initial_at, where
+        found, argument, window, of, limit_like = self.subject(
+            match.group("subject"), match.group("argument"), unknown, variable, initial_at, where, derived
         )
-        limit_like = {UNKNOWN: unknown, VARIABLE: variable}[found.found]
         return Criterion(
             text=text,
             check=check,
@@ -780,6 +895,7 @@ class _Builder:
             operator=match.group("op"),
             limit=self.point(match.group("limit").strip(), limit_like, where),
             window=window,
+            of=of,
         )
 
     def subject(
@@ -790,23 +906,39 @@ class _Builder:
         variable: Declared,
         initial_at: Point | None,
         where: str,
-    ) -> tuple[Subject, Point | None, Window | None]:
-        """What a check is about, as written before its comparison: v(60 s), reach(50 V), max(T, 0 s, 60 s)."""
+        derived: dict | None = None,
+    ) -> tuple[Subject, Point | None, Window | None, str, Declared | None]:
+        """What a check is about, as written before its comparison (v(60 s), reach(50 V), max(T, 0 s, 60 s),
+        P_R(0 s), integral(P_R, 0 s, 60 s)): the subject, its point, its window, the derived quantity it is
+        about ("" for the unknown) and what its limit is measured like."""
+        derived = derived or {}
         argument = None if argument is None else argument.strip()
-        found = written_subject(subject, unknown.name)
+        found = written_subject(subject, unknown.name, frozenset(derived))
         if found is None:
-            raise InputError(f"'{subject}' is not {spellings(unknown.name)}", where)
+            also = f", a derived quantity ({', '.join(derived)})" if derived else ""
+            raise InputError(f"'{subject}' is not {spellings(unknown.name)}{also}", where)
+        of = subject if subject in derived else ""
+        like = {UNKNOWN: derived[of].declared if of else unknown, VARIABLE: variable}
         if found.argument == WINDOW:
             if argument is None:
                 raise InputError(
                     f"'{subject}' needs an argument: {subject}({unknown.name}) or {subject}({unknown.name}, 0 s, 60 s)",
                     where,
                 )
-            return found, None, self.windowed(subject, argument, unknown, variable, initial_at, where)
-        argument_like = {UNKNOWN: unknown, VARIABLE: variable}.get(found.argument)
+            of, window = self.windowed(subject, argument, unknown, variable, initial_at, where, derived)
+            like = {UNKNOWN: derived[of].declared if of else unknown, INTEGRAL: derived[of].integral if of else None}
+            return found, None, window, of, like[found.found]
+        argument_like, limit_like = like.get(found.argument), like[found.found]
         if (argument_like is None) != (argument is None):
             raise InputError(f"'{subject}' {'takes no' if argument_like is None else 'needs an'} argument", where)
-        return found, None if argument is None else self.point(argument, argument_like, where), None
+        return found, None if argument is None else self.point(argument, argument_like, where), None, of, limit_like
+
+
+def _used_derived(declared, available: dict, criteria, integrals) -> tuple[DerivedQuantity, ...]:
+    """The declared quantities, then each quantity a kind offers that a criterion or an integral names."""
+    named = {c.of for c in criteria if c.of} | {i.of for i in integrals}
+    taken = {q.name for q in declared}
+    return tuple(declared) + tuple(q for name, q in available.items() if name in named and name not in taken)
 
 
 def _unit_as_written(text: str) -> str:

@@ -55,9 +55,10 @@ from calcsheet.sheet.document import (
 from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression, reproducing_expression
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_words, whatif_words
+from calcsheet.sheet.derived_words import derived_section, has_derived
 from calcsheet.sheet.record import build_record
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
-from calcsheet.subjects import SUBJECTS, UNKNOWN
+from calcsheet.subjects import INTEGRAL, SUBJECTS, UNKNOWN
 
 
 class _Notation:
@@ -830,11 +831,20 @@ def _found(v, m) -> str:
     if v.actual is None:
         return "not reached" if subject.absent_is_never else "does not exist"
     numbers = criterion_numbers(v)
-    found = (
-        found_text(numbers) if numbers else in_units(v.actual, m.unknown if subject.found == UNKNOWN else m.variable)
-    )
+    found = found_text(numbers) if numbers else in_units(v.actual, measured_like(m, v.criterion))
     extreme = getattr(v, "extreme", None)
     return found if extreme is None else f"{found} {_extreme_where(extreme, m)}"
+
+
+def measured_like(m, criterion):
+    """The Declared a criterion's found value is measured like: the unknown or a derived quantity, the variable,
+    or a derived quantity's integral."""
+    found = SUBJECTS[criterion.subject].found
+    if found == UNKNOWN:
+        return m.quantity(criterion.of)
+    if found == INTEGRAL:
+        return m.derived_named(criterion.of).integral
+    return m.variable
 
 
 def _margin_cells(v) -> tuple[str, str]:
@@ -985,7 +995,8 @@ def _extremes(d: Derivation, n: _Notation) -> Section:
                 label="from the standard form",
             )
         ]
-    return Section("extremes", "Extremes", tuple(extremes_blocks(m, d.numbers.extremes, equations)))
+    shown = tuple(e for e in d.numbers.extremes if not e.of)  # a derived quantity's are in its own step
+    return Section("extremes", "Extremes", tuple(extremes_blocks(m, shown, equations)))
 
 
 def _also(point, declared) -> str:
@@ -1035,8 +1046,13 @@ STEPS = (
     ("split", _split),
     ("numbers", _numbers),
     ("extremes", _extremes),
+    ("derived", derived_section),
     ("margin", lambda d, n: margin_section(d)),
     ("verification", _verification),
 )
-# shown only when the input asks for them (extremes), or gives parameters ranges (margin)
-OPTIONAL_STEPS = {"extremes": lambda d: bool(d.numbers.extremes), "margin": has_margin}
+# shown only when the input asks for them (extremes, derived quantities), or gives parameters ranges (margin)
+OPTIONAL_STEPS = {
+    "extremes": lambda d: any(not e.of for e in d.numbers.extremes),
+    "derived": has_derived,
+    "margin": has_margin,
+}

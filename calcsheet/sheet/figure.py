@@ -33,6 +33,8 @@ def response_figure(d) -> Figure:
     beyond = [f"{m.unknown.name}({v.at.text})" for v in num.values if not start <= v.at.si <= end]
     for v in num.verdicts:
         c, status = v.criterion, "pass" if v.passed else "fail"
+        if getattr(c, "of", ""):  # about a derived quantity, not the curve drawn: in the tables only
+            continue
         subject = SUBJECTS[c.subject]
         if subject.argument == VARIABLE:  # a limit at one point is drawn at that point, not across the plot
             if not start <= c.argument.si <= end:
@@ -88,6 +90,8 @@ def _extreme_marks(m, num, start, end, x_of, y_of) -> tuple[tuple[float, float, 
 
     marks = {}
     for e in num.extremes:
+        if getattr(e, "of", ""):
+            continue
         if e.at is not None and e.value is not None and start <= e.at <= end:
             marks.setdefault((e.kind, e.at), (x_of(e.at), y_of(e.value), f"{e.kind} {in_units(e.value, m.unknown)}"))
     return tuple(marks[k] for k in sorted(marks, key=lambda k: (k[1], k[0])))

@@ -28,7 +28,7 @@ from calcsheet.derive.margin import (
 from calcsheet.mathtext import latex, plain
 from calcsheet.sheet.document import Equation, Math, Note, Paragraph, Section, Table
 from calcsheet.sheet.quantities import in_units, number, record_value, rounded
-from calcsheet.subjects import SUBJECTS, UNKNOWN
+from calcsheet.subjects import SUBJECTS
 
 SENSITIVITY_WORDS = {
     SYMBOLIC: "symbolic: derivative of the closed form",
@@ -98,7 +98,7 @@ def _sensitivity_blocks(mg: Margin, m) -> list:
     rows, shown = [], []
     for s in mg.sensitivities:
         probe, t = mg.quantities[s.quantity], _toleranced(mg, s.parameter)
-        like = _like(m, probe.subject)
+        like = _like(m, probe.criterion)
         unit = ratio_unit(like.unit_text, t.parameter.unit_text)
         derivative = s.derivative * like.scale / t.parameter.scale
         rows.append(
@@ -138,7 +138,7 @@ def _sensitivity_blocks(mg: Margin, m) -> list:
 def _worst_blocks(mg: Margin, m, verdicts) -> list:
     rows, status = [], []
     for v, w in zip(verdicts, mg.worst):
-        like = _like(m, v.criterion.subject)
+        like = _like(m, v.criterion)
         if w is None:
             rows.append((v.criterion.check, in_units(v.actual, like), "not assessed", "-", "NOT ASSESSED", "-"))
             status.append("")
@@ -272,7 +272,7 @@ def whatif_words(m) -> str:
 # ----------------------------------------------------------------------------- words shared
 def quantity_text(probe, m) -> str:
     c = probe.criterion
-    if probe.subject in ("max", "min") or (c.check and " for " in c.check):
+    if probe.subject in ("max", "min", "integral") or (c.check and " for " in c.check):
         return c.check
     if c.check:
         return c.check.split("<")[0].split(">")[0].strip()
@@ -334,8 +334,10 @@ def _shown(t, si: float | None) -> str:
     return f"{number(t.parameter.shown(si))} {t.parameter.unit_text}".rstrip()
 
 
-def _like(m, subject: str):
-    return m.unknown if SUBJECTS[subject].found == UNKNOWN else m.variable
+def _like(m, criterion):
+    from calcsheet.sheet.compose import measured_like  # compose imports this module
+
+    return measured_like(m, criterion)
 
 
 # ----------------------------------------------------------------------------- record
@@ -359,7 +361,7 @@ def margin_record(d) -> dict:
     sensitivities = []
     for s in mg.sensitivities:
         probe, t = mg.quantities[s.quantity], _toleranced(mg, s.parameter)
-        like = _like(m, probe.subject)
+        like = _like(m, probe.criterion)
         unit = ratio_unit(like.unit_text, t.parameter.unit_text)
         sensitivities.append(
             {
@@ -381,7 +383,7 @@ def criteria_margin(d, criteria: list[dict]) -> list[dict]:
     mg, m = d.margin, d.model
     result = []
     for entry, v, w, limits in zip(criteria, d.numbers.verdicts, mg.worst, mg.limits):
-        like = _like(m, v.criterion.subject)
+        like = _like(m, v.criterion)
         worst = (
             None
             if w is None

@@ -10,8 +10,8 @@ from calcsheet.derive.verify import bound
 from calcsheet.mathtext import plain
 from calcsheet.sheet.criterion_numbers import criterion_numbers
 from calcsheet.sheet.check_words import check_row, quadrature_words
-from calcsheet.subjects import SUBJECTS, UNKNOWN
 from calcsheet.sheet.quantities import record_value, rounded
+from calcsheet.sheet.derived_words import derived_record
 
 RECORD_FORMAT = "calcsheet-record"
 RECORD_VERSION = 2
@@ -94,6 +94,7 @@ def build_record(d, n) -> dict:
             "transient_below_1_percent_after": record_value(num.sine.settled_after, m.variable),
         },
         **results_record(m, num),
+        **derived_record(d),
         "verification": verification_record(d.verification),
         "passed": d.passed,
     }
@@ -150,11 +151,11 @@ def _extreme(e, m) -> dict:
 
     return {
         "type": e.kind,
-        "of": m.unknown.name,
+        "of": getattr(e, "of", "") or m.unknown.name,
         "from": record_value(e.start, m.variable),
         "to": record_value(e.end, m.variable),
         "open_ended": e.open_ended,
-        "value": record_value(e.value, m.unknown),
+        "value": record_value(e.value, m.quantity(getattr(e, "of", ""))),
         "at": record_value(e.at, m.variable),
         "method": EXTREME_METHOD_WORDS[e.method],
     }
@@ -187,8 +188,9 @@ def _margin(verdict) -> dict:
 
 
 def _found(verdict, m):
-    like = m.unknown if SUBJECTS[verdict.criterion.subject].found == UNKNOWN else m.variable
-    return record_value(verdict.actual, like)
+    from calcsheet.sheet.compose import measured_like  # compose imports this module
+
+    return record_value(verdict.actual, measured_like(m, verdict.criterion))
 
 
 def build_switched_record(sd, interval_records: list[dict]) -> dict:

@@ -21,6 +21,17 @@ def check_equation(
     return _common_dimension([node for _, node in terms], _Analyser(unit_of, derivative_unit))
 
 
+def check_expression(
+    node: ex.Node, unit_of: UnitOf, derivative_unit: Callable[[ex.Derivative], pint.Unit] | None
+) -> list[tuple[ex.Node, pint.Unit]]:
+    """Check that every additive term of an expression has one dimension; return each term with its unit,
+    so a caller comparing the whole with a declared unit can quote the term as written."""
+    analyser = _Analyser(unit_of, derivative_unit)
+    terms = [node for _, node in ex.additive_terms(node)]
+    _common_dimension(terms, analyser)
+    return [(term, analyser.unit(term)) for term in terms if not _is_zero(term)]
+
+
 class _Analyser:
     def __init__(self, unit_of: UnitOf, derivative_unit):
         self.unit_of = unit_of

@@ -339,7 +339,7 @@ BAD_INPUTS = [
         "criteria-unknown-subject",
         with_criteria("q(60 ms) >= 0.4 A"),
         InputError,
-        ["'q' is not i(...), reach(...), time_constant, final_value, max(...) or min(...)"],
+        ["'q' is not i(...), reach(...), time_constant, final_value, max(...), min(...) or integral(...)"],
         "criteria[1].check",
     ),
     (
