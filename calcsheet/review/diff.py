@@ -8,6 +8,7 @@ is about (codes plus the user's own names) and the old and new values; ``diff_wo
 from __future__ import annotations
 
 from calcsheet.errors import InputError
+from calcsheet.formatting import number
 from calcsheet.sheet.change_facts import (  # the facts' shape lives below review, where the sheet words them
     ANSWER_SECTIONS,
     FORM,
@@ -249,24 +250,29 @@ def _results(old: dict, new: dict) -> list[Change]:
         for part in ("value", "at"):
             out.append(_numeric_change(RESULT, "extreme " + part, name, _get(before, part), _get(after, part), row=row))
     for check, before, after, row in _criteria(old, new):
-        worst_before, worst_after = _get(before, "worst_case"), _get(after, "worst_case")
-        if worst_before is not None or worst_after is not None:
-            out.append(
-                _numeric_change(
-                    RESULT, "worst value", check, _get(worst_before, "value"), _get(worst_after, "value"), row=row
-                )
-            )
+        worst_before, worst_after = _get(_get(before, "worst_case"), "value"), _get(_get(after, "worst_case"), "value")
+        if (worst_before is not None or worst_after is not None) and not _same_as_shown(worst_before, worst_after):
+            out.append(_numeric_change(RESULT, "worst value", check, worst_before, worst_after, row=row))
     for key, before, after, row in _rows(old.get("sensitivities"), new.get("sensitivities"), _sensitivity_key):
-        name = f"{key[0]} to {key[1]}"
-        out.append(
-            _numeric_change(RESULT, "sensitivity", name, _get(before, "derivative"), _get(after, "derivative"), row=row)
-        )
+        old_value, new_value = _get(before, "derivative"), _get(after, "derivative")
+        if _same_as_shown(old_value, new_value):
+            continue
+        out.append(_numeric_change(RESULT, "sensitivity", f"{key[0]} to {key[1]}", old_value, new_value, row=row))
     for scope, before, after in _intervals(old, new):
         if before is None or after is None:
             continue
         for subject in ("time_constant", "final_value"):
             out.append(_numeric_change(RESULT, subject, "", before.get(subject), after.get(subject), scope))
     return [c for c in out if c is not None]
+
+
+def _same_as_shown(old, new) -> bool:
+    """Two quantities that read the same at the digits a sheet shows. A sensitivity is often a central
+    difference, and a worst case inside the box a bounded search, good to far fewer digits than the record
+    keeps: only a change a reader can see counts."""
+    (a, unit_a), (b, unit_b) = _quantity(old), _quantity(new)
+    numeric = isinstance(a, (int, float)) and isinstance(b, (int, float))
+    return numeric and unit_a == unit_b and number(a) == number(b)
 
 
 def _get(item, key: str):
