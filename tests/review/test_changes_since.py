@@ -236,3 +236,44 @@ def test_one_older_file_for_several_inputs_is_refused(tmp_path):
     first, second, out = coupon(tmp_path, SLOWER, "a.toml"), coupon(tmp_path, SLOWER, "b.toml"), tmp_path / "out"
     line = one_line_refusal(("build", first, second, "--out", out, "--changes-since", old), out)
     assert line.startswith(f"{old}: ") and "single INPUT" in line
+
+
+def test_the_fingerprint_of_the_compared_sheet_leaves_the_comparison_out(tmp_path):
+    # Computed afresh from the sheet that carries the section and the marks, not read from the record.
+    from calcsheet.pipeline import build_sheet, with_changes_since
+    from calcsheet.review.fingerprint import canonical_text, fingerprint
+
+    old = coupon(tmp_path, COUPON, "old.toml")
+    built = build_sheet(coupon(tmp_path, SLOWER))
+    compared = with_changes_since(built, str(old)).sheet
+    assert any(section.key == "changes" for section in compared.sections)
+    assert any(any(block.changed) for s in compared.sections for block in s.blocks if hasattr(block, "changed"))
+    assert fingerprint(compared) == fingerprint(built.sheet) == built.sheet.review.fingerprint
+    assert "Changes since" not in canonical_text(compared)
+
+
+VALVE = Path(__file__).resolve().parents[2] / "inputs" / "valve-coil-economiser.toml"
+
+
+def test_a_switched_model_marks_the_interval_whose_parameter_changed(tmp_path):
+    # The economiser demo's interval 2 has R = 80 ohm; raised to 90 ohm, its final value V_s / R goes from
+    # 24/80 = 0.3 A to 24/90 = 0.2667 A (common practice, no source); interval 1 keeps its own R.
+    text = VALVE.read_text(encoding="utf-8")
+    was = 'R = { value = "80 ohm", min = "78 ohm", max = "86.3 ohm"'
+    assert was in text
+    old = coupon(tmp_path, text, "old.toml")
+    new = coupon(tmp_path, text.replace(was, 'R = { value = "90 ohm", min = "78 ohm", max = "96.3 ohm"'), "valve.toml")
+    txt, _, record, _ = build(new, tmp_path / "out", "--changes-since", old, "--format", "txt,json")
+    sections: dict[str, list[str]] = {}
+    for line in txt.splitlines():
+        if line.startswith("== "):
+            heading = sections.setdefault(line, [])
+        elif line.startswith("| "):
+            heading.append(line)
+    first, second = (next(h for h in sections if h.startswith(f"== Interval {k}, step 1:")) for k in (1, 2))
+    assert len(sections[second]) == 1 and sections[second][0].startswith("| R | 90 ohm |")
+    assert sections[first] == []  # interval 1 is as it was
+    across = sections["== Results across the switches =="]
+    assert any(line.startswith("| 500 ms | 0.2667 A") for line in across)
+    final = next(c for c in record["changes_since"]["changes"] if c["subject"] == "final_value")
+    assert (final["scope"], final["new"]["value"]) == ("2", pytest.approx(24 / 90, rel=1e-9))
