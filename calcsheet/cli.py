@@ -49,19 +49,37 @@ def _neutralise_bad_source_date_epoch() -> None:
     help="Folder of a house style overriding the default templates and CSS (wins over [sheet] style).",
 )
 @_what_if
+@click.option(
+    "--changes-since",
+    "since",
+    default=None,
+    metavar="REV|OLD",
+    help="Add a section 'Changes since revision ...' comparing each INPUT with its version at git revision REV "
+    "(or with the file OLD, an input or JSON record), and mark the changed rows.",
+)
 def build(
-    inputs: tuple[str, ...], out_dir: str, formats: str | None, style: str | None, assignments: tuple[str, ...]
+    inputs: tuple[str, ...],
+    out_dir: str,
+    formats: str | None,
+    style: str | None,
+    assignments: tuple[str, ...],
+    since: str | None,
 ) -> None:
     """Build a sheet for each INPUT (file or folder of .toml files) into --out."""
-    from calcsheet.pipeline import DEFAULT_FORMATS, parse_formats, render, write_outputs
+    from calcsheet.pipeline import DEFAULT_FORMATS, collect_inputs, parse_formats, render, with_changes_since
+    from calcsheet.pipeline import write_outputs
     from calcsheet.writers import WRITERS
 
     chosen = _guard(lambda: parse_formats(formats, tuple(WRITERS)) if formats else DEFAULT_FORMATS)
     style_dir = _guard(lambda: _style(style))
     overrides = _guard(lambda: _assignments(assignments))
+    if since is not None and Path(since).is_file() and len(_guard(lambda: collect_inputs(inputs))) != 1:
+        _guard(lambda: _refuse("compares one input with one earlier file: give a single INPUT", since))
     jobs, failures, done = [], {}, {}
 
     def one(built) -> int:
+        if since is not None:
+            built = with_changes_since(built, since)
         package = next((j.session.package for j in jobs if j.path == built.path and j.session), None)
         house = style_dir or (Path(built.sheet.style) if built.sheet.style else None)
         house = house or (package.style if package else None)
@@ -307,92 +325,44 @@ def show(input_file: str, fmt: str) -> None:
 @click.option("--rev", default=None, help="Compare each INPUT with its version at this git revision.")
 @click.option("--format", "fmt", type=click.Choice(["text", "md", "json"]), default="text", show_default=True)
 @click.option("--exit-code", "exit_code", is_flag=True, help="Exit 1 when any result or verdict changed.")
-def diff(files: tuple[str, ...], rev: str | None, fmt: str, exit_code: bool) -> None:
+@click.option(
+    "--colour",
+    type=click.Choice(["auto", "always", "never"]),
+    default="auto",
+    show_default=True,
+    help="Colour the text report: auto colours it on a terminal only, and never while NO_COLOR is set.",
+)
+def diff(files: tuple[str, ...], rev: str | None, fmt: str, exit_code: bool, colour: str) -> None:
     """Compare two sheets (inputs or JSON records, OLD NEW), or each INPUT with its version at --rev:
     verdict flips, inputs, results, solution forms and the sign-offs that go stale."""
-    from calcsheet.review.diff import answer_changed, compare
-    from calcsheet.review.diff_words import REPORTS
+    from calcsheet.pipeline import build_sheet
+    from calcsheet.review.diff import answer_changed, compare_records
+    from calcsheet.review.diff_words import report
+    from calcsheet.review.earlier import at_revision, from_file
 
     if rev is None and len(files) != 2:
         _guard(lambda: _refuse("give two files, OLD and NEW, or --rev REV with the inputs", " ".join(files)))
-    pairs = [(f"{rev}:{name}", name) for name in files] if rev is not None else [files]
     comparisons = []
-    for old_name, new_name in pairs:
-        old = _guard(lambda: _diff_record(old_name, rev))
-        new = _guard(lambda: _diff_record(new_name, None))
-        changes = _guard(lambda: _compare_records(compare, old, new, f"{old_name} or {new_name}"))
-        comparisons.append((old_name, new_name, changes))
-    click.echo(REPORTS[fmt](comparisons), nl=False)
+    for old_name, new_name in [(name, name) for name in files] if rev is not None else [files]:
+        if rev is not None:
+            _guard(lambda: Path(new_name).is_file() or _refuse("no such file", new_name))
+            old = _guard(lambda: _os_guarded(lambda: at_revision(Path(new_name), rev, build_sheet), new_name))
+        else:
+            old = _guard(lambda: _os_guarded(lambda: from_file(old_name, build_sheet), old_name))
+        new = _guard(lambda: _os_guarded(lambda: from_file(new_name, build_sheet), new_name))
+        changes = _guard(lambda: compare_records(old.record, new.record, f"{old.name} or {new.name}"))
+        comparisons.append((old.name, new.name, changes))
+    coloured = _colour_wanted(colour) and fmt == "text"
+    click.echo(report(fmt, comparisons, coloured), nl=False, color=coloured or None)
     changed = any(answer_changed(changes) for _, _, changes in comparisons)
     sys.exit(EXIT_CHECK_FAILED if exit_code and changed else EXIT_OK)
 
 
-def _diff_record(name: str, rev: str | None) -> dict:
-    """The JSON record of one side: read from a record file, or built from an input (at ``rev`` if given)."""
-    import json
-    import tempfile
-
-    from calcsheet.pipeline import build_sheet
-
-    if rev is not None:
-        path = Path(name.split(":", 1)[1])
-        text = _git_show(rev, path)
-        with tempfile.TemporaryDirectory() as folder:
-            copy = Path(folder) / path.name
-            copy.write_text(text, encoding="utf-8")
-            try:
-                return build_sheet(copy).sheet.record
-            except CalcsheetError as error:
-                error.file = name
-                raise
-    path = Path(name)
-    if not path.is_file():
-        _refuse("no such file", name)
-    if path.suffix.lower() == ".json":
-        try:
-            record = json.loads(_os_guarded(lambda: path.read_text(encoding="utf-8"), name))
-        except (json.JSONDecodeError, UnicodeDecodeError) as error:
-            _refuse(f"not a JSON record: {error}", name)
-        if not isinstance(record, dict) or record.get("format") != "calcsheet-record" or record.get("version") != 2:
-            from calcsheet.errors import InputError
-
-            raise InputError("is not a calcsheet JSON record of version 2", key="format", file=name)
-        return record
-    try:
-        return _os_guarded(lambda: build_sheet(path).sheet.record, name)
-    except CalcsheetError as error:
-        raise error.located(file=name)
-
-
-def _git_show(rev: str, path: Path) -> str:
-    """The text of ``path`` at git revision ``rev``; no git, no repository or no such revision is one line."""
-    import shutil
-    import subprocess
-
-    if shutil.which("git") is None:
-        _refuse("git is not installed, so --rev cannot read an earlier revision", str(path))
-    folder = path.parent if str(path.parent) else Path(".")
-    try:
-        done = subprocess.run(
-            ["git", "show", f"{rev}:./{path.name}"], cwd=folder, capture_output=True, check=False, timeout=60
-        )
-    except (OSError, subprocess.TimeoutExpired) as error:
-        _refuse(f"git could not be run: {error}", str(path))
-    if done.returncode != 0:
-        reason = (done.stderr.decode("utf-8", "replace").strip().splitlines() or ["git show failed"])[0]
-        _refuse(f"cannot read it at revision {rev}: {reason}", str(path))
-    try:
-        return done.stdout.decode("utf-8")
-    except UnicodeDecodeError:
-        _refuse(f"is not UTF-8 text at revision {rev}", str(path))
-
-
-def _compare_records(compare, old: dict, new: dict, names: str):
-    """A hand-edited record of the wrong shape is the user's to fix: one line, not a traceback."""
-    try:
-        return compare(old, new)
-    except (AttributeError, TypeError, KeyError, ValueError) as error:
-        _refuse(f"a record is not well formed ({type(error).__name__}: {error})", names)
+def _colour_wanted(choice: str) -> bool:
+    """always, never, or (auto) when standard output is a terminal and NO_COLOR is unset or empty."""
+    if choice != "auto":
+        return choice == "always"
+    return sys.stdout.isatty() and not os.environ.get("NO_COLOR")
 
 
 def _refuse(message: str, file: str):

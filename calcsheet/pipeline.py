@@ -150,6 +150,25 @@ def upstream_results(path: Path, records: dict) -> dict:
     return results
 
 
+def with_changes_since(built: Built, since: str) -> Built:
+    """``built`` with the section "Changes since ..." and revision marks: compared with the file ``since`` when
+    one exists by that name, else with the input as git held it at revision ``since``. The fingerprint stays
+    as sealed: the comparison is a document part (review/fingerprint.py)."""
+    from dataclasses import replace
+
+    from calcsheet.review.diff import compare_records
+    from calcsheet.review.earlier import at_revision, from_file
+    from calcsheet.sheet.changes import with_changes
+
+    if Path(since).is_file():
+        earlier = from_file(since, build_sheet)
+    else:
+        earlier = at_revision(built.path, since, build_sheet)
+    changes = compare_records(earlier.record, built.sheet.record, earlier.name)
+    revision_now = built.derivation.model.sheet.revision
+    return replace(built, sheet=with_changes(built.sheet, changes, earlier.baseline, revision_now))
+
+
 def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[str, str | bytes]:
     """Every requested format as text, all in memory before anything touches the disk."""
     from calcsheet.writers import writer_for

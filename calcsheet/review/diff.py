@@ -7,30 +7,22 @@ is about (codes plus the user's own names) and the old and new values; ``diff_wo
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from calcsheet.errors import InputError
+from calcsheet.formatting import number
+from calcsheet.sheet.change_facts import (  # the facts' shape lives below review, where the sheet words them
+    ANSWER_SECTIONS,
+    FORM,
+    INPUT,
+    RESULT,
+    SECTIONS,
+    SIGNOFF,
+    VERDICT,
+    Change,
+    answer_changed,
+)
 
-# Sections, in the order a reviewer reads them: what flipped first, then why, then what followed.
-VERDICT, INPUT, RESULT, FORM, SIGNOFF = "verdict", "input", "result", "form", "signoff"
-SECTIONS = (VERDICT, INPUT, RESULT, FORM, SIGNOFF)
-# Sections whose change means the calculation's answer changed (what --exit-code reports).
-ANSWER_SECTIONS = (VERDICT, RESULT)
+__all__ = ["ANSWER_SECTIONS", "SECTIONS", "Change", "answer_changed", "compare", "compare_records"]
 SOLUTION_FORMS = ("integrating_factor", "general", "particular", "natural", "forced")
-
-
-@dataclass(frozen=True)
-class Change:
-    """One difference: ``subject`` is a code (``parameter``, ``value``, ``criterion`` ...), ``name`` the
-    user's own label for it (a parameter's name, a check as written) and ``scope`` the interval of a
-    switched model ("" for the whole sheet). ``old``/``new`` are None when the item was added/removed."""
-
-    section: str
-    subject: str
-    name: str
-    old: object
-    new: object
-    scope: str = ""
-    absolute: float | None = None
-    relative: float | None = None
 
 
 def compare(old: dict, new: dict) -> list[Change]:
@@ -44,9 +36,12 @@ def compare(old: dict, new: dict) -> list[Change]:
     return found
 
 
-def answer_changed(changes: list[Change]) -> bool:
-    """True when a result or a verdict differs: the sheet's answer is no longer the one reviewed."""
-    return any(c.section in ANSWER_SECTIONS for c in changes)
+def compare_records(old: dict, new: dict, names: str) -> list[Change]:
+    """``compare``, where a hand-edited record of the wrong shape is the user's to fix: one line naming them."""
+    try:
+        return compare(old, new)
+    except (AttributeError, TypeError, KeyError, ValueError) as error:
+        raise InputError(f"a record is not well formed ({type(error).__name__}: {error})", file=names) from None
 
 
 def _outcomes(record: dict) -> dict:
@@ -66,23 +61,33 @@ def _keyed(items: list, key) -> dict:
 
 def _pairs(old_items: list, new_items: list, key):
     """(key, old or None, new or None) for the union of keys: old order first, then new-only items."""
+    for k, before, after, _ in _rows(old_items, new_items, key):
+        yield k, before, after
+
+
+def _rows(old_items: list, new_items: list, key):
+    """As ``_pairs``, with the new item's place in its list (None when it was removed)."""
     olds, news = _keyed(old_items, key), _keyed(new_items, key)
+    place = {k: n for n, k in enumerate(news)}
     for k in list(olds) + [k for k in news if k not in olds]:
-        yield k, olds.get(k), news.get(k)
+        yield k, olds.get(k), news.get(k), place.get(k)
 
 
 def _status(criterion: dict | None) -> str | None:
     return None if criterion is None else criterion.get("status")
 
 
+def _criteria(old: dict, new: dict):
+    return _rows(_outcomes(old).get("criteria"), _outcomes(new).get("criteria"), lambda c: c.get("check", ""))
+
+
 def _verdicts(old: dict, new: dict) -> list[Change]:
     out = []
-    pairs = _pairs(_outcomes(old).get("criteria"), _outcomes(new).get("criteria"), lambda c: c.get("check", ""))
-    for check, before, after in pairs:
+    for check, before, after, row in _criteria(old, new):
         if before is not None and after is not None and _status(before) != _status(after):
-            out.append(Change(VERDICT, "criterion", check, _status(before), _status(after)))
+            out.append(Change(VERDICT, "criterion", check, _status(before), _status(after), row=row))
         if before is not None and after is not None and _worst(before) != _worst(after):
-            out.append(Change(VERDICT, "worst case", check, _worst(before), _worst(after)))
+            out.append(Change(VERDICT, "worst case", check, _worst(before), _worst(after), row=row))
     if bool(old.get("passed")) != bool(new.get("passed")):
         out.append(Change(VERDICT, "overall", "", bool(old.get("passed")), bool(new.get("passed"))))
     return out
@@ -100,7 +105,7 @@ def _quantity(item) -> tuple[float | None, str]:
     return item.get("value"), item.get("unit", "")
 
 
-def _numeric_change(section, subject, name, old, new, scope="", old_si=None, new_si=None) -> Change | None:
+def _numeric_change(section, subject, name, old, new, scope="", old_si=None, new_si=None, row=None) -> Change | None:
     """A Change when two quantities ({value, unit}, or text with SI values) differ, with the absolute change
     when both share a unit and the relative change when the old value is not zero."""
     if old == new:
@@ -114,15 +119,23 @@ def _numeric_change(section, subject, name, old, new, scope="", old_si=None, new
     if isinstance(a, (int, float)) and isinstance(b, (int, float)) and same_unit:
         absolute = b - a
         relative = absolute / abs(a) if a != 0 else None
-    return Change(section, subject, name, old, new, scope, absolute, relative)
+    return Change(section, subject, name, old, new, scope, absolute, relative, row)
 
 
 def _parameters(old_params, new_params, scope) -> list[Change]:
     out = []
-    for name, before, after in _pairs(old_params, new_params, lambda p: p.get("name", "")):
+    for name, before, after, row in _rows(old_params, new_params, lambda p: p.get("name", "")):
         if before is None or after is None:
             out.append(
-                Change(INPUT, "parameter", name, before and before.get("value"), after and after.get("value"), scope)
+                Change(
+                    INPUT,
+                    "parameter",
+                    name,
+                    before and before.get("value"),
+                    after and after.get("value"),
+                    scope,
+                    row=row,
+                )
             )
         elif before.get("value") != after.get("value") or before.get("si") != after.get("si"):
             change = _numeric_change(
@@ -134,15 +147,20 @@ def _parameters(old_params, new_params, scope) -> list[Change]:
                 scope,
                 before.get("si"),
                 after.get("si"),
+                row,
             )
-            out.append(change or Change(INPUT, "parameter", name, before.get("value"), after.get("value"), scope))
+            out.append(
+                change or Change(INPUT, "parameter", name, before.get("value"), after.get("value"), scope, row=row)
+            )
         elif before.get("source") != after.get("source"):
-            out.append(Change(INPUT, "parameter source", name, before.get("source"), after.get("source"), scope))
+            out.append(
+                Change(INPUT, "parameter source", name, before.get("source"), after.get("source"), scope, row=row)
+            )
     return out
 
 
-def _text(section, subject, old, new, scope="", name="") -> list[Change]:
-    return [] if old == new else [Change(section, subject, name, old, new, scope)]
+def _text(section, subject, old, new, scope="", name="", row=None) -> list[Change]:
+    return [] if old == new else [Change(section, subject, name, old, new, scope, row=row)]
 
 
 def _quantity_text(item) -> str | None:
@@ -175,16 +193,18 @@ def _inputs(old: dict, new: dict) -> list[Change]:
             INPUT, "forcing", (before.get("kind") or {}).get("forcing"), (after.get("kind") or {}).get("forcing"), scope
         )
         out += _parameters(before.get("parameters"), after.get("parameters"), scope)
-    for name, before, after in _pairs(old.get("tolerances"), new.get("tolerances"), lambda p: p.get("name", "")):
+    tolerances = _rows(old.get("tolerances"), new.get("tolerances"), lambda p: p.get("name", ""))
+    for name, before, after, row in tolerances:
         out += _text(
-            INPUT, "tolerance", before and before.get("as_stated"), after and after.get("as_stated"), name=name
+            INPUT, "tolerance", before and before.get("as_stated"), after and after.get("as_stated"), name=name, row=row
         )
-    pairs = _pairs(_outcomes(old).get("criteria"), _outcomes(new).get("criteria"), lambda c: c.get("check", ""))
-    for check, before, after in pairs:
+    for check, before, after, row in _criteria(old, new):
         if before is None or after is None:
-            out.append(Change(INPUT, "criterion", check, before and before.get("text"), after and after.get("text")))
+            out.append(
+                Change(INPUT, "criterion", check, before and before.get("text"), after and after.get("text"), row=row)
+            )
         else:
-            out += _text(INPUT, "criterion text", before.get("text"), after.get("text"), name=check)
+            out += _text(INPUT, "criterion text", before.get("text"), after.get("text"), name=check, row=row)
     return out
 
 
@@ -220,23 +240,48 @@ def _results(old: dict, new: dict) -> list[Change]:
     out: list[Change] = []
     a, b = _outcomes(old), _outcomes(new)
     unknown = (new.get("model", {}).get("unknown") or {}).get("name", "")
-    for at, before, after in _pairs(a.get("values"), b.get("values"), lambda v: _quantity_text(v.get("at"))):
+    for at, before, after, row in _rows(a.get("values"), b.get("values"), lambda v: _quantity_text(v.get("at"))):
         name = f"{unknown}({at})"
-        out.append(_numeric_change(RESULT, "value", name, before and before.get("value"), after and after.get("value")))
-    for level, before, after in _pairs(a.get("reach"), b.get("reach"), lambda r: _quantity_text(r.get("target"))):
-        out.append(_numeric_change(RESULT, "reach", level, before and before.get("at"), after and after.get("at")))
-    for key, before, after in _pairs(a.get("extremes"), b.get("extremes"), _extreme_key):
+        out.append(_numeric_change(RESULT, "value", name, _get(before, "value"), _get(after, "value"), row=row))
+    for level, before, after, row in _rows(a.get("reach"), b.get("reach"), lambda r: _quantity_text(r.get("target"))):
+        out.append(_numeric_change(RESULT, "reach", level, _get(before, "at"), _get(after, "at"), row=row))
+    for key, before, after, row in _rows(a.get("extremes"), b.get("extremes"), _extreme_key):
         name = f"{key[0]} {key[1]}"
         for part in ("value", "at"):
-            out.append(
-                _numeric_change(RESULT, "extreme " + part, name, before and before.get(part), after and after.get(part))
-            )
+            out.append(_numeric_change(RESULT, "extreme " + part, name, _get(before, part), _get(after, part), row=row))
+    for check, before, after, row in _criteria(old, new):
+        worst_before, worst_after = _get(_get(before, "worst_case"), "value"), _get(_get(after, "worst_case"), "value")
+        if (worst_before is not None or worst_after is not None) and not _same_as_shown(worst_before, worst_after):
+            out.append(_numeric_change(RESULT, "worst value", check, worst_before, worst_after, row=row))
+    for key, before, after, row in _rows(old.get("sensitivities"), new.get("sensitivities"), _sensitivity_key):
+        old_value, new_value = _get(before, "derivative"), _get(after, "derivative")
+        if _same_as_shown(old_value, new_value):
+            continue
+        out.append(_numeric_change(RESULT, "sensitivity", f"{key[0]} to {key[1]}", old_value, new_value, row=row))
     for scope, before, after in _intervals(old, new):
         if before is None or after is None:
             continue
         for subject in ("time_constant", "final_value"):
             out.append(_numeric_change(RESULT, subject, "", before.get(subject), after.get(subject), scope))
     return [c for c in out if c is not None]
+
+
+def _same_as_shown(old, new) -> bool:
+    """Two quantities that read the same at the digits a sheet shows. A sensitivity is often a central
+    difference, and a worst case inside the box a bounded search, good to far fewer digits than the record
+    keeps: only a change a reader can see counts."""
+    (a, unit_a), (b, unit_b) = _quantity(old), _quantity(new)
+    numeric = isinstance(a, (int, float)) and isinstance(b, (int, float))
+    return numeric and unit_a == unit_b and number(a) == number(b)
+
+
+def _get(item, key: str):
+    """``item[key]``, None where the item (or that part of it) is absent on one side."""
+    return item.get(key) if isinstance(item, dict) else None
+
+
+def _sensitivity_key(sensitivity: dict) -> tuple[str, str]:
+    return sensitivity.get("quantity", ""), sensitivity.get("parameter", "")
 
 
 def _extreme_key(extreme: dict) -> tuple[str, str, str, str]:

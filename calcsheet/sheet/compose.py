@@ -316,7 +316,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
             f"{m.variable.unit_text or 'no unit'} as the variable:"
         ),
         Equation(Math(equation_latex(m.equation), m.equation_text), "from the law" if m.kind else "as stated"),
-        Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters"),
+        Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters", key="parameters"),
         Table(
             ("Condition", "Value"),
             (
@@ -655,13 +655,14 @@ def values_table(m, values) -> Table:
     rows = tuple((v.at.text + _also(v.at, m.variable), in_units(v.y, m.unknown)) for v in values)
     past = [not getattr(v, "applies", True) for v in values]
     if not any(past):
-        return Table((m.variable.name, m.unknown.name), rows, f"Values of {m.unknown.name}")
+        return Table((m.variable.name, m.unknown.name), rows, f"Values of {m.unknown.name}", key="values")
     return Table(
         (m.variable.name, m.unknown.name, "Remark"),
         tuple(row + (PAST_LIMIT if late else "",) for row, late in zip(rows, past)),
         f"Values of {m.unknown.name}",
         row_status=tuple("fail" if late else "" for late in past),
         status_column=2,
+        key="values",
     )
 
 
@@ -673,6 +674,7 @@ def reach_table(m, reaches) -> Table:
             for r in reaches
         ),
         "Levels reached after the initial point",
+        key="reach",
     )
 
 
@@ -713,6 +715,7 @@ def criteria_table(m, verdicts) -> Table:
         tuple((v.criterion.text, v.criterion.check, _found(v, m), *_margin_cells(v), _result(v)) for v in verdicts),
         "Acceptance criteria",
         row_status=tuple({"pass": "pass", "fail": "fail"}.get(_status(v), "") for v in verdicts),
+        key="criteria",
     )
 
 
@@ -938,7 +941,11 @@ def extremes_blocks(m, extremes, slope_equations=()) -> list:
         rows.append(
             (f"{_EXTREME_KIND_WORDS[e.kind]} {y}", extreme_window(e, m), value, at, EXTREME_METHOD_WORDS[e.method])
         )
-    blocks.append(Table(("Extreme", f"Over {x}", "Value", f"At {x} =", "Given by"), tuple(rows), f"Extremes of {y}"))
+    blocks.append(
+        Table(
+            ("Extreme", f"Over {x}", "Value", f"At {x} =", "Given by"), tuple(rows), f"Extremes of {y}", key="extremes"
+        )
+    )
     for e in extremes:
         if e.open_ended:
             blocks.append(_tail_note(e, m))

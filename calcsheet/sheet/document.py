@@ -40,6 +40,12 @@ class Table:
     # per-row status used for pass/fail styling ("", "pass" or "fail"), shown on status_column
     row_status: tuple[str, ...] = ()
     status_column: int = -1
+    # what the rows list ("parameters", "values", "criteria"...; "" for other tables), so that a comparison
+    # with an earlier sheet finds the row of a changed item; writers do not show it
+    key: str = ""
+    # per row, True where it changed since the sheet this one is compared with (build --changes-since):
+    # writers show a revision mark, a bar in the margin
+    changed: tuple[bool, ...] = ()
 
 
 @dataclass(frozen=True)

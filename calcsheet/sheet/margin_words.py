@@ -76,6 +76,7 @@ def margin_section(d, key: str = "margin", title: str = "Sensitivity and toleran
                 for t in mg.parameters
             ),
             "Tolerances",
+            key="tolerances",
         ),
     ]
     blocks += _sensitivity_blocks(mg, m)
@@ -117,7 +118,7 @@ def _sensitivity_blocks(mg: Margin, m) -> list:
             "Sensitivities: the change of each result per unit change of each parameter, and normalised "
             "(∂y/∂p · p/y: per cent change of the result per per cent change of the parameter)."
         ),
-        Table(("Result", "Parameter", "∂y/∂p", "Normalised", "How"), tuple(rows), "Sensitivities"),
+        Table(("Result", "Parameter", "∂y/∂p", "Normalised", "How"), tuple(rows), "Sensitivities", key="sensitivities"),
     ]
     for probe, t, expression in shown:
         name = "τ" if probe.subject == "time_constant" else "y_∞"
@@ -172,6 +173,7 @@ def _worst_blocks(mg: Margin, m, verdicts) -> list:
             "Criteria at worst case",
             row_status=tuple(status),
             status_column=4,
+            key="worst_case",
         ),
     ]
     if any(mth != CORNERS for mth in methods):

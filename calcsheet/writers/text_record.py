@@ -92,10 +92,19 @@ def _list(block: ItemList) -> list[str]:
     return [f"  - {item}" for item in block.items]
 
 
+# Starts a table row that changed since the sheet this one is compared with (Table.changed): the revision
+# bar in the margin, in the column where an unchanged row has a space, so the row's own text stays put.
+CHANGED_ROW = "| "
+ROW = "  "
+
+
 def _table(block: Table) -> list[str]:
     caption = [f"{block.caption}:"] if block.caption else []
-    rows = ["  " + " | ".join(_cell(c) for c in row) for row in block.rows]
-    return caption + ["  " + " | ".join(block.header)] + rows
+    changed = block.changed or (False,) * len(block.rows)
+    rows = [
+        (CHANGED_ROW if mark else ROW) + " | ".join(_cell(c) for c in row) for row, mark in zip(block.rows, changed)
+    ]
+    return caption + [ROW + " | ".join(block.header)] + rows
 
 
 def _figure(block: Figure, words: Labels) -> list[str]:
