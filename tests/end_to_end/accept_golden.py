@@ -17,8 +17,8 @@ from click.testing import CliRunner
 from calcsheet.cli import main
 
 sys.path.insert(0, str(Path(__file__).parent))
+from demo_verdicts import DEMOS as DEMO_SHEETS  # noqa: E402
 from demo_verdicts import expected_exit  # noqa: E402
-from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMOS = DEMO_SHEETS
