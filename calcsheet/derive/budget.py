@@ -17,13 +17,13 @@ T = TypeVar("T")
 
 # Budgets guard against hangs; they must never choose between forms for the inputs we ship and test.
 # Each is set so that every shipped and tested input finishes well inside it on a machine four times
-# slower than a developer's: tests/derive/test_budget_margin.py rebuilds the demos with every budget
-# divided by four (SCALE = 0.25) and requires the same records. The slowest step of a demo takes
-# about 5 s here (the probe's error-function integral).
+# slower than a developer's: benchmarks/bench_budget_headroom.py rebuilds the demos with every budget
+# divided by four (SCALE = 0.25) and compares the records (a measurement, not a test: it depends on the
+# machine). The slowest step of a demo takes about 5 s here (the probe's error-function integral).
 INTEGRATE_SECONDS = 40.0
 SIMPLIFY_SECONDS = 15.0
 LIMIT_SECONDS = 15.0
-SCALE = 1.0  # multiplies every budget; only the margin test changes it
+SCALE = 1.0  # multiplies every budget; only the headroom benchmark changes it
 
 # Why a symbolic step fell back, as a code a record or a test can compare (the sheet words it).
 NO_CLOSED_FORM = "no_closed_form"

@@ -41,6 +41,12 @@ def built_row(entry: SheetEntry, built, pages: int | None, upstream: tuple[str, 
     state = sheet_status(built)
     verdicts = built.derivation.numbers.verdicts if hasattr(built.derivation, "numbers") else ()
     passed = sum(v.status == "pass" for v in verdicts)
+    margin = getattr(built.derivation, "margin", None)
+    at_worst = [
+        f"#{k}"
+        for k, (v, w) in enumerate(zip(verdicts, margin.worst if margin else ()), 1)
+        if v.status == "pass" and w is not None and not w.passed
+    ]
     info = built.derivation.model.sheet
     return Row(
         file=str(entry.path),
@@ -49,7 +55,8 @@ def built_row(entry: SheetEntry, built, pages: int | None, upstream: tuple[str, 
         revision=info.revision,
         status=info.status,
         verdict="PASS" if built.derivation.passed else "FAIL",
-        criteria=f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria",
+        criteria=(f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria")
+        + (f"; fail at worst case: {', '.join(at_worst)}" if at_worst else ""),
         verification="passed" if built.derivation.verification.passed else "FAILED",
         signoff={r.role: r.state for r in state.roles},
         fingerprint=state.fingerprint,

@@ -99,8 +99,8 @@ def _extremes_table(m, extremes) -> Table:
     return Table(
         ("Extreme", f"Over {m.variable.name}", "Value", f"At {m.variable.name} =", "Given by"),
         rows,
-        "Extremes of the derived quantities: stationary points (d/dx = 0), jumps in the forcing and the window's ends "
-        "compared",
+        f"Extremes of the derived quantities: stationary points (d/d{m.variable.name} = 0), jumps in the forcing and "
+        "the window's ends compared",
     )
 
 

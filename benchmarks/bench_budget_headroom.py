@@ -1,0 +1,58 @@
+"""How much headroom the symbolic budgets leave: every demo derived with each budget divided by four, as a
+machine four times slower would see it, compared with the full budgets.
+
+A measurement, not a test: whether a step finishes inside a budget depends on the machine and its load,
+and a test must not. Run it after making a step slower or adding a demo:
+
+    .venv/bin/python benchmarks/bench_budget_headroom.py [--scale 0.25]
+
+It prints, per demo, whether the records are the same with the smaller budgets and whether any step fell
+back because time ran out; exit status 1 if any demo differs. If one does, make the step cheaper (try cheap
+forms first); do not just raise the budget (DEVELOPERS.md, "Rules we keep").
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import time
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests" / "end_to_end"))
+from demo_verdicts import DEMOS  # noqa: E402
+
+from calcsheet.derive import budget  # noqa: E402
+from calcsheet.pipeline import build_sheet, render  # noqa: E402
+
+
+def _records(path: Path) -> tuple[dict, bool]:
+    built = build_sheet(path)
+    derivations = getattr(built.derivation, "intervals", None)
+    solutions = [i.derivation.solution for i in derivations] if derivations else [built.derivation.solution]
+    ran_out = any(budget.BUDGET_EXCEEDED in s.fallback_codes for s in solutions)
+    return render(built.sheet, ("txt", "json")), ran_out
+
+
+def main() -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--scale", type=float, default=0.25, help="budget multiplier (default 0.25)")
+    scale = parser.parse_args().scale
+    worst = 0
+    for path in DEMOS:
+        started = time.process_time()
+        full, _ = _records(path)
+        cpu = time.process_time() - started
+        budget.SCALE = scale
+        try:
+            small, ran_out = _records(path)
+        finally:
+            budget.SCALE = 1.0
+        same = small == full and not ran_out
+        worst = max(worst, 0 if same else 1)
+        verdict = "same records" if same else ("a budget ran out" if ran_out else "records DIFFER")
+        print(f"{path.stem:32s} {cpu:6.1f} CPU s at full budgets; at x{scale:g}: {verdict}")
+    return worst
+
+
+if __name__ == "__main__":
+    sys.exit(main())
