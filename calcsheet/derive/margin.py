@@ -21,6 +21,8 @@ from scipy import optimize
 from calcsheet.derive.budget import within
 from calcsheet.derive.numbers import OPERATORS, compute_numbers
 from calcsheet.model import Criterion, Model, Parameter, Point
+from calcsheet.source.expressions import names_in
+from calcsheet.source.value_expressions import si_value, sympy_form
 from calcsheet.subjects import SUBJECTS
 
 MAX_CORNERS_PARAMETERS = 10  # 2^10 corners; beyond that the box is searched instead
@@ -84,6 +86,7 @@ class WorstCase:
     corner: tuple[tuple[str, str], ...]  # (key, MIN or MAX); a searched point gives (key, SI value as text)
     method: str  # CORNERS or SEARCHED (signs change over the box), TOO_MANY
     point: tuple[tuple[str, float], ...] = ()  # the parameter values (SI) at the worst point
+    limit: float | None = None  # SI: a limit written in terms of parameters, worked out at the worst point
 
 
 @dataclass(frozen=True)
@@ -179,6 +182,8 @@ class _Study:
         self.probes = probes(self.model, derivation.numbers)
         self.nominal_values = tuple(t.nominal for t in toleranced)
         self._cache: dict = {}
+        self._limits: dict = {}  # each criterion's limit at the values (it moves where written in parameters)
+        self.chain = derived_chain(self.model.parameters)
         pieces = [i.derivation for i in derivation.intervals] if self.switched else [derivation]
         self.final_forms = [final_form(d) for d in pieces]
         self.nominal = self.evaluate(self.nominal_values)
@@ -189,7 +194,8 @@ class _Study:
         values = tuple(float(v) for v in values)
         if values in self._cache:
             return self._cache[values]
-        model = replace(self._replaced(values), criteria=tuple(p.criterion for p in self.probes))
+        moved = self._replaced(values)
+        model = replace(moved, criteria=_limits_at(tuple(p.criterion for p in self.probes), moved.parameters))
         if self.switched:
             numbers = _switched_numbers(model, self.d, self.final_forms)
         else:
@@ -202,6 +208,7 @@ class _Study:
         quantities = tuple(_finite(v.actual) for v in numbers.verdicts)
         verdicts = tuple(v.passed for v in numbers.verdicts[: len(self.model.criteria)])
         self._cache[values] = (quantities, verdicts)
+        self._limits[values] = tuple(c.limit.si for c in model.criteria[: len(self.model.criteria)])
         return quantities, verdicts
 
     def _replaced(self, values) -> Model:
@@ -222,6 +229,20 @@ class _Study:
 
     def quantity(self, values, index: int) -> float | None:
         return self.evaluate(tuple(values))[0][index]
+
+    def limit_at(self, values, k: int) -> float:
+        """Criterion k's limit with the parameters at ``values`` (its own where written in terms of them)."""
+        values = tuple(float(v) for v in values)
+        self.evaluate(values)
+        return self._limits[values][k]
+
+    def against(self, values, k: int) -> float | None:
+        """Criterion k's quantity measured against its nominal limit: moved by as much as its limit moves at
+        ``values``, so every comparison with the nominal limit is the comparison with the limit there."""
+        found = self.quantity(values, k)
+        if found is None:
+            return None
+        return found - (self.limit_at(values, k) - self.model.criteria[k].limit.si)
 
     # ------------------------------------------------------------------ the margin
     def margin(self) -> Margin:
@@ -277,15 +298,15 @@ class _Study:
             expr = d.numbers.time_constant_expr
             if expr is None:
                 return None
-            derivative = sp.diff(expr, p)
+            derivative = sp.diff(expr.xreplace(self.chain), p)
             return _number(derivative.subs(values)), SYMBOLIC, _short(sp.simplify(derivative))
         if subject == "final_value":
             cls = d.classification
             if not cls.constant_coefficients or x in cls.r.free_symbols:
                 return None
-            derivative = sp.diff(cls.r / cls.p, p)
+            derivative = sp.diff((cls.r / cls.p).xreplace(self.chain), p)
             return _number(derivative.subs(values)), SYMBOLIC, _short(sp.simplify(derivative))
-        y = d.solution.natural + d.solution.forced_closed
+        y = (d.solution.natural + d.solution.forced_closed).xreplace(self.chain)
         dy_dp = sp.diff(y, p)
         if subject == "value":
             return _number(dy_dp.subs(values).subs(x, probe.criterion.argument.si)), SYMBOLIC, None
@@ -321,7 +342,7 @@ class _Study:
             return self._searched(k, criterion, badness, [self.nominal_values], TOO_MANY)
         corners = list(itertools.product((0, 1), repeat=n))
         points = [self._corner(c) for c in corners]
-        scores = [badness(self.quantity(pt, k)) for pt in points]
+        scores = [badness(self.against(pt, k)) for pt in points]
         worst = max(range(len(points)), key=lambda i: (scores[i], -i))
         if self._corner_decides(k, corners, scores, badness):
             value = self.quantity(points[worst], k)
@@ -366,7 +387,7 @@ class _Study:
                 return False
         worst = max(scores)
         inside = (self._unit_point(_halton(i + 1, len(self.toleranced))) for i in range(INTERIOR_POINTS))
-        return all(badness(self.quantity(point, k)) <= worst for point in inside)
+        return all(badness(self.against(point, k)) <= worst for point in inside)
 
     def _unit_point(self, u) -> tuple[float, ...]:
         return tuple(t.parameter.low + ui * (t.parameter.high - t.parameter.low) for t, ui in zip(self.toleranced, u))
@@ -375,13 +396,13 @@ class _Study:
         """The box searched numerically (bounded Powell from the worst point seen) where no corner is sure to
         be the worst."""
         seen = list(starts) + [self._unit_point(_halton(i + 1, len(self.toleranced))) for i in range(INTERIOR_POINTS)]
-        best = max(seen, key=lambda pt: badness(self.quantity(pt, k)))
+        best = max(seen, key=lambda pt: badness(self.against(pt, k)))
         spans = [t.parameter.high - t.parameter.low for t in self.toleranced]
         lows = [t.parameter.low for t in self.toleranced]
 
         def objective(u):
             point = tuple(lo + min(max(ui, 0.0), 1.0) * s for lo, ui, s in zip(lows, u, spans))
-            score = badness(self.quantity(point, k))
+            score = badness(self.against(point, k))
             return -score if math.isfinite(score) else (-1e300 if score > 0 else 1e300)
 
         start = [(b - lo) / s for b, lo, s in zip(best, lows, spans)]
@@ -393,23 +414,30 @@ class _Study:
             options={"maxfev": SEARCH_EVALUATIONS, "xtol": 1e-6, "ftol": 1e-12},
         )
         found = tuple(lo + min(max(ui, 0.0), 1.0) * s for lo, ui, s in zip(lows, result.x, spans))
-        if badness(self.quantity(found, k)) < badness(self.quantity(best, k)):
+        if badness(self.against(found, k)) < badness(self.against(best, k)):
             found = best
         corner = tuple((t.key, _side(t, v)) for t, v in zip(self.toleranced, found))
         return self._case(criterion, self.quantity(found, k), found, method, corner)
 
     def _case(self, criterion: Criterion, value, point, method, corner) -> WorstCase:
         subject = SUBJECTS[criterion.subject]
+        limit = self.limit_at(point, self.model.criteria.index(criterion))
         if value is None:
             compared = math.inf if subject.absent_is_never else None
         else:
             compared = value
-        passed = compared is not None and bool(OPERATORS[criterion.operator](compared, criterion.limit.si))
+        passed = compared is not None and bool(OPERATORS[criterion.operator](compared, limit))
         margin = None
         if value is not None:
-            margin = criterion.limit.si - value if criterion.operator in ("<=", "<") else value - criterion.limit.si
+            margin = limit - value if criterion.operator in ("<=", "<") else value - limit
         return WorstCase(
-            value, passed, margin, corner, method, tuple((t.key, v) for t, v in zip(self.toleranced, point))
+            value,
+            passed,
+            margin,
+            corner,
+            method,
+            tuple((t.key, v) for t, v in zip(self.toleranced, point)),
+            limit if criterion.limit_node is not None else None,
         )
 
     # ------------------------------------------------------------------ limiting values
@@ -429,6 +457,7 @@ class _Study:
             or t.interval
             or not d.solution.closed_form
             or criterion.subject not in ("value", "reach", "time_constant")
+            or criterion.limit_node is not None  # a limit that may move with the parameter: bracketed instead
         ):
             return None
         found, done = within(SOLVE_SECONDS, lambda: self._solve_for(criterion, t), None)
@@ -441,9 +470,9 @@ class _Study:
         if criterion.subject == "time_constant":
             if d.numbers.time_constant_expr is None:
                 return None
-            left, at, level = d.numbers.time_constant_expr, {}, criterion.limit.si
+            left, at, level = d.numbers.time_constant_expr.xreplace(self.chain), {}, criterion.limit.si
         else:
-            left = d.solution.natural + d.solution.forced_closed
+            left = (d.solution.natural + d.solution.forced_closed).xreplace(self.chain)
             if left.has(sp.Heaviside, sp.Piecewise, sp.Integral):
                 return None
             if criterion.subject == "value":
@@ -476,7 +505,7 @@ class _Study:
         j = self.toleranced.index(t)
         point = list(self.nominal_values)
         point[j] = value
-        found = self.quantity(point, k)
+        found = self.against(point, k)
         return found is not None and math.isclose(
             found, criterion.limit.si, rel_tol=1e-6, abs_tol=1e-9 * max(abs(criterion.limit.si), 1e-300)
         )
@@ -491,7 +520,7 @@ class _Study:
         def g(value: float) -> float:
             point = list(self.nominal_values)
             point[j] = value
-            score = badness(self.quantity(point, k)) - limit_score
+            score = badness(self.against(point, k)) - limit_score
             return score if math.isfinite(score) else math.copysign(1e300, score)
 
         g0 = g(t.nominal)
@@ -589,8 +618,51 @@ def final_form(d):
 
 def _with_values(parameters, pairs: list[tuple[Parameter, float]]):
     """Each toleranced parameter at its value; one a switch inherits unchanged is the same Parameter and moves
-    with it."""
-    return tuple(next((replace(p, si=v) for q, v in pairs if q == p), p) for p in parameters)
+    with it; one written in terms of others is worked out again from their new values."""
+    return worked_again(tuple(next((replace(p, si=v) for q, v in pairs if q == p), p) for p in parameters))
+
+
+def worked_again(parameters: tuple[Parameter, ...]) -> tuple[Parameter, ...]:
+    """The parameters written as expressions ("tau = R*C") worked out again from the values of the others."""
+    if not any(p.node is not None for p in parameters):
+        return parameters
+    by_name, done = {p.name: p for p in parameters}, {}
+
+    def value(name: str) -> float:
+        if name not in done:
+            p = by_name[name]
+            done[name] = p.si if p.node is None else si_value(p.node, value)
+        return done[name]
+
+    return tuple(p if p.node is None else replace(p, si=value(p.name)) for p in parameters)
+
+
+def derived_chain(parameters: tuple[Parameter, ...]) -> dict:
+    """Each parameter written as an expression, as that expression in the symbols of the parameters it comes
+    from, so a derivative with respect to R reaches tau = R*C (the chain rule)."""
+    by_name, done = {p.name: p for p in parameters}, {}
+
+    def form(name: str) -> sp.Expr:
+        if name not in done:
+            p = by_name[name]
+            if p.node is None:
+                done[name] = p.symbol
+            else:
+                done[name] = sympy_form(p.node, {n: form(n) for n in names_in(p.node) if n in by_name})
+        return done[name]
+
+    return {p.symbol: form(p.name) for p in parameters if p.node is not None}
+
+
+def _limits_at(criteria: tuple[Criterion, ...], parameters: tuple[Parameter, ...]) -> tuple[Criterion, ...]:
+    """Each criterion whose limit is written in terms of parameters, with that limit worked out at their values."""
+    values = {p.name: p.si for p in parameters}
+    return tuple(
+        c
+        if c.limit_node is None
+        else replace(c, limit=replace(c.limit, si=si_value(c.limit_node, values.__getitem__)))
+        for c in criteria
+    )
 
 
 def _kind_at(kind, parameters):

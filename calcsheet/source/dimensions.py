@@ -8,7 +8,7 @@ import pint
 
 from calcsheet.errors import InputError
 from calcsheet.source import expressions as ex
-from calcsheet.source.units import dimension_text, registry, same_dimension
+from calcsheet.source.units import dimension_text, parse_unit, registry, same_dimension, si_unit
 
 UnitOf = Callable[[str], pint.Unit]
 
@@ -19,6 +19,11 @@ def check_equation(
     """Check that every additive term on both sides has one dimension; return it."""
     terms = ex.additive_terms(equation.left) + ex.additive_terms(equation.right)
     return _common_dimension([node for _, node in terms], _Analyser(unit_of, derivative_unit))
+
+
+def expression_unit(node: ex.Node, unit_of: UnitOf) -> pint.Unit:
+    """The dimension of a value written as an expression ("R*C"), every sum checked term by term."""
+    return _Analyser(unit_of, None).unit(node)
 
 
 class _Analyser:
@@ -32,6 +37,8 @@ class _Analyser:
             return ureg.dimensionless
         if isinstance(node, ex.Name):
             return self.unit_of(node.name)
+        if isinstance(node, ex.Measured):
+            return si_unit(parse_unit(node.unit))  # SI: an offset unit (degC) cannot be multiplied
         if isinstance(node, ex.Derivative):
             if self.derivative_unit is None:
                 raise InputError(f"a derivative ({node.text}) is not allowed here")
