@@ -645,10 +645,11 @@ def derived_chain(parameters: tuple[Parameter, ...]) -> dict:
     def form(name: str) -> sp.Expr:
         if name not in done:
             p = by_name[name]
-            if p.node is None:
+            used = names_in(p.node) & set(by_name) if p.node is not None else set()
+            if not used:  # a stated value, or one worked out from numbers only ("4 * 550 uF"): it does not vary
                 done[name] = p.symbol
             else:
-                done[name] = sympy_form(p.node, {n: form(n) for n in names_in(p.node) if n in by_name})
+                done[name] = sympy_form(p.node, {n: form(n) for n in used})
         return done[name]
 
     return {p.symbol: form(p.name) for p in parameters if p.node is not None}

@@ -197,6 +197,9 @@ class _Builder:
                 errors.add(InputError("the unknown and the variable need different names", "model.variable"))
                 unknown = variable = None
         parameters = errors.attempt(lambda: self.parameters({d.name for d in (unknown, variable) if d}))
+        if kind_use is not None and parameters is not None:  # a slot worked out in a wrong dimension: no equation
+            if errors.attempt(lambda: worked_slot_dimensions(kind_use, parameters) or True) is None:
+                parameters = None
         equation_text = equation = None
         if model_table is not None:
             equation_text = errors.attempt(
@@ -247,7 +250,6 @@ class _Builder:
         plot_to = errors.attempt(lambda: self.plot_end(initial_at, variable)) if variable else None
         kind = None
         if kind_use is not None and parameters is not None:
-            errors.attempt(lambda: worked_slot_dimensions(kind_use, parameters))
             kind = errors.attempt(lambda: kind_checks(kind_use, parameters))
         if kind_use is not None:
             _forcing_keys(errors, self.raw.get("forcing"), kind_use.name)
@@ -552,7 +554,7 @@ class _Builder:
                 raise InputError('the table needs a value, e.g. { value = "47 kohm" }')
             source, note = (self.string(entry, k, f"parameters.{name}.{k}") for k in ("source", "note"))
         table, entry = (entry, entry["value"]) if isinstance(entry, dict) else ({}, entry)
-        if values.is_expression(entry):
+        if values.is_expression(entry, frozenset(self.table("parameters"))):
             return self.worked_parameter(name, entry, table, known or {}, taken, source, note)
         quantity = units.parse_quantity(entry)
         text = entry if isinstance(entry, str) else f"{entry:g}"
@@ -646,7 +648,7 @@ class _Builder:
             self.raw.get("forcing"),
             start,
             self.start_source or "the initial point",
-            limit_names=_names_in_checks(self.raw.get("criteria")),
+            limit_names=_names_in_checks(self.raw.get("criteria")) | _names_in_switches(self.original.get("switch")),
         )
         self.raw = {**self.raw, "parameters": expanded.parameters}
         return expanded.model_table, expanded.use
@@ -747,9 +749,9 @@ class _Builder:
     def limit(self, raw: str, like: Declared, where: str) -> dict:
         """A criterion's limit as Criterion fields: a value ("50 V"), or an expression of the parameters
         ("T_amb + 8.8 K"), worked out in the unit of what it limits."""
-        if not values.is_expression(raw):
-            return {"limit": self.point(raw, like, where)}
         parameters = getattr(self, "known_parameters", None)
+        if not values.is_expression(raw, frozenset(self.table("parameters"))):
+            return {"limit": self.point(raw, like, where)}
         if parameters is None:
             raise InputError(f"'{shortened(raw)}' uses parameters, and they have errors of their own", where)
         known = {p.name: p for p in parameters}
@@ -885,6 +887,15 @@ def _names_in_checks(criteria) -> frozenset[str]:
         return frozenset()
     checks = [entry.get("check") for entry in criteria if isinstance(entry, dict)]
     return frozenset(name for check in checks if isinstance(check, str) for name in _NAME_IN_CHECK.findall(check))
+
+
+def _names_in_switches(switches) -> frozenset[str]:
+    """Every name a switch's values are worked out from ("R_w + R_e"): parameters beside a kind's own."""
+    if not isinstance(switches, list):
+        return frozenset()
+    tables = [entry.get("parameters") for entry in switches if isinstance(entry, dict)]
+    entries = [value for table in tables if isinstance(table, dict) for value in table.values()]
+    return frozenset().union(*(values.names_used(_value_of(entry)) for entry in entries))
 
 
 _NAME_IN_CHECK = re.compile(r"[A-Za-z][A-Za-z0-9_]*")

@@ -11,6 +11,7 @@ itself would call the sum ambiguous. Two absolute temperatures added are refused
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from typing import Callable, Mapping
 
@@ -60,8 +61,9 @@ class Worked:
         return units.registry().Quantity(self.shown, self.unit)
 
 
-def is_expression(raw) -> bool:
-    """Whether ``raw`` is written as an expression rather than as one number with its unit.
+def is_expression(raw, names: frozenset[str] = frozenset()) -> bool:
+    """Whether ``raw`` is written as an expression rather than as one number with its unit (``names``: the
+    parameters, so that "2 R" is an expression missing its '*', not a number with an unknown unit).
 
     A value that reads as a quantity is one; otherwise it is an expression when it parses as one that does more
     than state a number with a unit, or does not begin with a number, so that a mistyped unit ("47 kohmm") is
@@ -74,10 +76,14 @@ def is_expression(raw) -> bool:
     except InputError:
         pass
     try:
-        node = ex.parse_value(raw)
-    except InputError:
-        return not raw.strip()[:1].isdigit() and raw.strip()[:1] not in "+-."
+        node = ex.parse_value(raw, names)
+    except InputError:  # a broken expression is reported as one; text of other characters, as a value
+        words = set(re.findall(r"[A-Za-z_][A-Za-z0-9_]*", raw))
+        return bool(_EXPRESSION_CHARACTERS.fullmatch(raw)) and (any(op in raw for op in "*/+^") or bool(words & names))
     return not isinstance(node, (ex.Number, ex.Measured))
+
+
+_EXPRESSION_CHARACTERS = re.compile(r"[A-Za-z0-9_µμΩ°%\s+\-*/^().]*")
 
 
 def parse(text: str, names: frozenset[str]) -> ex.Node:
@@ -100,7 +106,9 @@ def work_out(node: ex.Node, operands: Mapping[str, Operand]) -> Worked:
         raise InputError(f"'{name}' is not a parameter")
     for measured in _measured(node):
         _quantity(measured)  # a bad unit is reported as such, before dimensions are compared
-    unit = expression_unit(node, lambda name: units.si_unit(operands[name].unit))
+    unit = expression_unit(
+        node, lambda name: units.si_unit(operands[name].unit) if name in operands else units.registry().dimensionless
+    )
     si_unit = units.si_unit(unit)
     reading = _reading(node, operands)
     value = si_value(node, lambda name: operands[name].si)
