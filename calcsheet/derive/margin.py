@@ -659,9 +659,7 @@ def _limits_at(criteria: tuple[Criterion, ...], parameters: tuple[Parameter, ...
     """Each criterion whose limit is written in terms of parameters, with that limit worked out at their values."""
     values = {p.name: p.si for p in parameters}
     return tuple(
-        c
-        if c.limit_node is None
-        else replace(c, limit=replace(c.limit, si=si_value(c.limit_node, values.__getitem__)))
+        c if c.limit_node is None else replace(c, limit=replace(c.limit, si=si_value(c.limit_node, values.__getitem__)))
         for c in criteria
     )
 

@@ -593,7 +593,7 @@ class _Builder:
         node = values.parse(text, frozenset(self.table("parameters")))
         for used in sorted(ex.names_in(node) & taken):
             raise InputError(f"a parameter cannot be written in terms of the unknown or the variable ({used})")
-        worked = values.work_out(node, {n: values.Operand(p.si, p.quantity.units, p.unit_text) for n, p in known.items()})
+        worked = values.work_out(node, _operands(known.values()))
         quantity = worked.quantity()
         scale, offset = units.scale_and_offset(quantity.units)
         return Parameter(
@@ -757,7 +757,7 @@ class _Builder:
         known = {p.name: p for p in parameters}
         node = _wrap_key(lambda: values.parse(raw, frozenset(known)), where)
         worked = _wrap_key(
-            lambda: values.work_out(node, {n: values.Operand(p.si, p.quantity.units, p.unit_text) for n, p in known.items()}),
+            lambda: values.work_out(node, _operands(parameters)),
             where,
         )
         if not units.same_dimension(worked.si_unit, like.unit):
@@ -773,7 +773,8 @@ class _Builder:
                 where,
             )
         shown = like.shown(worked.si)
-        point = Point(f"{_number(shown)} {like.unit_text}".rstrip(), units.registry().Quantity(shown, like.unit), worked.si)
+        quantity = units.registry().Quantity(shown, like.unit)
+        point = Point(f"{_number(shown)} {like.unit_text}".rstrip(), quantity, worked.si)
         return {"limit": point, "limit_expression": " ".join(raw.split()), "limit_node": node}
 
     def condition(
@@ -899,6 +900,11 @@ def _names_in_switches(switches) -> frozenset[str]:
 
 
 _NAME_IN_CHECK = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
+
+
+def _operands(parameters) -> dict[str, values.Operand]:
+    """The parameters as an expression uses them: SI value and the unit each is written in."""
+    return {p.name: values.Operand(p.si, p.quantity.units, p.unit_text) for p in parameters}
 
 
 def _value_of(entry) -> Any:

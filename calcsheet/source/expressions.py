@@ -190,9 +190,8 @@ def _next_quantity(text: str, pos: int, names: frozenset[str]) -> tuple[Token, i
         return Token("number", match.group(0), pos), match.end()
     word = _NAME.match(text, start)
     if word and (word.group(0) in names or word.group(0) in FUNCTIONS or word.group(0) in CONSTANTS):
-        raise InputError(
-            f"'{match.group(0)} {word.group(0)}' in '{text}': write a product with '*' ({match.group(0)}*{word.group(0)})"
-        )
+        number, name = match.group(0), word.group(0)
+        raise InputError(f"'{number} {name}' in '{text}': write a product with '*' ({number}*{name})")
     end = _unit_end(text, start, names)
     measured = Measured(match.group(0), text[start:end])
     return Token("measured", text[pos:end], pos, measured=measured), end

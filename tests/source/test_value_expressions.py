@@ -16,7 +16,6 @@ import pytest
 from click.testing import CliRunner
 
 from calcsheet.cli import main
-from calcsheet.errors import CalcsheetError
 from calcsheet.load.loader import load_model
 from calcsheet.pipeline import build_sheet, render
 
@@ -129,13 +128,15 @@ def test_a_limit_written_from_the_ambient_follows_it_where_a_hand_worked_one_doe
 
 
 def test_the_criteria_table_shows_the_limits_expression_value_and_source_in_every_record(tmp_path):
-    text = cooling('T_amb = "35 degC"\ntau = "6.4 min"', STORY_CHECKS.replace('basis = "common practice"', 'source = "client specification §4.2"'))
+    cited = STORY_CHECKS.replace('basis = "common practice"', 'source = "client specification §4.2"')
+    text = cooling('T_amb = "35 degC"\ntau = "6.4 min"', cited)
     sheet = build_sheet(write(tmp_path, text)).sheet
     out = render(sheet, ("txt", "json", "html"))
     row = next(line for line in out["txt"].splitlines() if line.strip().startswith("tied to the ambient |"))
     assert "T(10 min) >= T_amb + 8.8 K, where T_amb + 8.8 K = 43.80 degC" in row
     assert "client specification §4.2" in row
-    assert "no source given" in next(line for line in out["txt"].splitlines() if "worked out by hand for 35 degC |" in line)
+    by_hand = next(line for line in out["txt"].splitlines() if "worked out by hand for 35 degC |" in line)
+    assert "no source given" in by_hand
     criteria = json.loads(out["json"])["criteria"]
     assert criteria[0]["source"] == "client specification §4.2" and criteria[0]["basis"] is None
     assert criteria[0]["limit"] == {"value": {"value": 43.8, "unit": "degC"}, "expression": "T_amb + 8.8 K"}
