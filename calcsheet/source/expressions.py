@@ -447,6 +447,8 @@ def render(node: Node, times: str = "*") -> str:
     left = _wrap(node.left, level if node.op != "^" else level + 1, times)
     right = _wrap(node.right, level + (0 if node.op in "+*" else 1) if node.op != "^" else level, times)
     spaced = f" {node.op} " if node.op in "+-" else (times if node.op == "*" else node.op)
+    if node.op == "/" and times != "*":  # a hand-check line: "2200 uF / 2", never "uF/2"
+        spaced = " / "
     return f"{left}{spaced}{right}"
 
 
