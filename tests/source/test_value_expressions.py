@@ -260,3 +260,15 @@ def test_a_switch_value_written_from_others_is_worked_out_in_its_interval(tmp_pa
 
 def test_garbage_is_still_reported_as_a_value_not_an_expression(tmp_path):
     refused(tmp_path, cooling('T_amb = "35 degC"\ntau = "print(1); 6 min"'), "parameters.tau", "not a number")
+
+
+def test_a_forcing_value_written_from_a_parameter_is_worked_out(tmp_path):
+    text = (
+        '[sheet]\ntitle = "Step"\n[model]\nkind = "series_rc"\nunknown = "v [V]"\nvariable = "t [s]"\n'
+        '[parameters]\nR = "1 kohm"\nC = "100 uF"\nV_nom = "24 V"\n'
+        '[forcing]\nform = "step"\nafter = "V_nom * 1.1"\nat = "0.5 s"\n[initial]\nvalue = "0 V"\n'
+    )
+    model = load_model(write(tmp_path, text))
+    after = next(p for p in model.parameters if p.name == "V_s_after")
+    assert after.si == pytest.approx((Q(24, "V") * 1.1).to("V").magnitude, rel=1e-12)
+    assert "V_nom" not in model.unused_parameters
