@@ -75,12 +75,30 @@ def is_expression(raw, names: frozenset[str] = frozenset()) -> bool:
         return False
     except InputError:
         pass
+    if _constant_as_unit(raw):
+        return False  # "8 R": a number with a physical constant for its unit, reported as such
     try:
         node = ex.parse_value(raw, names)
     except InputError:  # a broken expression is reported as one; text of other characters, as a value
         words = set(re.findall(r"[A-Za-z_][A-Za-z0-9_]*", raw))
         return bool(_EXPRESSION_CHARACTERS.fullmatch(raw)) and (any(op in raw for op in "*/+^") or bool(words & names))
     return not isinstance(node, (ex.Number, ex.Measured))
+
+
+def _constant_as_unit(raw: str) -> bool:
+    try:
+        node = ex.parse_value(raw)
+    except InputError:
+        return False
+    if not isinstance(node, ex.Measured):
+        return False
+    try:
+        units.parse_unit(node.unit)
+    except units.ConstantAsUnit:
+        return True
+    except InputError:
+        return False
+    return False
 
 
 _EXPRESSION_CHARACTERS = re.compile(r"[A-Za-z0-9_µμΩ°%\s+\-*/^().]*")
