@@ -94,6 +94,10 @@ class Parameter:
     unit_text: str = ""  # the unit the value is written in, for showing the range
     scale: float = 1.0  # written units per SI unit
     offset: float = 0.0  # the written value of SI zero (-273.15 for degC)
+    # A value written as an expression ("R*C", "T_amb + 8.8 K"): as written, and its tree; ``text`` is then
+    # the value it comes to, and the value is worked out again whenever a parameter it uses changes.
+    expression: str = ""
+    node: ex.Node | None = None
 
     @property
     def toleranced(self) -> bool:
@@ -167,6 +171,10 @@ class Criterion:
     limit: Point
     window: Window | None = None  # for max, min and integral
     of: str = ""  # the [[derived]] quantity the subject is about; "" for the unknown itself
+    source: str = ""  # where the limit comes from ("client specification §4.2")
+    basis: str = ""  # or on what basis it is taken ("common practice")
+    limit_expression: str = ""  # a limit written in terms of parameters ("T_amb + 8.8 K"), as written
+    limit_node: ex.Node | None = None  # its tree; ``limit`` is then its value
 
 
 @dataclass(frozen=True)

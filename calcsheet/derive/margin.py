@@ -22,6 +22,8 @@ from calcsheet.derive.budget import within
 from calcsheet.derive.numbers import OPERATORS, compute_numbers
 from calcsheet.model import Criterion, Model, Parameter, Point
 from calcsheet.subjects import SUBJECTS
+from calcsheet.source.expressions import names_in
+from calcsheet.source.value_expressions import si_value, sympy_form
 
 MAX_CORNERS_PARAMETERS = 10  # 2^10 corners; beyond that the box is searched instead
 INTERIOR_POINTS = 16  # interior points of the box compared with its corners (a Halton sequence: no randomness)
@@ -95,6 +97,7 @@ class WorstCase:
     corner: tuple[tuple[str, str], ...]  # (key, MIN or MAX); a searched point gives (key, SI value as text)
     method: str  # CORNERS or SEARCHED (signs change over the box), TOO_MANY
     point: tuple[tuple[str, float], ...] = ()  # the parameter values (SI) at the worst point
+    limit: float | None = None  # SI: a limit written in terms of parameters, worked out at the worst point
 
 
 @dataclass(frozen=True)
@@ -191,6 +194,8 @@ class _Study:
         self.probes = asked if asked is not None else probes(self.model, derivation.numbers)
         self.nominal_values = tuple(t.nominal for t in toleranced)
         self._cache: dict = {}
+        self._limits: dict = {}  # each criterion's limit at the values (it moves where written in parameters)
+        self.chain = derived_chain(self.model.parameters)
         pieces = [i.derivation for i in derivation.intervals] if self.switched else [derivation]
         self.final_forms = [final_form(d) for d in pieces]
         self.nominal = self.evaluate(self.nominal_values)
@@ -206,7 +211,8 @@ class _Study:
         values = tuple(float(v) for v in values)
         if values in self._cache:
             return self._cache[values]
-        model = replace(self._replaced(values), criteria=tuple(p.criterion for p in self.probes))
+        moved = self._replaced(values)
+        model = replace(moved, criteria=_limits_at(tuple(p.criterion for p in self.probes), moved.parameters))
         if self.switched:
             numbers, y = _switched_numbers(model, self.d, self.final_forms)
         else:
@@ -225,7 +231,14 @@ class _Study:
             response=y,
         )
         self._cache[values] = found
+        self._limits[values] = tuple(c.limit.si for c in model.criteria[: len(self.model.criteria)])
         return found
+
+    def limit_at(self, values, k: int) -> float:
+        """Criterion k's limit with the parameters at ``values`` (its own where written in terms of them)."""
+        values = tuple(float(v) for v in values)
+        self.evaluate(values)
+        return self._limits[values][k]
 
     def _replaced(self, values) -> Model:
         """The Model with each toleranced parameter at its value (a switch's own ones in its law)."""
@@ -300,15 +313,15 @@ class _Study:
             expr = d.numbers.time_constant_expr
             if expr is None:
                 return None
-            derivative = sp.diff(expr, p)
+            derivative = sp.diff(expr.xreplace(self.chain), p)
             return _number(derivative.subs(values)), SYMBOLIC, _short(sp.simplify(derivative))
         if subject == "final_value":
             cls = d.classification
             if not cls.constant_coefficients or x in cls.r.free_symbols:
                 return None
-            derivative = sp.diff(cls.r / cls.p, p)
+            derivative = sp.diff((cls.r / cls.p).xreplace(self.chain), p)
             return _number(derivative.subs(values)), SYMBOLIC, _short(sp.simplify(derivative))
-        y = d.solution.natural + d.solution.forced_closed
+        y = (d.solution.natural + d.solution.forced_closed).xreplace(self.chain)
         dy_dp = sp.diff(y, p)
         if subject == "value":
             return _number(dy_dp.subs(values).subs(x, probe.criterion.argument.si)), SYMBOLIC, None
@@ -344,7 +357,7 @@ class _Study:
             return self._searched(k, criterion, badness, [self.nominal_values], TOO_MANY)
         corners = list(itertools.product((0, 1), repeat=n))
         points = [self._corner(c) for c in corners]
-        scores = [badness(self.quantity(pt, k)) for pt in points]
+        scores = [badness(self.against(pt, k)) for pt in points]
         worst = max(range(len(points)), key=lambda i: (scores[i], -i))
         if self._corner_decides(k, corners, scores, badness):
             value = self.quantity(points[worst], k)
@@ -389,7 +402,7 @@ class _Study:
                 return False
         worst = max(scores)
         inside = (self._unit_point(_halton(i + 1, len(self.toleranced))) for i in range(INTERIOR_POINTS))
-        return all(badness(self.quantity(point, k)) <= worst for point in inside)
+        return all(badness(self.against(point, k)) <= worst for point in inside)
 
     def _unit_point(self, u) -> tuple[float, ...]:
         return tuple(t.parameter.low + ui * (t.parameter.high - t.parameter.low) for t, ui in zip(self.toleranced, u))
@@ -398,13 +411,13 @@ class _Study:
         """The box searched numerically (bounded Powell from the worst point seen) where no corner is sure to
         be the worst."""
         seen = list(starts) + [self._unit_point(_halton(i + 1, len(self.toleranced))) for i in range(INTERIOR_POINTS)]
-        best = max(seen, key=lambda pt: badness(self.quantity(pt, k)))
+        best = max(seen, key=lambda pt: badness(self.against(pt, k)))
         spans = [t.parameter.high - t.parameter.low for t in self.toleranced]
         lows = [t.parameter.low for t in self.toleranced]
 
         def objective(u):
             point = tuple(lo + min(max(ui, 0.0), 1.0) * s for lo, ui, s in zip(lows, u, spans))
-            score = badness(self.quantity(point, k))
+            score = badness(self.against(point, k))
             return -score if math.isfinite(score) else (-1e300 if score > 0 else 1e300)
 
         start = [(b - lo) / s for b, lo, s in zip(best, lows, spans)]
@@ -416,23 +429,30 @@ class _Study:
             options={"maxfev": SEARCH_EVALUATIONS, "xtol": 1e-6, "ftol": 1e-12},
         )
         found = tuple(lo + min(max(ui, 0.0), 1.0) * s for lo, ui, s in zip(lows, result.x, spans))
-        if badness(self.quantity(found, k)) < badness(self.quantity(best, k)):
+        if badness(self.against(found, k)) < badness(self.against(best, k)):
             found = best
         corner = tuple((t.key, _side(t, v)) for t, v in zip(self.toleranced, found))
         return self._case(criterion, self.quantity(found, k), found, method, corner)
 
     def _case(self, criterion: Criterion, value, point, method, corner) -> WorstCase:
         subject = SUBJECTS[criterion.subject]
+        limit = self.limit_at(point, self.model.criteria.index(criterion))
         if value is None:
             compared = math.inf if subject.absent_is_never else None
         else:
             compared = value
-        passed = compared is not None and bool(OPERATORS[criterion.operator](compared, criterion.limit.si))
+        passed = compared is not None and bool(OPERATORS[criterion.operator](compared, limit))
         margin = None
         if value is not None:
-            margin = criterion.limit.si - value if criterion.operator in ("<=", "<") else value - criterion.limit.si
+            margin = limit - value if criterion.operator in ("<=", "<") else value - limit
         return WorstCase(
-            value, passed, margin, corner, method, tuple((t.key, v) for t, v in zip(self.toleranced, point))
+            value,
+            passed,
+            margin,
+            corner,
+            method,
+            tuple((t.key, v) for t, v in zip(self.toleranced, point)),
+            limit if criterion.limit_node is not None else None,
         )
 
     # ------------------------------------------------------------------ limiting values
@@ -453,6 +473,7 @@ class _Study:
             or not d.solution.closed_form
             or criterion.subject not in ("value", "reach", "time_constant")
             or criterion.of
+            or criterion.limit_node is not None  # a limit that may move with the parameter: bracketed instead
         ):
             return None
         found, done = within(SOLVE_SECONDS, lambda: self._solve_for(criterion, t), None)
@@ -465,9 +486,9 @@ class _Study:
         if criterion.subject == "time_constant":
             if d.numbers.time_constant_expr is None:
                 return None
-            left, at, level = d.numbers.time_constant_expr, {}, criterion.limit.si
+            left, at, level = d.numbers.time_constant_expr.xreplace(self.chain), {}, criterion.limit.si
         else:
-            left = d.solution.natural + d.solution.forced_closed
+            left = (d.solution.natural + d.solution.forced_closed).xreplace(self.chain)
             if left.has(sp.Heaviside, sp.Piecewise, sp.Integral):
                 return None
             if criterion.subject == "value":
@@ -500,7 +521,7 @@ class _Study:
         j = self.toleranced.index(t)
         point = list(self.nominal_values)
         point[j] = value
-        found = self.quantity(point, k)
+        found = self.against(point, k)
         return found is not None and math.isclose(
             found, criterion.limit.si, rel_tol=1e-6, abs_tol=1e-9 * max(abs(criterion.limit.si), 1e-300)
         )
@@ -542,7 +563,7 @@ class _Study:
         def g(value: float) -> float:
             point = list(self.nominal_values)
             point[j] = value
-            score = badness(self.quantity(point, k)) - limit_score
+            score = badness(self.against(point, k)) - limit_score
             return score if math.isfinite(score) else math.copysign(1e300, score)
 
         return g
@@ -628,8 +649,8 @@ def final_form(d):
 
 def _with_values(parameters, pairs: list[tuple[Parameter, float]]):
     """Each toleranced parameter at its value; one a switch inherits unchanged is the same Parameter and moves
-    with it."""
-    return tuple(next((replace(p, si=v) for q, v in pairs if q == p), p) for p in parameters)
+    with it; one written in terms of others is worked out again from their new values."""
+    return worked_again(tuple(next((replace(p, si=v) for q, v in pairs if q == p), p) for p in parameters))
 
 
 def _kind_at(kind, parameters):
@@ -703,3 +724,45 @@ def _halton(index: int, dimensions: int) -> tuple[float, ...]:
             i //= base
         point.append(r)
     return tuple(point)
+
+
+def worked_again(parameters: tuple[Parameter, ...]) -> tuple[Parameter, ...]:
+    """The parameters written as expressions ("tau = R*C") worked out again from the values of the others."""
+    if not any(p.node is not None for p in parameters):
+        return parameters
+    by_name, done = {p.name: p for p in parameters}, {}
+
+    def value(name: str) -> float:
+        if name not in done:
+            p = by_name[name]
+            done[name] = p.si if p.node is None else si_value(p.node, value)
+        return done[name]
+
+    return tuple(p if p.node is None else replace(p, si=value(p.name)) for p in parameters)
+
+
+def derived_chain(parameters: tuple[Parameter, ...]) -> dict:
+    """Each parameter written as an expression, as that expression in the symbols of the parameters it comes
+    from, so a derivative with respect to R reaches tau = R*C (the chain rule)."""
+    by_name, done = {p.name: p for p in parameters}, {}
+
+    def form(name: str) -> sp.Expr:
+        if name not in done:
+            p = by_name[name]
+            used = names_in(p.node) & set(by_name) if p.node is not None else set()
+            if not used:  # a stated value, or one worked out from numbers only ("4 * 550 uF"): it does not vary
+                done[name] = p.symbol
+            else:
+                done[name] = sympy_form(p.node, {n: form(n) for n in used})
+        return done[name]
+
+    return {p.symbol: form(p.name) for p in parameters if p.node is not None}
+
+
+def _limits_at(criteria: tuple[Criterion, ...], parameters: tuple[Parameter, ...]) -> tuple[Criterion, ...]:
+    """Each criterion whose limit is written in terms of parameters, with that limit worked out at their values."""
+    values = {p.name: p.si for p in parameters}
+    return tuple(
+        c if c.limit_node is None else replace(c, limit=replace(c.limit, si=si_value(c.limit_node, values.__getitem__)))
+        for c in criteria
+    )

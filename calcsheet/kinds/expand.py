@@ -9,7 +9,7 @@ from calcsheet.errors import InputError, key_part
 from calcsheet.kinds import kind_named
 from calcsheet.kinds.base import START_SLOT, Kind, KindUse, check_slot_dimension
 from calcsheet.kinds.forcing import forcing_from_table
-from calcsheet.source import units
+from calcsheet.source import units, value_expressions
 from calcsheet.source.declared import declared_parts
 
 
@@ -20,9 +20,12 @@ class Expanded:
     use: KindUse
 
 
-def expand_kind(model_table: dict, parameters: dict, forcing_table, start=None, start_source: str = "") -> Expanded:
+def expand_kind(
+    model_table: dict, parameters: dict, forcing_table, start=None, start_source: str = "", limit_names=frozenset()
+) -> Expanded:
     """``start`` is where the interval begins as written (``[initial] at`` or a switch's ``at``): a law with
-    its own clock (a tank's volume law) is then written from it."""
+    its own clock (a tank's volume law) is then written from it. ``limit_names``: names the criteria's limits
+    use, which may be parameters beside the kind's own."""
     name = model_table.get("kind")
     if not isinstance(name, str):
         raise InputError("must be the name of a kind in quotes (see `calcsheet kinds`)", "model.kind")
@@ -63,7 +66,7 @@ def expand_kind(model_table: dict, parameters: dict, forcing_table, start=None, 
         generated_names = frozenset(forcing.parameters)
     else:
         generated_names = frozenset()
-    _check_parameters(kind, params, forcing_table, generated_names)
+    _check_parameters(kind, params, forcing_table, generated_names | frozenset(limit_names))
     if shifted:
         params[START_SLOT] = {"value": start, "source": start_source or "start of the interval"}
     table = {"equation": equation, "unknown": unknown, "variable": variable}
@@ -135,7 +138,8 @@ def _unit_of(declared_text: str) -> str:
 
 def _check_parameters(kind: Kind, params: dict, forcing_table, generated_names: frozenset = frozenset()) -> None:
     """Each slot present (or defaulted) with its dimension; nothing else but the names a [forcing]
-    form generates, or the values an expression forcing names."""
+    form generates or the criteria's limits use, the values an expression forcing names, or values other
+    values are worked out from ("T_s" in "T_s - T_inf")."""
     known = {s.name for s in kind.slots}
     for slot in kind.slots:
         where = f"parameters.{slot.name}"
@@ -156,12 +160,15 @@ def _check_parameters(kind: Kind, params: dict, forcing_table, generated_names: 
             params[slot.name] = {"value": slot.default, "source": f"default of kind {kind.name}"}
         raw = params[slot.name]
         value = raw.get("value") if isinstance(raw, dict) else raw
+        if value_expressions.is_expression(value):
+            continue  # its dimension is known once the parameters it uses are read: worked_slot_dimensions
         try:
             quantity = units.parse_quantity(value)
         except InputError as error:
             raise error.located(key=where)
         check_slot_dimension(kind, slot, quantity, where)
-    others = set(params) - known - generated_names
+    helpers = set().union(*(value_expressions.names_used(_value(raw)) for raw in params.values()))
+    others = set(params) - known - generated_names - helpers
     expression_forcing = isinstance(forcing_table, dict) and forcing_table.get("form") == "expression"
     for name in sorted(others):
         if not expression_forcing:
@@ -175,6 +182,18 @@ def _check_parameters(kind: Kind, params: dict, forcing_table, generated_names: 
                 f"{', '.join(s.name for s in kind.slots)}){through_forcing}",
                 f"parameters.{key_part(name)}",
             )
+
+
+def worked_slot_dimensions(use: KindUse, parameters) -> None:
+    """Each slot whose value is written as an expression has the slot's dimension, once it is worked out."""
+    kind = kind_named(use.name)
+    for p in parameters:
+        if p.node is not None and p.name in use.slot_names:
+            check_slot_dimension(kind, kind.slot(p.name), p.quantity, f"parameters.{key_part(p.name)}")
+
+
+def _value(raw):
+    return raw.get("value") if isinstance(raw, dict) else raw
 
 
 def _nonzero(raw) -> bool:

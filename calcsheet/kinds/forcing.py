@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from calcsheet.errors import InputError
-from calcsheet.source import units
+from calcsheet.source import units, value_expressions
 
 
 @dataclass(frozen=True)
@@ -113,7 +113,7 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
             (
                 _unit_text(table[r.key], f"forcing.{r.key}")
                 for r in form.roles
-                if r.dimension == "source" and r.key in table
+                if r.dimension == "source" and r.key in table and not value_expressions.is_expression(table[r.key])
             ),
             "",
         )
@@ -135,9 +135,12 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
                 raise InputError(f"a {name} needs '{role.key}'", f"forcing.{role.key}")
             unit = "" if role.dimension == "angle" or "()" in expected[role.dimension] else expected[role.dimension]
             raw = f"{role.default} {unit}".strip()
-        if role.difference and isinstance(raw, str):
-            raw = _as_difference(raw)
-        _check(raw, expected[role.dimension], role, name)
+        if value_expressions.is_expression(raw):
+            pass  # worked out with the parameters; the equation's unit check and the kind's slots check it
+        else:
+            if role.difference and isinstance(raw, str):
+                raw = _as_difference(raw)
+            _check(raw, expected[role.dimension], role, name)
         parameter = f"{source}_{role.suffix}"
         parameters[parameter] = raw
         names[role.suffix] = parameter

@@ -16,7 +16,8 @@ from typing import Any
 import sympy as sp
 
 from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part, shortened
-from calcsheet.kinds.expand import expand_kind, kind_checks
+from calcsheet.formatting import number as _number
+from calcsheet.kinds.expand import expand_kind, kind_checks, worked_slot_dimensions
 from calcsheet.load import sheet_keys
 from calcsheet.load.derived import KEYS as DERIVED_KEYS, read_derived
 from calcsheet.load.overrides import apply_overrides
@@ -39,6 +40,7 @@ from calcsheet.model import (
 from calcsheet.load.package_values import fill_package_values
 from calcsheet.source import expressions as ex
 from calcsheet.source import units
+from calcsheet.source import value_expressions as values
 from calcsheet.source.declared import declared_parts
 from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
 from calcsheet.source.singular import Values, check_equation_values
@@ -77,7 +79,7 @@ TABLES = {
     "parameters": None,  # any parameter name
     "initial": {"at", "value"},
     "evaluate": {"at", "reach", "extremes", "integrals"},
-    "criteria": {"text", "check"},
+    "criteria": {"text", "check", "source", "basis"},
     "plot": {"to"},
     "signoff": set(sheet_keys.ROLES),
     "revisions": {"revision", "date", "description"},
@@ -237,6 +239,9 @@ class _Builder:
                 errors.add(InputError("the unknown and the variable need different names", "model.variable"))
                 unknown = variable = None
         parameters = errors.attempt(lambda: self.parameters({d.name for d in (unknown, variable) if d}))
+        if kind_use is not None and parameters is not None:  # a slot worked out in a wrong dimension: no equation
+            if errors.attempt(lambda: worked_slot_dimensions(kind_use, parameters) or True) is None:
+                parameters = None
         equation_text = equation = None
         if model_table is not None:
             equation_text = errors.attempt(
@@ -285,7 +290,7 @@ class _Builder:
         reach = errors.attempt(lambda: self.points(evaluate, "reach", unknown), ()) if unknown else ()
         extremes = errors.attempt(lambda: self.extremes(evaluate, variable, initial_at), ()) if variable else ()
         criteria = (
-            errors.attempt(lambda: self.criteria(unknown, variable, initial_at, derived), ())
+            errors.attempt(lambda: self.criteria(unknown, variable, initial_at, derived, parameters), ())
             if unknown and variable
             else ()
         )
@@ -304,6 +309,8 @@ class _Builder:
         if symbolic is None:  # every part above reports its own error; this is a guard only
             raise InputError("the model could not be read", "model")
         lhs, rhs, unused = symbolic
+        in_limits = set().union(*(ex.names_in(c.limit_node) for c in criteria if c.limit_node is not None))
+        unused = tuple(name for name in unused if name not in in_limits)
         model = Model(
             path=self.file,
             sheet=sheet,
@@ -567,19 +574,31 @@ class _Builder:
         )
 
     def parameters(self, taken: set[str]) -> tuple[Parameter, ...]:
-        """Every parameter, each checked on its own; ``taken``: the names of the unknown and the variable."""
+        """Every parameter, each checked on its own; one written as an expression after those it uses.
+        ``taken``: the names of the unknown and the variable."""
         table = self.table("parameters")
-        errors, result = [], []
-        for name, entry in table.items():
+        errors, done, failed = [], {}, set()
+        uses = {name: values.names_used(_value_of(entry)) for name, entry in table.items()}
+        cycle = values.dependency_cycle({name: used for name, used in uses.items() if used})
+        if cycle:
+            raise InputError(
+                f"the parameters are defined from each other in a circle: {' -> '.join(cycle)}",
+                f"parameters.{key_part(cycle[0])}",
+            )
+        for name in _dependency_order(uses):
             try:
-                result.append(self.parameter(name, entry, taken))
+                broken = sorted(uses[name] & failed)
+                if broken:
+                    raise InputError(f"uses {', '.join(broken)}, whose value has an error")
+                done[name] = self.parameter(name, table[name], taken, done)
             except InputError as error:
+                failed.add(name)
                 errors.append(error.located(key=f"parameters.{key_part(name)}"))
         if errors:
             raise ErrorList(errors)
-        return tuple(result)
+        return tuple(done[name] for name in table)
 
-    def parameter(self, name: str, entry: Any, taken: set[str]) -> Parameter:
+    def parameter(self, name: str, entry: Any, taken: set[str], known: dict | None = None) -> Parameter:
         if not ex.NAME_PATTERN.match(name) or "__" in name:
             raise InputError("a parameter name is letters, digits and single underscores, starting with a letter")
         if name in RESERVED or name in taken:
@@ -597,6 +616,8 @@ class _Builder:
                 raise InputError('the table needs a value, e.g. { value = "47 kohm" }')
             source, note = (self.string(entry, k, f"parameters.{name}.{k}") for k in ("source", "note"))
         table, entry = (entry, entry["value"]) if isinstance(entry, dict) else ({}, entry)
+        if values.is_expression(entry, frozenset(self.table("parameters"))):
+            return self.worked_parameter(name, entry, table, known or {}, taken, source, note)
         quantity = units.parse_quantity(entry)
         text = entry if isinstance(entry, str) else f"{entry:g}"
         si_value = units.to_si(quantity)
@@ -618,6 +639,39 @@ class _Builder:
             unit_text=_unit_as_written(text),
             scale=scale,
             offset=offset,
+        )
+
+    def worked_parameter(
+        self, name: str, text: str, table: dict, known: dict, taken: set[str], source: str, note: str
+    ) -> Parameter:
+        """A parameter written as an expression of numbers with units and of other parameters: "R*C"."""
+        ranged = [key for key in RANGE_KEYS if key in table]
+        if ranged:
+            raise InputError(
+                f"a value written as an expression takes its range from the parameters it uses; give the "
+                f"{ranged[0]} to them, not to {name}",
+                f"parameters.{key_part(name)}.{ranged[0]}",
+            )
+        node = values.parse(text, frozenset(self.table("parameters")))
+        for used in sorted(ex.names_in(node) & taken):
+            raise InputError(f"a parameter cannot be written in terms of the unknown or the variable ({used})")
+        worked = values.work_out(node, _operands(known.values()))
+        quantity = worked.quantity()
+        scale, offset = units.scale_and_offset(quantity.units)
+        return Parameter(
+            name=name,
+            text=worked.text,
+            quantity=quantity,
+            si=worked.si,
+            si_unit=worked.si_unit,
+            symbol=_parameter_symbol(name, worked.si),
+            source=source,
+            note=note,
+            unit_text=worked.unit_text,
+            scale=scale,
+            offset=offset,
+            expression=" ".join(text.split()),
+            node=node,
         )
 
     def point(self, raw: Any, like: Declared, where: str) -> Point:
@@ -656,6 +710,7 @@ class _Builder:
             self.raw.get("forcing"),
             start,
             self.start_source or "the initial point",
+            limit_names=_names_in_checks(self.raw.get("criteria")) | _names_in_switches(self.original.get("switch")),
         )
         self.raw = {**self.raw, "parameters": expanded.parameters}
         return expanded.model_table, expanded.use
@@ -753,24 +808,72 @@ class _Builder:
         return IntegralRequest(of, window, item.strip())
 
     def criteria(
-        self, unknown: Declared, variable: Declared, initial_at: Point | None = None, derived=None
+        self, unknown: Declared, variable: Declared, initial_at: Point | None = None, derived=None, parameters=None
     ) -> tuple[Criterion, ...]:
-        """Every [[criteria]] table, each checked on its own."""
+        """Every [[criteria]] table, each checked on its own; ``parameters`` for limits written in terms of them
+        (None when they have errors of their own)."""
         errors, result = _Errors(), []
+        self.known_parameters = parameters
         for index, entry in enumerate(self.raw.get("criteria", [])):
             where = f"criteria[{index + 1}]"
             text = errors.attempt(lambda: self.string(entry, "text", f"{where}.text"), "")
             check = errors.attempt(lambda: self.string(entry, "check", f"{where}.check", required=True))
+            cited = errors.attempt(lambda: self.citation(entry, where), ("", ""))
             if check is not None:
-                result.append(
-                    errors.attempt(
-                        lambda: self.criterion(
-                            text or check, check, unknown, variable, f"{where}.check", initial_at, derived or {}
-                        )
+                found = errors.attempt(
+                    lambda: self.criterion(
+                        text or check, check, unknown, variable, f"{where}.check", initial_at, derived or {}
                     )
                 )
+                if found is not None:
+                    result.append(replace(found, source=cited[0], basis=cited[1]))
         errors.raise_any()
         return tuple(result)
+
+    def citation(self, entry: dict, where: str) -> tuple[str, str]:
+        """Where a criterion's limit comes from: ``source`` (a document) or ``basis`` (common practice)."""
+        source = self.string(entry, "source", f"{where}.source")
+        basis = self.string(entry, "basis", f"{where}.basis")
+        if source and basis:
+            raise InputError(
+                "give either source (a document the limit is taken from) or basis (common practice, say), not both",
+                f"{where}.basis",
+            )
+        for key, value in (("source", source), ("basis", basis)):
+            if key in entry and not value:
+                raise InputError("must not be empty; leave the key out when no source is known", f"{where}.{key}")
+        return source, basis
+
+    def limit(self, raw: str, like: Declared, where: str) -> dict:
+        """A criterion's limit as Criterion fields: a value ("50 V"), or an expression of the parameters
+        ("T_amb + 8.8 K"), worked out in the unit of what it limits."""
+        parameters = getattr(self, "known_parameters", None)
+        if not values.is_expression(raw, frozenset(self.table("parameters"))):
+            return {"limit": self.point(raw, like, where)}
+        if parameters is None:
+            raise InputError(f"'{shortened(raw)}' uses parameters, and they have errors of their own", where)
+        known = {p.name: p for p in parameters}
+        node = _wrap_key(lambda: values.parse(raw, frozenset(known)), where)
+        worked = _wrap_key(
+            lambda: values.work_out(node, _operands(parameters)),
+            where,
+        )
+        if not units.same_dimension(worked.si_unit, like.unit):
+            raise InputError(
+                f"'{shortened(raw)}' has dimension {units.dimension_text(worked.si_unit)}, but {like.name} is in "
+                f"{like.unit_text or 'no unit'} ({units.dimension_text(like.unit)})",
+                where,
+            )
+        if units.is_offset(like.unit) and worked.reading == values.DIFFERENCE:
+            raise InputError(
+                f"'{shortened(raw)}' is a temperature difference, but {like.name} is a temperature in "
+                f"{like.unit_text}; a limit on it is a temperature, such as T_amb + 8.8 K",
+                where,
+            )
+        shown = like.shown(worked.si)
+        quantity = units.registry().Quantity(shown, like.unit)
+        point = Point(f"{_number(shown)} {like.unit_text}".rstrip(), quantity, worked.si)
+        return {"limit": point, "limit_expression": " ".join(raw.split()), "limit_node": node}
 
     def condition(
         self,
@@ -815,7 +918,7 @@ class _Builder:
             subject=CONDITION_SUBJECT[operator],
             argument=None,
             operator=operator,
-            limit=self.point(match.group("limit").strip(), derived[of].declared if of else unknown, where),
+            **self.limit(match.group("limit").strip(), derived[of].declared if of else unknown, where),
             window=self.window(
                 window.group("start"), window.group("end"), window.group("open"), variable, initial_at, where
             ),
@@ -893,7 +996,7 @@ class _Builder:
             subject=found.name,
             argument=argument,
             operator=match.group("op"),
-            limit=self.point(match.group("limit").strip(), limit_like, where),
+            **self.limit(match.group("limit").strip(), limit_like, where),
             window=window,
             of=of,
         )
@@ -939,6 +1042,53 @@ def _used_derived(declared, available: dict, criteria, integrals) -> tuple[Deriv
     named = {c.of for c in criteria if c.of} | {i.of for i in integrals}
     taken = {q.name for q in declared}
     return tuple(declared) + tuple(q for name, q in available.items() if name in named and name not in taken)
+
+
+def _names_in_checks(criteria) -> frozenset[str]:
+    """Every name written in the criteria's checks (a limit may use a parameter beside a kind's own)."""
+    if not isinstance(criteria, list):
+        return frozenset()
+    checks = [entry.get("check") for entry in criteria if isinstance(entry, dict)]
+    return frozenset(name for check in checks if isinstance(check, str) for name in _NAME_IN_CHECK.findall(check))
+
+
+def _names_in_switches(switches) -> frozenset[str]:
+    """Every name a switch's values are worked out from ("R_w + R_e"): parameters beside a kind's own."""
+    if not isinstance(switches, list):
+        return frozenset()
+    tables = [entry.get("parameters") for entry in switches if isinstance(entry, dict)]
+    entries = [value for table in tables if isinstance(table, dict) for value in table.values()]
+    return frozenset().union(*(values.names_used(_value_of(entry)) for entry in entries))
+
+
+_NAME_IN_CHECK = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
+
+
+def _operands(parameters) -> dict[str, values.Operand]:
+    """The parameters as an expression uses them: SI value and the unit each is written in."""
+    return {p.name: values.Operand(p.si, p.quantity.units, p.unit_text) for p in parameters}
+
+
+def _value_of(entry) -> Any:
+    """A parameter's value as written, from a plain entry or a table."""
+    return entry.get("value") if isinstance(entry, dict) else entry
+
+
+def _dependency_order(uses: dict[str, set[str]]) -> list[str]:
+    """The parameters in their written order, each moved after those it uses (no cycle: checked before)."""
+    order, placed = [], set()
+
+    def place(name: str) -> None:
+        if name in placed:
+            return
+        placed.add(name)
+        for used in sorted(uses.get(name, set()) & set(uses)):
+            place(used)
+        order.append(name)
+
+    for name in uses:
+        place(name)
+    return order
 
 
 def _unit_as_written(text: str) -> str:
@@ -993,6 +1143,7 @@ def _symbolic_equation(
             "" if initial_at is None else initial_at.text,
         ),
     )
+    used |= set().union(*(ex.names_in(p.node) for p in parameters if p.node is not None))  # helpers of values
     symbols = {p.name: p.symbol for p in parameters}
     symbols[unknown.name] = unknown.symbol
     symbols[variable.name] = variable.symbol

@@ -46,6 +46,8 @@ def node_latex(node: ex.Node, inline: bool = False) -> str:
         return r"\pi" if node.name == "pi" else symbol_latex(node.name)
     if isinstance(node, ex.Derivative):
         return derivative_latex(node.of, node.wrt)
+    if isinstance(node, ex.Measured):  # a number with its unit, in a value
+        return rf"{_number(node.number)}\ \mathrm{{{node.unit}}}"
     if isinstance(node, ex.Unary):
         return f"{node.op}{_wrapped(node.operand, 3, inline=inline)}"
     if isinstance(node, ex.Call):
@@ -72,6 +74,8 @@ def _wrapped(node: ex.Node, level: int, right: bool = False, inline: bool = Fals
         own = _LEVEL[node.op]
     elif isinstance(node, ex.Unary):
         own = 0 if right else 3
+    elif isinstance(node, ex.Measured):
+        own = 2 if level > 2 else 5  # a number with its unit is a product: (550 uF)^2
     else:
         own = 5 if not (isinstance(node, ex.Binary) and level == 5) else 2  # a fraction as a base
     return rf"\left({text}\right)" if own < level else text

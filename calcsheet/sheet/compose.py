@@ -57,6 +57,7 @@ from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_words, whatif_words
 from calcsheet.sheet.derived_words import derived_section, has_derived
 from calcsheet.sheet.record import build_record
+from calcsheet.sheet.worked_values import check_cell, hand_check_blocks, parameter_source, source_cell
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
 from calcsheet.subjects import INTEGRAL, SUBJECTS, UNKNOWN
 
@@ -303,7 +304,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
             Math(latex(p.symbol), p.name),
             p.text,
             f"{number(p.si)} {_si_text(p)}".rstrip(),
-            p.source or "not stated",
+            parameter_source(p),
             p.note,
         )
         for p in m.parameters
@@ -317,6 +318,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
         ),
         Equation(Math(equation_latex(m.equation), m.equation_text), "from the law" if m.kind else "as stated"),
         Table(("Symbol", "Value", "SI value", "Source", "Note"), rows, "Parameters", key="parameters"),
+        *hand_check_blocks(m.parameters),
         Table(
             ("Condition", "Value"),
             (
@@ -711,8 +713,18 @@ def _reach_remark(r, m) -> str:
 
 def criteria_table(m, verdicts) -> Table:
     return Table(
-        ("Criterion", "Check", "Found", "Margin", "Use of limit", "Result"),
-        tuple((v.criterion.text, v.criterion.check, _found(v, m), *_margin_cells(v), _result(v)) for v in verdicts),
+        ("Criterion", "Check", "Source of limit", "Found", "Margin", "Use of limit", "Result"),
+        tuple(
+            (
+                v.criterion.text,
+                check_cell(v.criterion),
+                source_cell(v.criterion),
+                _found(v, m),
+                *_margin_cells(v),
+                _result(v),
+            )
+            for v in verdicts
+        ),
         "Acceptance criteria",
         row_status=tuple({"pass": "pass", "fail": "fail"}.get(_status(v), "") for v in verdicts),
         key="criteria",

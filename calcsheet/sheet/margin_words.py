@@ -145,6 +145,8 @@ def _worst_blocks(mg: Margin, m, verdicts) -> list:
             status.append("")
             continue
         value = in_units(w.value, like) if w.value is not None else _absent(v.criterion)
+        if w.limit is not None:  # a limit written in terms of parameters moves with them
+            value = f"{value} (limit there {in_units(w.limit, like)})"
         margin = "n/a" if w.margin is None else difference_text(w.margin, like)
         rows.append(
             (
@@ -397,6 +399,7 @@ def criteria_margin(d, criteria: list[dict]) -> list[dict]:
                 else {"value": rounded(w.margin * like.scale), "unit": _difference_unit(like.unit_text)},
                 "corner": {_parameter_name(_toleranced(mg, k)): side for k, side in w.corner},
                 "method": w.method,
+                **({"limit": record_value(w.limit, like)} if w.limit is not None else {}),
             }
         )
         result.append(

@@ -41,7 +41,14 @@ def build_record(d, n) -> dict:
             "unknown": {"name": m.unknown.name, "unit": m.unknown.unit_text},
             "variable": {"name": m.variable.name, "unit": m.variable.unit_text},
             "parameters": [
-                {"name": p.name, "value": p.text, "si": rounded(p.si), "source": p.source, "note": p.note}
+                {
+                    "name": p.name,
+                    "value": p.text,
+                    "si": rounded(p.si),
+                    "source": p.source,
+                    "note": p.note,
+                    **({"expression": p.expression} if p.expression else {}),
+                }
                 for p in m.parameters
             ],
             "initial": {
@@ -133,6 +140,9 @@ def results_record(m, num) -> dict:
             {
                 "text": v.criterion.text,
                 "check": v.criterion.check,
+                "source": v.criterion.source or None,
+                "basis": v.criterion.basis or None,
+                "limit": _limit(v.criterion, m),
                 "passed": v.passed,
                 "status": getattr(v, "status", "pass" if v.passed else "fail"),
                 "not_assessed_because": getattr(v, "code", "") or None,
@@ -143,6 +153,12 @@ def results_record(m, num) -> dict:
         ],
         "extremes": [_extreme(e, m) for e in getattr(num, "extremes", ())],
     }
+
+
+def _limit(criterion, m) -> dict:
+    """The limit in its own unit, and the expression it was worked out from (null when written as a value)."""
+    like = m.unknown if SUBJECTS[criterion.subject].found == UNKNOWN else m.variable
+    return {"value": record_value(criterion.limit.si, like), "expression": criterion.limit_expression or None}
 
 
 def _extreme(e, m) -> dict:

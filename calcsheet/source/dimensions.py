@@ -8,7 +8,7 @@ import pint
 
 from calcsheet.errors import InputError
 from calcsheet.source import expressions as ex
-from calcsheet.source.units import dimension_text, registry, same_dimension
+from calcsheet.source.units import dimension_text, parse_unit, registry, same_dimension, si_unit
 
 UnitOf = Callable[[str], pint.Unit]
 
@@ -32,6 +32,11 @@ def check_expression(
     return [(term, analyser.unit(term)) for term in terms if not _is_zero(term)]
 
 
+def expression_unit(node: ex.Node, unit_of: UnitOf) -> pint.Unit:
+    """The dimension of a value written as an expression ("R*C"), every sum checked term by term."""
+    return _Analyser(unit_of, None).unit(node)
+
+
 class _Analyser:
     def __init__(self, unit_of: UnitOf, derivative_unit):
         self.unit_of = unit_of
@@ -43,6 +48,8 @@ class _Analyser:
             return ureg.dimensionless
         if isinstance(node, ex.Name):
             return self.unit_of(node.name)
+        if isinstance(node, ex.Measured):
+            return si_unit(parse_unit(node.unit))  # SI: an offset unit (degC) cannot be multiplied
         if isinstance(node, ex.Derivative):
             if self.derivative_unit is None:
                 raise InputError(f"a derivative ({node.text}) is not allowed here")

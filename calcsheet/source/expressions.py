@@ -75,6 +75,14 @@ class Name:
 
 
 @dataclass(frozen=True)
+class Measured:
+    """A number with its unit, as written in a value: "550 uF", "8.8 K" (only in values, never in equations)."""
+
+    number: str
+    unit: str
+
+
+@dataclass(frozen=True)
 class Derivative:
     """d^order(of)/d(wrt)^order, as written."""
 
@@ -103,7 +111,7 @@ class Call:
     argument: "Node"
 
 
-Node = Union[Number, Name, Derivative, Unary, Binary, Call]
+Node = Union[Number, Name, Measured, Derivative, Unary, Binary, Call]
 
 
 @dataclass(frozen=True)
@@ -115,17 +123,19 @@ class Equation:
 # ------------------------------------------------------------------------------ tokenizer
 @dataclass(frozen=True)
 class Token:
-    kind: str  # number, name, derivative, op, end
+    kind: str  # number, name, derivative, measured, op, end
     text: str
     position: int
     derivative: Derivative | None = None
+    measured: Measured | None = None
 
 
-def tokenize(text: str, names: frozenset[str] = frozenset()) -> list[Token]:
+def tokenize(text: str, names: frozenset[str] = frozenset(), quantities: bool = False) -> list[Token]:
     """Split ``text`` into tokens; any character outside the grammar is refused.
 
     ``dX/dY`` is a derivative unless both ``dX`` and ``dY`` are known names (``names``), so a
-    ratio such as ``d_i/d_o`` of two parameters stays a ratio.
+    ratio such as ``d_i/d_o`` of two parameters stays a ratio. ``quantities``: a value, where a number may
+    carry its unit ("4 * 550 uF"); there no derivative is read, and a name after a number is its unit.
     """
     if len(text) > MAX_LENGTH:
         raise InputError(f"expression is longer than {MAX_LENGTH} characters")
@@ -136,7 +146,7 @@ def tokenize(text: str, names: frozenset[str] = frozenset()) -> list[Token]:
         if char.isspace():
             pos += 1
             continue
-        token, pos = _next_token(text, pos, names)
+        token, pos = _next_quantity(text, pos, names) if quantities else _next_token(text, pos, names)
         tokens.append(token)
     tokens.append(Token("end", "", len(text)))
     return tokens
@@ -161,13 +171,69 @@ def _next_token(text: str, pos: int, names: frozenset[str]) -> tuple[Token, int]
     raise InputError(f"unexpected character '{text[pos]}' at position {pos + 1} in '{text}'")
 
 
+def _next_quantity(text: str, pos: int, names: frozenset[str]) -> tuple[Token, int]:
+    """A token of a value: a number with the unit that follows it ("550 uF", "15 W/(m^2*K)"), or as in equations
+    but without derivatives (a value is no function of the variable)."""
+    match = _NUMBER.match(text, pos)
+    if not match:
+        for op in _OPERATORS:
+            if text.startswith(op, pos):
+                return Token("op", op, pos), pos + len(op)
+        name = _NAME.match(text, pos)
+        if name:
+            return Token("name", name.group(0), pos), name.end()
+        raise InputError(f"unexpected character '{text[pos]}' at position {pos + 1} in '{text}'")
+    start = match.end()
+    while start < len(text) and text[start] == " ":
+        start += 1
+    if start >= len(text) or not _UNIT_START.match(text[start]):
+        return Token("number", match.group(0), pos), match.end()
+    word = _NAME.match(text, start)
+    if word and (word.group(0) in names or word.group(0) in FUNCTIONS or word.group(0) in CONSTANTS):
+        number, name = match.group(0), word.group(0)
+        raise InputError(f"'{number} {name}' in '{text}': write a product with '*' ({number}*{name})")
+    end = _unit_end(text, start, names)
+    measured = Measured(match.group(0), text[start:end])
+    return Token("measured", text[pos:end], pos, measured=measured), end
+
+
+_UNIT_START = re.compile(r"[A-Za-z_µμΩ°%]")
+
+
+def _unit_end(text: str, pos: int, names: frozenset[str]) -> int:
+    """Where a unit written after a number ends: at a space, a sign, a bracket it did not open, or a '*' or '/'
+    followed by a number or a parameter ("550 uF/2", "550 uF*n")."""
+    depth, index = 0, pos
+    while index < len(text):
+        char = text[index]
+        if char.isspace() or char == "+" or char == "=":
+            break
+        if char == "-" and not (depth or text[index - 1] == "^"):
+            break
+        if char == "(":
+            depth += 1
+        elif char == ")":
+            if depth == 0:
+                break
+            depth -= 1
+        elif text.startswith("**", index):
+            index += 2
+            continue
+        elif char in "*/" and depth == 0:
+            after = _NAME.match(text, index + 1)
+            if (after is None and text[index + 1 : index + 2] != "(") or (after and after.group(0) in names):
+                break
+        index += 1
+    return index
+
+
 # --------------------------------------------------------------------------------- parser
 class _Parser:
     """Recursive descent over the token list; one method per grammar rule."""
 
-    def __init__(self, text: str, names: frozenset[str] = frozenset()):
+    def __init__(self, text: str, names: frozenset[str] = frozenset(), quantities: bool = False):
         self.text = text
-        self.tokens = tokenize(text, names)
+        self.tokens = tokenize(text, names, quantities)
         self.index = 0
         self.nesting = 0
 
@@ -238,6 +304,9 @@ class _Parser:
         if token.kind == "derivative":
             self.take()
             return token.derivative
+        if token.kind == "measured":
+            self.take()
+            return token.measured
         if token.kind == "name":
             return self.name_or_call()
         if self.accept("("):
@@ -271,6 +340,19 @@ def parse_expression(text: str) -> Node:
     if not isinstance(text, str) or not text.strip():
         raise InputError("expression is empty")
     parser = _Parser(text)
+    node = parser.expression()
+    if parser.current.kind != "end":
+        raise parser.error("expected an operator or the end")
+    _refuse_deep_tree(node, text)
+    return node
+
+
+def parse_value(text: str, names: frozenset[str] = frozenset()) -> Node:
+    """Parse a value written as an expression of numbers with units and parameters: "4 * 550 uF", "R*C",
+    "T_amb + 8.8 K". ``names``: the parameters, so "2 R" is refused rather than read as a unit."""
+    if not isinstance(text, str) or not text.strip():
+        raise InputError("expression is empty")
+    parser = _Parser(text, names, quantities=True)
     node = parser.expression()
     if parser.current.kind != "end":
         raise parser.error("expected an operator or the end")
@@ -346,29 +428,36 @@ def additive_terms(node: Node, sign: int = 1) -> list[tuple[int, Node]]:
     return [(sign, node)]
 
 
-def render(node: Node) -> str:
-    """Write a tree back as text in the input notation (for messages and the record)."""
+def render(node: Node, times: str = "*") -> str:
+    """Write a tree back as text in the input notation (for messages and the record); ``times``: how a product
+    is written (" × " for a hand-check line)."""
     if isinstance(node, Number):
         return node.text
     if isinstance(node, Name):
         return node.name
     if isinstance(node, Derivative):
         return node.text
+    if isinstance(node, Measured):
+        return f"{node.number} {node.unit}"
     if isinstance(node, Unary):
-        return f"{node.op}{_wrap(node.operand, 3)}"
+        return f"{node.op}{_wrap(node.operand, 3, times)}"
     if isinstance(node, Call):
-        return f"{node.function}({render(node.argument)})"
+        return f"{node.function}({render(node.argument, times)})"
     level = _LEVEL[node.op]
-    left = _wrap(node.left, level if node.op != "^" else level + 1)
-    right = _wrap(node.right, level + (0 if node.op in "+*" else 1) if node.op != "^" else level)
-    spaced = f" {node.op} " if node.op in "+-" else node.op
+    left = _wrap(node.left, level if node.op != "^" else level + 1, times)
+    right = _wrap(node.right, level + (0 if node.op in "+*" else 1) if node.op != "^" else level, times)
+    spaced = f" {node.op} " if node.op in "+-" else (times if node.op == "*" else node.op)
+    if node.op == "/" and times != "*":  # a hand-check line: "2200 uF / 2", never "uF/2"
+        spaced = " / "
     return f"{left}{spaced}{right}"
 
 
 _LEVEL = {"+": 1, "-": 1, "*": 2, "/": 2, "^": 4}
 
 
-def _wrap(node: Node, level: int) -> str:
-    text = render(node)
+def _wrap(node: Node, level: int, times: str = "*") -> str:
+    text = render(node, times)
     own = _LEVEL.get(node.op, 5) if isinstance(node, Binary) else (3 if isinstance(node, Unary) else 5)
+    if isinstance(node, Measured) and level > 2:
+        own = 2  # a number with its unit is a product: (550 uF)^2
     return f"({text})" if own < level else text

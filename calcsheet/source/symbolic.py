@@ -41,6 +41,10 @@ def to_sympy(
         if node.name == "pi":
             return sp.pi
         raise InputError(f"'{node.name}' is not defined (not a parameter, the unknown or the variable)")
+    if isinstance(node, ex.Measured):  # a number with its unit, in a value: its SI value
+        from calcsheet.source.units import parse_quantity, to_si
+
+        return sp.Float(to_si(parse_quantity(f"{node.number} {node.unit}")), 15)
     if isinstance(node, ex.Derivative):
         if derivative is None:
             raise InputError(f"a derivative ({node.text}) is not allowed here")

@@ -25,7 +25,7 @@ def test_a_reach_in_seconds_is_answered_in_the_minutes_of_its_limit(tmp_path):
         b for s in built.sheet.sections for b in s.blocks if getattr(b, "caption", "") == "Acceptance criteria"
     )
     row = next(r for r in table.rows if r[1] == verdict.criterion.check)
-    assert row[2].endswith(" min") and row[4] == f"{100 * 15 / minutes:.1f} %"
+    assert row[3].endswith(" min") and row[5] == f"{100 * 15 / minutes:.1f} %"  # after the source column
 
 
 def test_an_absolute_temperature_has_its_margin_in_kelvin_and_no_utilisation(tmp_path):

@@ -359,13 +359,15 @@ def test_constants_list_comes_from_pint_itself():
 
 
 # ------------------------------------------------------------ class: messages in our words
-def test_a_calculation_as_a_value_gets_the_product_written_as_one_number(tmp_path):
+def test_a_calculation_where_only_a_value_is_read_gets_the_product_written_as_one_number(tmp_path):
+    # A parameter may be an expression ("4 * 550 uF", tests/source/test_value_expressions.py); an initial
+    # value is one number with its unit.
     refused(
         tmp_path,
-        free(parameters='R = "10 kohm"\nC = "4 * 550 uF"'),
-        "parameters.C",
+        free(initial="2 * 2.5 V"),
+        "initial.value",
         "is a calculation",
-        'write the product as one number: "2200 uF"',
+        'write the product as one number: "5 V"',
     )
 
 
