@@ -157,7 +157,9 @@ def results_record(m, num) -> dict:
 
 def _limit(criterion, m) -> dict:
     """The limit in its own unit, and the expression it was worked out from (null when written as a value)."""
-    like = m.unknown if SUBJECTS[criterion.subject].found == UNKNOWN else m.variable
+    from calcsheet.sheet.compose import measured_like  # compose imports this module
+
+    like = measured_like(m, criterion)
     return {"value": record_value(criterion.limit.si, like), "expression": criterion.limit_expression or None}
 
 
