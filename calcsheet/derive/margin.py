@@ -248,33 +248,6 @@ class _Study:
             return None
         return found - (self.limit_at(values, k) - self.model.criteria[k].limit.si)
 
-    # ------------------------------------------------------------------ the margin
-    def margin(self) -> Margin:
-        sensitivities = tuple(s for q in range(len(self.probes)) for s in self.sensitivities(q))
-        worst = tuple(self.worst_case(k) for k in range(len(self.model.criteria)))
-        limits = tuple(
-            tuple(self.limiting_value(k, j) for j in range(len(self.toleranced)))
-            for k in range(len(self.model.criteria))
-        )
-        return Margin(self.toleranced, self.probes, self.nominal[0], sensitivities, worst, limits, self.switched)
-
-    # ------------------------------------------------------------------ sensitivities
-    def sensitivities(self, q: int) -> list[Sensitivity]:
-        y0 = self.nominal[0][q]
-        if y0 is None:
-            return []
-        result = []
-        for j, t in enumerate(self.toleranced):
-            found = self.symbolic(q, t)
-            if found is None:
-                found = (self.difference(q, j), DIFFERENCE, None)
-            derivative, method, expression = found
-            if derivative is None:
-                continue
-            normalised = derivative * t.nominal / y0 if y0 != 0 else None
-            result.append(Sensitivity(q, t.key, derivative, normalised, method, expression))
-        return result
-
     def _replaced(self, values) -> Model:
         """The Model with each toleranced parameter at its value (a switch's own ones in its law)."""
         pairs = [(t.parameter, v) for t, v in zip(self.toleranced, values)]

@@ -16,6 +16,7 @@ from calcsheet.errors import InputError, key_part, shortened
 from calcsheet.load.overrides import check_like, settable
 from calcsheet.source import units
 from calcsheet.source.tolerances import RANGE_KEYS
+from calcsheet.source.value_expressions import is_expression
 
 MIN_STEPS, MAX_STEPS = 2, 1000
 _NUMBER_FIRST = re.compile(r"\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*")
@@ -87,6 +88,12 @@ def apply_sweep_range(
         from calcsheet.kinds import kind_named
 
         value = next(s.default for s in kind_named(raw["model"]["kind"]).slots if s.name == name)
+    if is_expression(value, frozenset(parameters)):
+        raise InputError(
+            f"'{shortened(name)}' is worked out from '{shortened(value)}', so it has no value of its own to vary; "
+            "vary the values it uses, or write it as one value",
+            key,
+        )
     nominal = _si_or_none(value)
     table = {k: v for k, v in entry.items() if k not in RANGE_KEYS} if isinstance(entry, dict) else {}
     table["value"] = value

@@ -8,7 +8,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from calcsheet.errors import InputError
-from calcsheet.load.package_file import Package, find_package, read_package
+from calcsheet.load.package_file import PACKAGE_FILE, Package, find_package, read_package
 from calcsheet.load.references import SheetEntry, build_order, sheet_entries
 
 
@@ -65,25 +65,19 @@ class Job:
 
 
 def jobs_for(items: tuple[str, ...], writes: bool = False) -> list[Job]:
-    """The sheets named on the command line, each with its package if it has one. A folder holding a package
-    file stands for the package's sheets in build order."""
+    """The sheets named on the command line. A package's folder stands for its sheets in build order, sharing the
+    records of the sheets already built; a sheet named on its own finds its package values as it is built."""
     from calcsheet.pipeline import collect_inputs, refuse_same_stems
 
-    sessions: dict[Path, PackageSession] = {}
     found: list[Job] = []
     for item in items:
         path = Path(item)
-        file = find_package(path) if path.exists() else None
-        if file is None:
-            found.extend(Job(each, None) for each in collect_inputs((item,), writes))
-            continue
-        if file not in sessions:
-            sessions[file] = PackageSession.open(file)
-        session = sessions[file]
-        if path.is_dir() and path.resolve() == file.parent.resolve():
+        file = find_package(path) if path.is_dir() else None
+        if file is not None and path.resolve() == file.parent.resolve():
+            session = PackageSession.open(file)
             found.extend(Job(e.path, session, whole_package=True) for e in session.order)
-        else:
-            found.extend(Job(p, session) for p in collect_inputs((item,), writes) if p.name != "package.toml")
+        else:  # a sheet on its own, or one of a package: build_sheet finds its package values itself
+            found.extend(Job(p, None) for p in collect_inputs((item,), writes) if p.name != PACKAGE_FILE)
     if writes:
         refuse_same_stems([j.path for j in found])
     return found

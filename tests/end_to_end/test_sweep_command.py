@@ -13,6 +13,7 @@ import pytest
 from click.testing import CliRunner
 
 from calcsheet.cli import main
+from tests.end_to_end.demo_verdicts import copy_demo
 
 ROOT = Path(__file__).resolve().parents[2]
 BUS = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
@@ -25,7 +26,22 @@ def _run(args):
 
 @pytest.fixture
 def bus(tmp_path):
-    return Path(shutil.copy(BUS, tmp_path / BUS.name))
+    """The bus demo with its capacitance written as one value (the demo works it out from the bank: a sweep
+    varies a value of its own, see test_a_worked_value_cannot_be_varied)."""
+    text = BUS.read_text(encoding="utf-8")
+    written = 'C = { value = "2 * 2200 uF / 2"'
+    assert written in text
+    copy = tmp_path / BUS.name
+    copy.write_text(text.replace(written, 'C = { value = "2200 uF"'), encoding="utf-8")
+    return copy
+
+
+def test_a_worked_value_cannot_be_varied(tmp_path):
+    copy = Path(shutil.copy(BUS, tmp_path / BUS.name))
+    result = _run([str(copy), "--vary", "C=1000 uF..3000 uF", "--out", str(tmp_path / "out")])
+    assert result.exit_code == 2
+    assert "--vary C" in result.output and "worked out from '2 * 2200 uF / 2'" in result.output
+    assert not (tmp_path / "out").exists()
 
 
 def test_writes_table_and_plot_beside_the_input_byte_identical_twice(bus):
@@ -107,7 +123,7 @@ def test_a_missing_input_is_one_line(tmp_path):
 
 
 def test_kind_sweep_on_a_temperature_in_degc(tmp_path):
-    flange = Path(shutil.copy(FLANGE, tmp_path / FLANGE.name))
+    flange = copy_demo(FLANGE, tmp_path)
     result = _run([str(flange), "--vary", "T_inf=0 degC..40 degC", "--steps", "9", "--format", "csv"])
     assert result.exit_code == 0, result.output
     # T(45 min) = T_inf + (480 degC - T_inf) exp(-45 min / tau), tau = rho V c_p/(h A) = 15.57 min (lumped body,
@@ -121,7 +137,7 @@ def test_kind_sweep_on_a_temperature_in_degc(tmp_path):
 def test_points_where_the_kind_does_not_hold_are_not_assessed(tmp_path):
     # a lumped body needs Bi = h L_c / k <= 0.1 (the kind cites standard heat-transfer texts): at h = 5000 W/(m^2*K) the
     # flange (L_c = V/A = 3.6 mm, k = 50 W/(m*K)) has Bi = 0.36, beyond the kind's limit, so no verdict there
-    flange = Path(shutil.copy(FLANGE, tmp_path / FLANGE.name))
+    flange = copy_demo(FLANGE, tmp_path)
     result = _run([str(flange), "--vary", "h=5 W/(m^2*K)..5000 W/(m^2*K)", "--log", "--steps", "4", "--format", "csv"])
     assert result.exit_code == 0, result.output
     rows = list(csv.reader(io.StringIO((tmp_path / "flange-cool-down.sweep-h.csv").read_text(encoding="utf-8"))))

@@ -20,6 +20,7 @@ import pytest
 from pypdf import PdfReader
 
 from .helpers import COUPON, coupon, run, sign
+from tests.end_to_end.demo_verdicts import copy_demo
 
 needs_git = pytest.mark.skipif(shutil.which("git") is None, reason="git not installed")
 # tau 40 s -> 120 s: T(60 s) = 20 + 70 exp(-60/120) = 62.46 degC > 60 degC, so the criterion flips to FAIL.
@@ -261,7 +262,7 @@ def test_a_switched_model_marks_the_interval_whose_parameter_changed(tmp_path):
     text = VALVE.read_text(encoding="utf-8")
     was = 'R = { value = "80 ohm", min = "78 ohm", max = "86.3 ohm"'
     assert was in text
-    old = coupon(tmp_path, text, "old.toml")
+    old = copy_demo(VALVE, tmp_path, "old.toml")  # with the package file it takes V_s from
     new = coupon(tmp_path, text.replace(was, 'R = { value = "90 ohm", min = "78 ohm", max = "96.3 ohm"'), "valve.toml")
     txt, _, record, _ = build(new, tmp_path / "out", "--changes-since", old, "--format", "txt,json")
     sections: dict[str, list[str]] = {}
