@@ -7,14 +7,17 @@ naming the file. ``build_sheet`` is the pipeline's, passed in by the caller: rev
 
 from __future__ import annotations
 
+import io
 import json
 import shutil
 import subprocess
+import tarfile
 import tempfile
 from dataclasses import dataclass
 from pathlib import Path
 
 from calcsheet.errors import CalcsheetError, InputError
+from calcsheet.load.package_file import PACKAGE_FILE, find_package
 from calcsheet.sheet.change_facts import Baseline
 
 GIT_SECONDS = 60  # a guard against a hung git, never reached by a working one
@@ -30,11 +33,16 @@ class Earlier:
 
 
 def at_revision(path: Path, rev: str, build_sheet) -> Earlier:
-    """``path`` as git held it at ``rev``, built in a temporary folder; named ``REV:path``."""
+    """``path`` as git held it at ``rev``, built in a temporary folder; named ``REV:path``. A sheet of a package
+    is built inside its whole package folder as git held it then, so the basis values and other sheets'
+    results it used then are the ones compared."""
     name = f"{rev}:{path}"
     text = git_text(rev, path)
+    package = find_package(path)
     with tempfile.TemporaryDirectory() as folder:
-        copy = Path(folder) / path.name
+        copy = _package_at(rev, package.parent, path, Path(folder)) if package is not None else None
+        if copy is None:
+            copy = Path(folder) / path.name
         copy.write_text(text, encoding="utf-8")
         try:
             record = build_sheet(copy).sheet.record
@@ -43,6 +51,21 @@ def at_revision(path: Path, rev: str, build_sheet) -> Earlier:
             raise
     revision = _sheet_revision(record)
     return Earlier(record, name, Baseline(str(path), revision, _git(["rev-parse", "--short", _commit(rev)], path)))
+
+
+def _package_at(rev: str, package_folder: Path, path: Path, folder: Path) -> Path | None:
+    """The package folder as git held it at ``rev``, written under ``folder``; where the sheet's copy goes in it
+    (None when git cannot give the folder: then the sheet is built on its own)."""
+    anchor = package_folder / PACKAGE_FILE  # git runs in the package folder
+    done = _run(["archive", "--format=tar", _commit(rev), "--", "."], anchor)
+    if done.returncode != 0:
+        return None
+    prefix = _git(["rev-parse", "--show-prefix"], anchor)
+    with tarfile.open(fileobj=io.BytesIO(done.stdout)) as archive:
+        archive.extractall(folder, filter="data")
+    copy = folder / prefix / path.resolve().relative_to(package_folder.resolve())
+    copy.parent.mkdir(parents=True, exist_ok=True)
+    return copy
 
 
 def from_file(name: str, build_sheet) -> Earlier:

@@ -323,3 +323,41 @@ def test_the_demo_folder_is_a_package(tmp_path):
     root = Path(__file__).resolve().parents[2]
     code, stdout, _ = run("impact", root / "inputs", "basis.T_amb_summer")
     assert code == 0 and "EL-030" in stdout and "EL-031" in stdout
+
+
+def _git(folder: Path, *args: str) -> None:
+    import subprocess
+
+    subprocess.run(
+        ["git", *args],
+        cwd=folder,
+        check=True,
+        capture_output=True,
+        env={
+            "GIT_AUTHOR_NAME": "T",
+            "GIT_AUTHOR_EMAIL": "t@example.invalid",
+            "GIT_COMMITTER_NAME": "T",
+            "GIT_COMMITTER_EMAIL": "t@example.invalid",
+            "HOME": str(folder),
+            "PATH": __import__("os").environ["PATH"],
+        },
+    )
+
+
+def test_diff_at_a_revision_sees_the_basis_as_it_was_then(tmp_path):
+    # A change to the design basis alone reaches the sheet that uses it, and the sheet that uses that sheet's
+    # result: diff --rev builds the earlier side inside the whole package as git held it.
+    folder = write_package(tmp_path / "repo" if (tmp_path / "repo").mkdir() is None else tmp_path)
+    _git(folder, "init", "-q")
+    _git(folder, "add", ".")
+    _git(folder, "commit", "-q", "-m", "first")
+    (folder / "package.toml").write_text(PACKAGE.replace('"30 degC"', '"20 degC"'), encoding="utf-8")
+    code, stdout, stderr = run("diff", "--rev", "HEAD", folder / "cool.toml", "--format", "json")
+    assert code == 0, stderr
+    changes = json.loads(stdout)["comparisons"][0]["changes"]
+    parameter = next(c for c in changes if c["subject"] == "parameter" and c["name"] == "T_a")
+    assert (parameter["old"], parameter["new"]) == ("30 degC", "20 degC")
+    reach = next(c for c in changes if c["subject"] == "reach")
+    old_min, new_min = 2000 / 60 * math.log(20 / 10), 2000 / 60 * math.log(30 / 20)
+    assert reach["old"]["value"] == pytest.approx(old_min, rel=1e-8)
+    assert reach["new"]["value"] == pytest.approx(new_min, rel=1e-8)
