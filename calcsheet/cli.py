@@ -57,6 +57,15 @@ def _neutralise_bad_source_date_epoch() -> None:
     help="Add a section 'Changes since revision ...' comparing each INPUT with its version at git revision REV "
     "(or with the file OLD, an input or JSON record), and mark the changed rows.",
 )
+@click.option("--force", is_flag=True, help="Build every sheet again, ignoring the build cache.")
+@click.option(
+    "--jobs",
+    "workers",
+    type=click.IntRange(min=1),
+    default=None,
+    help="Sheets built at once, each in its own process (default: the number of cores).",
+)
+@click.option("--quiet", is_flag=True, help="Print nothing but errors.")
 def build(
     inputs: tuple[str, ...],
     out_dir: str,
@@ -64,10 +73,16 @@ def build(
     style: str | None,
     assignments: tuple[str, ...],
     since: str | None,
+    force: bool,
+    workers: int | None,
+    quiet: bool,
 ) -> None:
-    """Build a sheet for each INPUT (file or folder of .toml files) into --out."""
-    from calcsheet.pipeline import DEFAULT_FORMATS, collect_inputs, parse_formats, render, with_changes_since
-    from calcsheet.pipeline import write_outputs
+    """Build a sheet for each INPUT (file or folder of .toml files) into --out. A package's sheets that have not
+    changed since the last build into the same --out are reused from its build cache (--force builds all)."""
+    from calcsheet.package.build_run import BuildRun
+    from calcsheet.package.schedule import default_jobs
+    from calcsheet.package.session import jobs_for
+    from calcsheet.pipeline import DEFAULT_FORMATS, collect_inputs, parse_formats
     from calcsheet.writers import WRITERS
 
     chosen = _guard(lambda: parse_formats(formats, tuple(WRITERS)) if formats else DEFAULT_FORMATS)
@@ -75,40 +90,35 @@ def build(
     overrides = _guard(lambda: _assignments(assignments))
     if since is not None and Path(since).is_file() and len(_guard(lambda: collect_inputs(inputs))) != 1:
         _guard(lambda: _refuse("compares one input with one earlier file: give a single INPUT", since))
-    jobs, failures, done = [], {}, {}
-
-    def one(built) -> int:
-        if since is not None:
-            built = with_changes_since(built, since)
-        package = next((j.session.package for j in jobs if j.path == built.path and j.session), None)
-        house = style_dir or (Path(built.sheet.style) if built.sheet.style else None)
-        house = house or (package.style if package else None)
-        rendered = render(built.sheet, chosen, house)
-        stem = built.path.stem + (".whatif" if overrides else "")  # a what-if never overwrites the issued sheet
-        written = write_outputs(Path(out_dir), stem, rendered)  # an OSError is the user's: see _run_each
-        click.echo(f"{built.path}: {_summary(built.derivation)} -> {', '.join(str(w) for w in written)}")
-        done[built.path] = (built, _pages(rendered.get("pdf")))
-        return _issue_guard(built, EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED)
-
-    worst = _run_each(inputs, one, writes=True, overrides=overrides, jobs=jobs, failures=failures)
+    jobs = _guard(lambda: jobs_for(inputs, writes=True))
+    tty = sys.stdout.isatty() and not quiet
+    run = BuildRun(
+        out_dir=Path(out_dir),
+        formats=chosen,
+        style=style_dir,
+        overrides=overrides,
+        since=since,
+        force=force,
+        describe=_summary,
+        say=(lambda line: None) if quiet or tty else click.echo,
+        warn=lambda line: click.echo(line, err=True),
+    )
+    if tty:
+        with click.progressbar(
+            length=len(jobs), label="building", item_show_func=lambda p: str(p) if p else "", show_pos=True
+        ) as bar:
+            worst = run.run(jobs, workers or default_jobs(), on_step=lambda path: bar.update(1, path))
+    else:
+        worst = run.run(jobs, workers or default_jobs())
     if not overrides:
-        _write_registers(jobs, done, failures, Path(out_dir))
+        _write_registers(jobs, run.done, run.failures, Path(out_dir), quiet)
     sys.exit(worst)
 
 
-def _pages(pdf: bytes | None) -> int | None:
-    if pdf is None:
-        return None
-    import io
-
-    from pypdf import PdfReader
-
-    return len(PdfReader(io.BytesIO(pdf)).pages)
-
-
-def _write_registers(jobs, done: dict, failures: dict, out_dir: Path) -> None:
-    """A package built through its folder gets its register beside the sheets: register.csv, .json and .html."""
-    from calcsheet.package.register import built_row, failed_row, register_csv, register_html, register_json
+def _write_registers(jobs, done: dict, failures: dict, out_dir: Path, quiet: bool = False) -> None:
+    """A package built through its folder gets its register beside the sheets: register.csv, .json and .html
+    (``done``: each built sheet's row facts, fresh or from the build cache)."""
+    from calcsheet.package.register import failed_row, register_csv, register_html, register_json, row_from_facts
     from calcsheet.pipeline import write_file
 
     sessions = {id(j.session): j.session for j in jobs if j.whole_package}
@@ -120,7 +130,7 @@ def _write_registers(jobs, done: dict, failures: dict, out_dir: Path) -> None:
                 for n in entry.upstream
             )
             if entry.path in done:
-                rows.append(built_row(entry, done[entry.path][0], done[entry.path][1], upstream))
+                rows.append(row_from_facts(entry, done[entry.path], upstream))
             else:
                 rows.append(failed_row(entry, failures.get(entry.path, "not built"), upstream))
         package = session.package
@@ -130,7 +140,8 @@ def _write_registers(jobs, done: dict, failures: dict, out_dir: Path) -> None:
             ("register.html", register_html(package, rows)),
         ):
             target = _guard(lambda: _os_guarded(lambda: write_file(out_dir / name, text), str(out_dir / name)))
-            click.echo(f"{package.file}: register -> {target}")
+            if not quiet:
+                click.echo(f"{package.file}: register -> {target}")
 
 
 @main.command()
@@ -414,6 +425,8 @@ def new(name: str, file: str | None) -> None:
 
 
 def _assignments(assignments: tuple[str, ...]) -> tuple[tuple[str, str], ...]:
+    if not assignments:
+        return ()  # and sympy, which the override parser brings, stays unimported
     from calcsheet.load.overrides import parse_assignment
 
     return tuple(parse_assignment(text) for text in assignments)

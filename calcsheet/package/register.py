@@ -36,6 +36,12 @@ class Row:
 
 
 def built_row(entry: SheetEntry, built, pages: int | None, upstream: tuple[str, ...]) -> Row:
+    return row_from_facts(entry, row_facts(built, pages), upstream)
+
+
+def row_facts(built, pages: int | None) -> dict:
+    """What the register shows of a built sheet, as plain values: the build cache keeps them, so that a
+    sheet reused from the cache gets its row without being built."""
     from calcsheet.review.status import sheet_status
 
     state = sheet_status(built)
@@ -48,22 +54,23 @@ def built_row(entry: SheetEntry, built, pages: int | None, upstream: tuple[str, 
         if v.status == "pass" and w is not None and not w.passed
     ]
     info = built.derivation.model.sheet
-    return Row(
-        file=str(entry.path),
-        number=info.number,
-        title=info.title,
-        revision=info.revision,
-        status=info.status,
-        verdict="PASS" if built.derivation.passed else "FAIL",
-        criteria=(f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria")
+    return {
+        "number": info.number,
+        "title": info.title,
+        "revision": info.revision,
+        "status": info.status,
+        "verdict": "PASS" if built.derivation.passed else "FAIL",
+        "criteria": (f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria")
         + (f"; fail at worst case: {', '.join(at_worst)}" if at_worst else ""),
-        verification="passed" if built.derivation.verification.passed else "FAILED",
-        signoff={r.role: r.state for r in state.roles},
-        fingerprint=state.fingerprint,
-        pages=pages,
-        basis=entry.basis_used,
-        upstream=upstream,
-    )
+        "verification": "passed" if built.derivation.verification.passed else "FAILED",
+        "signoff": {r.role: r.state for r in state.roles},
+        "fingerprint": state.fingerprint,
+        "pages": pages,
+    }
+
+
+def row_from_facts(entry: SheetEntry, facts: dict, upstream: tuple[str, ...]) -> Row:
+    return Row(file=str(entry.path), basis=entry.basis_used, upstream=upstream, **facts)
 
 
 def failed_row(entry: SheetEntry, problem: str, upstream: tuple[str, ...]) -> Row:
