@@ -97,6 +97,7 @@ class BuildRun:
     def run(self, jobs: list, workers: int, on_step=None) -> int:
         """Build every job (session.Job) in dependency order; ``on_step(path)`` after each."""
         self._versions = None
+        self._digests: dict[str, str] = {}
         self._records: dict = {}  # (session id, number) -> record or ("failed", message)
         steps, self._jobs = [], {}
         for index, job in enumerate(jobs):
@@ -152,12 +153,16 @@ class BuildRun:
         package = job.session.package
         entry = self._entry(job)
         basis = {name: package.basis[name].entry for name in entry.basis_used}
-        styles = [s for s in (self.style, package.style, _named_style(job.path)) if s is not None]
-        settings = {"formats": list(self.formats), "epoch": source_date_epoch(), "styles": [str(s) for s in styles]}
-        key = cache.sheet_key(job.path, basis, upstream, None, settings, self._versions)
-        for folder in styles:
-            key = cache.sheet_key(job.path, {}, {}, folder, {"key": key}, {})
-        return key
+        folders = [cache.default_styles_folder(), self.style, package.style, _named_style(job.path)]
+        styles = {str(f): self._digest(f) for f in folders if f is not None}
+        settings = {"formats": list(self.formats), "epoch": source_date_epoch()}
+        return cache.sheet_key(job.path, basis, upstream, styles, settings, self._versions)
+
+    def _digest(self, folder: Path) -> str:
+        """A style folder's digest, read once per build."""
+        if str(folder) not in self._digests:
+            self._digests[str(folder)] = cache.folder_digest(str(folder)) if folder.is_dir() else ""
+        return self._digests[str(folder)]
 
     def _start(self, step):
         job = self._jobs[step.name]

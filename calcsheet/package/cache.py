@@ -6,7 +6,6 @@ from __future__ import annotations
 
 import hashlib
 import json
-from functools import lru_cache
 from importlib import metadata, resources
 from pathlib import Path
 
@@ -32,7 +31,6 @@ def library_versions() -> dict[str, str]:
     return versions
 
 
-@lru_cache(maxsize=None)
 def folder_digest(folder: str) -> str:
     """A hash of every file's relative name and bytes under ``folder`` (a style folder)."""
     digest = hashlib.sha256()
@@ -55,21 +53,20 @@ def sheet_key(
     path: Path,
     basis: dict[str, dict],
     upstream: dict[str, dict],
-    style: Path | None,
+    styles: dict[str, str],
     settings: dict,
     versions: dict[str, str],
 ) -> str:
     """The hash of one sheet's input bytes and name, the basis values it uses (name -> table as written), its
-    upstream sheets' records (number -> record), the default and house style files, the build's settings
-    (formats, SOURCE_DATE_EPOCH) and the library versions."""
+    upstream sheets' records (number -> record), the style folders' digests (folder -> ``folder_digest``, the
+    default style's among them), the build's settings (formats, SOURCE_DATE_EPOCH) and the library versions."""
     parts = {
         "entry": ENTRY_VERSION,
         "input": hashlib.sha256(path.read_bytes()).hexdigest(),
         "name": str(path),
         "basis": basis,
         "upstream": {number: hashlib.sha256(canonical(r).encode()).hexdigest() for number, r in upstream.items()},
-        "styles": folder_digest(str(default_styles_folder())),
-        "house": folder_digest(str(style)) if style is not None and style.is_dir() else "",
+        "styles": styles,
         "settings": settings,
         "versions": versions,
     }
