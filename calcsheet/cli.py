@@ -131,6 +131,22 @@ def _write_registers(jobs, done: dict, failures: dict, out_dir: Path) -> None:
         ):
             target = _guard(lambda: _os_guarded(lambda: write_file(out_dir / name, text), str(out_dir / name)))
             click.echo(f"{package.file}: register -> {target}")
+        _write_bound_pdf(package, rows, [done.get(e.path) for e in session.entries], out_dir)
+
+
+def _write_bound_pdf(package, rows: list, built: list, out_dir: Path) -> None:
+    """The package's bound PDF, made from the sheet PDFs this build wrote; only when PDFs were asked for."""
+    if not any(b is not None and b[1] is not None for b in built):
+        return
+    from calcsheet.package.bound import bind, bound_file_name
+    from calcsheet.pipeline import write_file
+
+    files = {i: out_dir / f"{b[0].path.stem}.pdf" for i, b in enumerate(built) if b is not None}
+    pdfs = {i: _guard(lambda f=f: _os_guarded(f.read_bytes, str(f))) for i, f in files.items()}
+    target = out_dir / bound_file_name(package.number)
+    data = bind(package, rows, pdfs)
+    _guard(lambda: _os_guarded(lambda: write_file(target, data), str(target)))
+    click.echo(f"{package.file}: bound PDF -> {target}")
 
 
 @main.command()
