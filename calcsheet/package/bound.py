@@ -23,6 +23,7 @@ from markupsafe import escape
 from calcsheet.errors import visible
 from calcsheet.load.package_file import Package
 from calcsheet.package.register import ROLES, Row
+from calcsheet.writers.fonts import FACES
 
 # Contents rows link to this made-up address, numbered by sheet; pypdf turns each into a jump to the sheet.
 _LINK = "https://sheet.invalid/"
@@ -42,7 +43,7 @@ def bind(package: Package, rows: list[Row], sheet_pdfs: dict[int, bytes]) -> byt
     """The bound PDF. ``sheet_pdfs`` maps a row's index to that sheet's PDF bytes; rows without one (a sheet
     that did not build) are listed in the contents and left out."""
     from pypdf import PdfReader, PdfWriter, Transformation
-    from pypdf.generic import ArrayObject, ByteStringObject, NameObject
+    from pypdf.generic import ArrayObject, ByteStringObject
 
     readers = {i: PdfReader(io.BytesIO(data)) for i, data in sorted(sheet_pdfs.items())}
     counts = {i: len(r.pages) for i, r in readers.items()}
@@ -60,7 +61,7 @@ def bind(package: Package, rows: list[Row], sheet_pdfs: dict[int, bytes]) -> byt
     for i, reader in readers.items():
         parent = writer.add_outline_item(_sheet_label(rows[i]), starts[i])
         _copy_outline(writer, reader, reader.outline, parent, starts[i], top=True)
-    _links_to_sheets(writer, len(front_reader.pages), starts, ArrayObject, NameObject)
+    _links_to_sheets(writer, len(front_reader.pages), starts)
 
     stamps = PdfReader(io.BytesIO(_stamp_pages(package, total)))
     for index, page in enumerate(writer.pages):
@@ -114,8 +115,10 @@ def _copy_outline(writer, reader, items, parent, start: int, top: bool) -> None:
         last = writer.add_outline_item(visible(str(item.title)), start + page, parent=parent)
 
 
-def _links_to_sheets(writer, front_pages: int, starts: dict[int, int], ArrayObject, NameObject) -> None:
+def _links_to_sheets(writer, front_pages: int, starts: dict[int, int]) -> None:
     """The contents table's placeholder links become jumps to each sheet's first page."""
+    from pypdf.generic import ArrayObject, NameObject
+
     for page in writer.pages[:front_pages]:
         for annotation in page.get("/Annots", []):
             annotation = annotation.get_object()
@@ -257,10 +260,7 @@ def _stamp_pages(package: Package, total: int) -> bytes:
 _FONT_FACES = "\n".join(
     f'@font-face {{ font-family: "Calcsheet Sans"; font-weight: {weight}; font-style: {style}; '
     f'src: url("calcsheet-font:{name}"); }}'
-    for name, (weight, style) in {
-        "DejaVuSans.ttf": ("normal", "normal"),
-        "DejaVuSans-Bold.ttf": ("bold", "normal"),
-    }.items()
+    for name, (weight, style) in FACES.items()
 )
 
 
