@@ -57,9 +57,9 @@ def bind(package: Package, rows: list[Row], sheet_pdfs: dict[int, bytes]) -> byt
     for reader in readers.values():
         writer.append(reader, import_outline=False)
     for title, page in sections:
-        writer.add_outline_item(title, page)
+        writer.add_outline_item(title=title, page_number=page)
     for i, reader in readers.items():
-        parent = writer.add_outline_item(_sheet_label(rows[i]), starts[i])
+        parent = writer.add_outline_item(title=_sheet_label(rows[i]), page_number=starts[i])
         _copy_outline(writer, reader, reader.outline, parent, starts[i], top=True)
     _links_to_sheets(writer, len(front_reader.pages), starts)
 
@@ -112,7 +112,7 @@ def _copy_outline(writer, reader, items, parent, start: int, top: bool) -> None:
             last = parent  # the sheet's own title: the package entry already stands for it
             continue
         page = reader.get_destination_page_number(item)
-        last = writer.add_outline_item(visible(str(item.title)), start + page, parent=parent)
+        last = writer.add_outline_item(title=visible(str(item.title)), page_number=start + page, parent=parent)
 
 
 def _links_to_sheets(writer, front_pages: int, starts: dict[int, int]) -> None:
