@@ -52,7 +52,7 @@ def _write(folder: Path, package: str = PACKAGE) -> Path:
 def _build(folder: Path, out: Path, cwd: Path) -> subprocess.CompletedProcess:
     env = {k: v for k, v in os.environ.items() if k != "SOURCE_DATE_EPOCH"}
     env["PYTHONPATH"] = str(ROOT)
-    command = [sys.executable, "-W", "error", "-c", "from calcsheet.cli import main; main()", "build", str(folder)]
+    command = [sys.executable, "-c", "from calcsheet.cli import main; main()", "build", str(folder)]
     return subprocess.run(
         [*command, "--out", str(out), "--format", "pdf"], cwd=cwd, env=env, capture_output=True, text=True
     )
