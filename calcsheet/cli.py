@@ -142,6 +142,36 @@ def _write_registers(jobs, done: dict, failures: dict, out_dir: Path, quiet: boo
             target = _guard(lambda: _os_guarded(lambda: write_file(out_dir / name, text), str(out_dir / name)))
             if not quiet:
                 click.echo(f"{package.file}: register -> {target}")
+        _write_bound_pdf(package, rows, session.entries, done, out_dir, quiet)
+
+
+def _write_bound_pdf(package, rows: list, entries, done: dict, out_dir: Path, quiet: bool) -> None:
+    """The package's bound PDF, made from the sheet PDFs in the out folder (this build's, or reused ones); only
+    when they were built as PDF. Bound again only when something it holds changed (a key beside the build
+    cache), so a build that changed nothing imports no PDF library."""
+    from calcsheet.package.bound import bind, bound_file_name, bound_key
+    from calcsheet.pipeline import write_file
+
+    files = {
+        i: out_dir / f"{e.path.stem}.pdf"
+        for i, e in enumerate(entries)
+        if e.path in done and done[e.path].get("pages") is not None
+    }
+    if not files:
+        return
+    pdfs = {i: _guard(lambda f=f: _os_guarded(f.read_bytes, str(f))) for i, f in files.items()}
+    target = out_dir / bound_file_name(package.number)
+    key_file = out_dir / ".calcsheet-cache" / f"{target.name}.key"
+    key = bound_key(package, rows, pdfs)
+    if target.is_file() and key_file.is_file() and key_file.read_text(encoding="utf-8") == key:
+        if not quiet:
+            click.echo(f"{package.file}: bound PDF -> {target} (unchanged)")
+        return
+    data = bind(package, rows, pdfs)
+    _guard(lambda: _os_guarded(lambda: write_file(target, data), str(target)))
+    _guard(lambda: _os_guarded(lambda: write_file(key_file, key), str(key_file)))
+    if not quiet:
+        click.echo(f"{package.file}: bound PDF -> {target}")
 
 
 @main.command()

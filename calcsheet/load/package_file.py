@@ -45,6 +45,7 @@ class Package:
     style: Path | None
     sheets: tuple[Path, ...]  # register order
     basis: dict[str, BasisValue]
+    signoff: tuple = ()  # the package's own sign-off block (the bound PDF's cover)
 
     @property
     def folder(self) -> Path:
@@ -76,9 +77,11 @@ def read_package(file: Path) -> Package:
 
 
 def _package(file: Path, raw: dict) -> Package:
-    unknown = set(raw) - {"package", "basis"}
+    unknown = set(raw) - {"package", "basis", "signoff"}
     if unknown:
-        raise InputError("unknown table (a package file has [package] and [basis])", key_part(sorted(unknown)[0]))
+        raise InputError(
+            "unknown table (a package file has [package], [basis] and [signoff])", key_part(sorted(unknown)[0])
+        )
     head = _table(raw, "package")
     extra = set(head) - {*TITLE_KEYS, "sheets"}
     if extra:
@@ -109,7 +112,18 @@ def _package(file: Path, raw: dict) -> Package:
         style=style,
         sheets=_sheets(file.parent, head.get("sheets")),
         basis=_basis(_table(raw, "basis")),
+        signoff=_signoff(raw),
     )
+
+
+def _signoff(raw: dict) -> tuple:
+    """``[signoff]`` read like a sheet's (prepared, checked, approved); nobody prepares it by default. Imported
+    only when the table is there: the sheet model it builds on loads sympy, which a package read need not."""
+    if "signoff" not in raw:
+        return ()
+    from calcsheet.load.sheet_keys import signoff
+
+    return signoff(_table(raw, "signoff"), "")
 
 
 def _table(raw: dict, name: str) -> dict:
