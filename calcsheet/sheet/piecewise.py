@@ -14,6 +14,7 @@ from calcsheet.sheet.compose import (
     values_table,
     _outcome,
 )
+from calcsheet.sheet.derived_words import switched_derived_blocks
 from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.margin_words import has_margin, margin_section
@@ -94,7 +95,10 @@ def _across(pd) -> Section:
         blocks.append(reach_table(m, num.reach))
     if num.verdicts:
         blocks.append(criteria_table(m, num.verdicts))
-    if num.extremes:
-        blocks += extremes_blocks(m, num.extremes)
+    own = tuple(e for e in num.extremes if not e.of)  # a derived quantity's are with its values below
+    if own:
+        blocks += extremes_blocks(m, own)
+    if m.derived:
+        blocks += switched_derived_blocks(pd)
     blocks.append(checks_table(pd.verification.checks, "Verification across the switches"))
     return Section("across", "Results across the switches", tuple(blocks))
