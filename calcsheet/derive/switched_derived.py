@@ -100,13 +100,16 @@ def joined_curves(model: Model, intervals, analysed: tuple[float, float]) -> dic
         local = {q.name: q for q in d.model.derived}
         per_interval.append(
             {
-                q.name: DerivedCurve(local.get(q.name, q), d.model, d.solution, d.classification, d.response, piece, analysed, scale)
+                q.name: DerivedCurve(
+                    local.get(q.name, q), d.model, d.solution, d.classification, d.response, piece, analysed, scale
+                )
                 for q in model.derived
             }
         )
     switches = [s.at.si for s in model.switches]
     return {
-        q.name: JoinedDerived([c[q.name] for c in per_interval], starts, ends, analysed, switches) for q in model.derived
+        q.name: JoinedDerived([c[q.name] for c in per_interval], starts, ends, analysed, switches)
+        for q in model.derived
     }
 
 
