@@ -104,7 +104,7 @@ def compose(d: Derivation) -> Sheet:
         labels=sheet_labels(),
         outcome=_outcome(d),
         sections=(response, _basis(d)) + numbered,
-        cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)),
+        cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve), numbers=d.numbers),
         signoff=tuple(SignOffLine(s.role, s.name, s.date) for s in d.model.sheet.signoff),
         revisions=d.model.sheet.revisions,
         metadata=_metadata(d),

@@ -41,7 +41,9 @@ def compose_piecewise(pd) -> Sheet:
     if has_margin(pd):
         sections.append(margin_section(pd, "across_margin", "Sensitivity and tolerances across the switches"))
     record = build_switched_record(pd, [part.record for part in parts])
-    notes = cautions.hazard_notes(pd.model, tuple(y for _, y in pd.curve), cautions.coil_voltage_steps(pd))
+    notes = cautions.hazard_notes(
+        pd.model, tuple(y for _, y in pd.curve), cautions.coil_voltage_steps(pd), pd.numbers, pd.derived_at_switches
+    )
     return replace(
         first, outcome=_outcome(pd), sections=tuple(sections), record=record, cautions=(cautions.GENERAL,) + notes
     )
