@@ -43,6 +43,7 @@ class WindowIntegral:
     fallback: str = ""  # why not in closed form: a budget code, "" when closed or no closed form of g exists
     antiderivative: sp.Expr | None = None  # with numbers, in the variable
     text: str = ""  # the request as written
+    pieces: tuple[WindowIntegral, ...] = ()  # across switches: the integral over each interval, summed
 
     @property
     def key(self) -> tuple:
@@ -130,7 +131,10 @@ class DerivedCurve:
     def integral(self, window: Window, text: str = "") -> WindowIntegral:
         """Over [start, end]: the closed form's antiderivative where sympy finds one within its budget, else
         adaptive Gauss-Kronrod quadrature (QUADPACK) between the jumps of the forcing, with its error estimate."""
-        a, b = window.start.si, window.end.si
+        return self.between(window.start.si, window.end.si, text)
+
+    def between(self, a: float, b: float, text: str = "") -> WindowIntegral:
+        """The integral from a to b (SI), found as ``integral`` finds it."""
         antiderivative, fallback = self.antiderivative()
         if antiderivative is not None:
             value = _difference(antiderivative, self.x, a, b)

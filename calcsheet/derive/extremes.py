@@ -26,12 +26,13 @@ from calcsheet.model import Model, Window
 
 MAX, MIN = "max", "min"
 # How an extreme was found (Extreme.method); the sheet words each one.
-STATIONARY, FORCING_JUMP, SWITCH, WINDOW_END, FINAL_VALUE = (
+STATIONARY, FORCING_JUMP, SWITCH, WINDOW_END, FINAL_VALUE, BEFORE_SWITCH = (
     "stationary_point",
     "forcing_jump",
     "switch",
     "window_end",
     "final_value",
+    "before_switch",  # a derived quantity that jumps at a switch, taken just before it (SWITCH: just after)
 )
 SOLVE_SECONDS = 10.0  # sympy's solveset on one stretch of the derivative; only a guard against a hang
 SCAN_POINTS = 2001  # sign-scan points of dy/dx over the whole analysed range, shared out by length
@@ -150,10 +151,16 @@ class ExtremeSearch:
             + [(s.at, STATIONARY) for s in stationary]
             + ([(end, WINDOW_END)] if end > start else [])
         )
+        before = getattr(self.y, "before", None)  # a curve that may jump at a switch gives both sides
+        if before is not None:
+            candidates += [(s, BEFORE_SWITCH) for s in self.switches if start < s <= end]
         better = (lambda a, b: a > b) if kind == MAX else (lambda a, b: a < b)
         best = None
-        for at, method in sorted(candidates, key=lambda c: c[0]):
-            value = self.y(at)
+        for at, method in sorted(candidates, key=lambda c: (c[0], c[1] == BEFORE_SWITCH)):
+            if method == BEFORE_SWITCH or (before is not None and method == WINDOW_END and at == end > start):
+                value = before(at)  # a window ending at a switch ends just before it
+            else:
+                value = self.y(at)
             if math.isfinite(value) and (best is None or better(value, best[0])):
                 best = (value, at, method)
         value, at, method = best if best is not None else (None, None, WINDOW_END)

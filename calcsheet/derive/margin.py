@@ -601,10 +601,11 @@ def _switched_numbers(model: Model, nominal, final_forms):
     from calcsheet.derive.evaluate import make_evaluator
     from calcsheet.derive.numbers import asks_for_extremes, verdict_for
     from calcsheet.derive.piecewise import Interval, Joined, _extreme_search, _scan, interval_model
+    from calcsheet.derive.switched_derived import joined_curves
 
     intervals, y_start = [], model.initial_value
     for k, done in enumerate(nominal.intervals):
-        local = replace(interval_model(model, k, y_start), plot_to=None)
+        local = replace(interval_model(model, k, y_start), plot_to=None, derived=())  # joined_curves evaluates them
         d0 = done.derivation
         y = make_evaluator(local, d0.solution, scale=max(abs(local.initial_at.si), 1.0))
         final = final_forms[k](local) if final_forms[k] else None
@@ -617,8 +618,9 @@ def _switched_numbers(model: Model, nominal, final_forms):
     joined = Joined(intervals)
     last = intervals[-1].derivation.numbers
     search = _extreme_search(model, intervals, joined, grid, last.final_value) if asks_for_extremes(model) else None
+    curves = joined_curves(model, intervals, (model.initial_at.si, float(grid[-1])))
     verdicts = tuple(
-        verdict_for(c, joined, grid, samples, last.time_constant, last.final_value, search=search)
+        verdict_for(c, joined, grid, samples, last.time_constant, last.final_value, search=search, derived=curves)
         for c in model.criteria
     )
     return replace(last, verdicts=verdicts), joined

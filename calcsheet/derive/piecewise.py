@@ -20,10 +20,12 @@ from calcsheet.derive.numbers import (
     ValueAt,
     asks_for_extremes,
     extremes_shown,
+    integrals_shown,
     reach_for,
     verdict_for,
 )
 from calcsheet.derive.switched_checks import SwitchedVerification, verify_switched
+from calcsheet.derive.switched_derived import AtSwitch, across_values, at_switches, joined_curves
 from calcsheet.model import Model, Point
 
 
@@ -44,6 +46,7 @@ class SwitchedDerivation:
     verification: SwitchedVerification
     curve: tuple[tuple[float, float], ...]
     margin: object = None  # derive/margin.py's Margin, when parameters have ranges (set by the pipeline)
+    derived_at_switches: tuple[AtSwitch, ...] = ()  # each derived quantity just before and just after each switch
 
     @property
     def passed(self) -> bool:
@@ -59,8 +62,11 @@ def derive_piecewise(model: Model) -> SwitchedDerivation:
     reaches = tuple(reach_for(level, y, grid, samples, last.final_value) for level in model.reach)
     search = _extreme_search(model, intervals, y, grid, last.final_value) if asks_for_extremes(model) else None
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
+    curves = joined_curves(model, intervals, (model.initial_at.si, float(grid[-1])))
+    integrals = tuple(curves[i.of].integral(i.window, i.text) for i in model.integrals)
     verdicts = tuple(
-        verdict_for(c, y, grid, samples, last.time_constant, last.final_value, search=search) for c in model.criteria
+        verdict_for(c, y, grid, samples, last.time_constant, last.final_value, search=search, derived=curves)
+        for c in model.criteria
     )
     curve = tuple(point for i in intervals for point in i.derivation.curve)
     span = (model.initial_at.si, curve[-1][0])
@@ -72,10 +78,19 @@ def derive_piecewise(model: Model) -> SwitchedDerivation:
         span=span,
         sine=None,
         extremes=extremes_shown(asked, verdicts),
+        derived=across_values(model, curves),
+        integrals=integrals_shown(integrals, verdicts),
     )
     checked = sorted({v.at.si for v in values} | {x for x, _ in curve[:: max(len(curve) // 16, 1)]})
     verification = verify_switched(model, intervals, y, checked)
-    return SwitchedDerivation(model, _with_final_quadrature(intervals), numbers, verification, curve)
+    return SwitchedDerivation(
+        model,
+        _with_final_quadrature(intervals),
+        numbers,
+        verification,
+        curve,
+        derived_at_switches=at_switches(model, curves),
+    )
 
 
 def interval_model(model: Model, index: int, start_value: Point) -> Model:
@@ -86,7 +101,7 @@ def interval_model(model: Model, index: int, start_value: Point) -> Model:
     else:
         switch = model.switches[index - 1]
         local = replace(model, **switch.law.fields(), initial_at=switch.at, initial_value=start_value)
-    return replace(local, evaluate_at=(), reach=(), extremes=(), criteria=(), switches=())
+    return replace(local, evaluate_at=(), reach=(), extremes=(), criteria=(), integrals=(), switches=())
 
 
 def _derive_intervals(model: Model) -> tuple[Interval, ...]:

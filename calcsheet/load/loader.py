@@ -343,12 +343,6 @@ class _Builder:
         changes only what it names, and carries over every state the kind's law holds besides the
         unknown (a tank's volume); the unknown itself carries over in the derivation.
         """
-        if first.derived:
-            raise InputError(
-                "derived quantities are not yet computed for a model with [[switch]] tables; "
-                "remove the [[derived]] tables, or the criteria and integrals that name them",
-                "derived" if self.original.get("derived") else "switch",
-            )
         result, previous = [], first
         parameters, forcing = dict(self.original.get("parameters", {})), self.original.get("forcing")
         for index, entry in enumerate(self.original.get("switch", [])):

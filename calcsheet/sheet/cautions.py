@@ -40,15 +40,21 @@ PRESSURE = (
 
 
 def hazard_notes(
-    model: Model, response: tuple[float, ...] = (), steps: tuple[tuple[str, str, str], ...] = ()
+    model: Model,
+    response: tuple[float, ...] = (),
+    steps: tuple[tuple[str, str, str], ...] = (),
+    numbers=None,
+    at_switches=(),
 ) -> tuple[str, ...]:
     """Hazard notes for what the model holds; ``response`` is the unknown's computed values (SI), ``steps``
-    the coil voltage L di/dt just before and just after each switch, as shown ((at, before, after))."""
+    the coil voltage L di/dt just before and just after each switch, as shown ((at, before, after));
+    ``numbers`` and ``at_switches`` the derived quantities found, whose largest stored energy the note states."""
     dims = {_dim(p.quantity.units) for p in model.parameters} | {_dim(model.unknown.unit)}
     notes = []
     inductive = _dim("H") in dims
+    energy = stored_energy_words(model, numbers, at_switches)
     if dims & {_dim("F"), _dim("C")} or (dims & {_dim("V"), _dim("A")} and not inductive):  # stored charge
-        notes.append(ELECTRICAL)
+        notes.append(ELECTRICAL + ("" if inductive else energy))
     if inductive:
         notes.append(
             INDUCTIVE
@@ -56,12 +62,49 @@ def hazard_notes(
                 f" At the switch at {at} the coil voltage L·di/dt steps from {before} to {after}."
                 for at, before, after in steps
             )
+            + energy
         )
     if _dim(model.unknown.unit) == _dim("K") and max((_hottest(model),) + tuple(response)) > HOT_SURFACE_KELVIN:
         notes.append(HEAT)
     if dims & {_dim("Pa")}:
         notes.append(PRESSURE)
     return tuple(notes)
+
+
+def stored_energies(model: Model) -> tuple[str, ...]:
+    """The derived quantities that are a stored electrical energy: in joules, of a voltage or a current (a kind's
+    offered E_C or E_L, or the user's own)."""
+    if _dim(model.unknown.unit) not in (_dim("V"), _dim("A")):
+        return ()
+    return tuple(q.name for q in model.derived if q.declared.unit_text and _dim(q.declared.unit) == _dim("J"))
+
+
+def stored_energy_words(model: Model, numbers, at_switches=()) -> str:
+    """' The largest stored energy found on this sheet is E_L = 0.52 J at t = 120 ms.', or '' when the sheet
+    finds none: from the values at the points asked for, the extremes and both sides of each switch."""
+    from calcsheet.sheet.quantities import in_units
+
+    names = stored_energies(model)
+    if numbers is None or not names:
+        return ""
+    found = [
+        (v, pt.si, dv.quantity.name)
+        for dv in numbers.derived
+        if dv.quantity.name in names
+        for pt, v in dv.values
+        if v is not None
+    ]
+    found += [(e.value, e.at, e.of) for e in numbers.extremes if e.of in names and e.value is not None]
+    found += [(v, a.at, a.of) for a in at_switches if a.of in names for v in (a.before, a.after)]
+    found = [f for f in found if f[0] == f[0]]  # no NaN
+    if not found:
+        return ""
+    value, at, name = max(found, key=lambda f: (f[0], -(f[1] if f[1] is not None else 0.0)))
+    where = f" at {model.variable.name} = {in_units(at, model.variable)}" if at is not None else ""
+    return (
+        f" The largest stored energy found on this sheet is {name} = {in_units(value, model.quantity(name))}{where}; "
+        "size the discharge or suppression path for it as the local codes and licensed practice require."
+    )
 
 
 def _dim(unit):

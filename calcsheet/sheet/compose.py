@@ -28,7 +28,7 @@ from calcsheet.derive.numbers import (
     FINAL_UNSETTLED,
     TAU_VARYING,
 )
-from calcsheet.derive.extremes import FINAL_VALUE, FORCING_JUMP, STATIONARY, SWITCH, WINDOW_END
+from calcsheet.derive.extremes import BEFORE_SWITCH, FINAL_VALUE, FORCING_JUMP, STATIONARY, SWITCH, WINDOW_END
 from calcsheet.derive.verify import bound
 from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
@@ -104,7 +104,7 @@ def compose(d: Derivation) -> Sheet:
         labels=sheet_labels(),
         outcome=_outcome(d),
         sections=(response, _basis(d)) + numbered,
-        cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve)),
+        cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve), numbers=d.numbers),
         signoff=tuple(SignOffLine(s.role, s.name, s.date) for s in d.model.sheet.signoff),
         revisions=d.model.sheet.revisions,
         metadata=_metadata(d),
@@ -880,6 +880,7 @@ EXTREME_METHOD_WORDS = {
     STATIONARY: "stationary point",
     FORCING_JUMP: "jump in the forcing",
     SWITCH: "switch",
+    BEFORE_SWITCH: "just before a switch",
     WINDOW_END: "end of window",
     FINAL_VALUE: "final value",
 }

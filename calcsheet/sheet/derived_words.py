@@ -83,6 +83,53 @@ def derived_section(d, n) -> Section:
     return Section("derived", "Derived quantities", tuple(blocks))
 
 
+def switched_derived_blocks(sd) -> list:
+    """Across the switches: the values from the interval in force, each quantity on both sides of every switch,
+    the extremes over both sides of the switches, and the integrals summed over the intervals."""
+    from calcsheet.sheet.compose import difference  # compose imports this module
+
+    m, num = sd.model, sd.numbers
+    x = m.variable.name
+    blocks = [
+        Paragraph(
+            "Each interval evaluates the derived quantities with its own parameters (their closed forms are in "
+            "each interval's step). The unknown is continuous at a switch, but a derived quantity can jump there: "
+            "at a switch instant the value shown is the one just after it, from the interval that starts there."
+        )
+    ]
+    if m.evaluate_at:
+        header = (x,) + tuple(dv.quantity.name for dv in num.derived)
+        rows = tuple(
+            (point.text,) + tuple(_shown(dv.values[k][1], dv.quantity.declared) for dv in num.derived)
+            for k, point in enumerate(m.evaluate_at)
+        )
+        blocks.append(Table(header, rows, "Values of the derived quantities across the switches"))
+    if sd.derived_at_switches:
+        rows = tuple(
+            (
+                in_units(a.at, m.variable),
+                a.of,
+                _shown(a.before, m.quantity(a.of)),
+                _shown(a.after, m.quantity(a.of)),
+                difference(a.after - a.before, m.quantity(a.of)),
+            )
+            for a in sd.derived_at_switches
+        )
+        blocks.append(
+            Table(
+                (f"Switch at {x} =", "Quantity", "Just before", "Just after", "Jump"),
+                rows,
+                "Derived quantities on both sides of each switch",
+            )
+        )
+    extremes = [e for e in num.extremes if e.of]
+    if extremes:
+        blocks.append(_extremes_table(m, extremes))
+    if num.integrals:
+        blocks.append(_integrals_table(m, num.integrals))
+    return blocks
+
+
 def _extremes_table(m, extremes) -> Table:
     from calcsheet.sheet.compose import EXTREME_METHOD_WORDS, extreme_window  # compose imports this module
 
@@ -109,6 +156,14 @@ def _integrals_table(m, integrals) -> Table:
     for i in integrals:
         unit = m.derived_named(i.of).integral
         method = INTEGRAL_METHOD_WORDS[i.method]
+        if i.pieces:
+            method = "sum over the intervals: " + "; ".join(
+                f"{_shown(p.value, unit) if p.value is not None else 'does not exist'} from "
+                f"{in_units(p.start, m.variable)} to {in_units(p.end, m.variable)} by "
+                f"{'closed form' if p.method == CLOSED_FORM else 'quadrature'}"
+                for p in i.pieces
+            )
+            method += f" ({INTEGRAL_METHOD_WORDS[CLOSED_FORM if i.method == CLOSED_FORM else QUADRATURE]})"
         if i.method == QUADRATURE:
             method += (
                 f"; error estimate {bound(i.error)} {unit.unit_text}".rstrip() + f" ({_FALLBACK_WORDS[i.fallback]})"
@@ -162,7 +217,37 @@ def derived_record(d) -> dict:
                 "method": i.method,
                 "error_estimate": None if i.method == CLOSED_FORM else bound(i.error),
                 "text": i.text,
+                **({"pieces": [_piece_record(m, p) for p in i.pieces]} if i.pieces else {}),
             }
             for i in num.integrals
+        ],
+    }
+
+
+def _piece_record(m, i) -> dict:
+    """One interval's share of an integral across switches."""
+    return {
+        "from": record_value(i.start, m.variable),
+        "to": record_value(i.end, m.variable),
+        "value": record_value(i.value, m.derived_named(i.of).integral),
+        "method": i.method,
+        "error_estimate": None if i.method == CLOSED_FORM else bound(i.error),
+    }
+
+
+def switched_derived_record(sd) -> dict:
+    """Across the switches: each derived quantity's values from the interval in force, the integrals (summed
+    over the intervals, with ``pieces``), and ``at_switches``: each quantity just before and just after."""
+    m = sd.model
+    return {
+        **derived_record(sd),
+        "at_switches": [
+            {
+                "of": a.of,
+                "at": record_value(a.at, m.variable),
+                "before": record_value(a.before, m.quantity(a.of)),
+                "after": record_value(a.after, m.quantity(a.of)),
+            }
+            for a in sd.derived_at_switches
         ],
     }

@@ -14,6 +14,7 @@ from calcsheet.sheet.compose import (
     values_table,
     _outcome,
 )
+from calcsheet.sheet.derived_words import switched_derived_blocks
 from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.margin_words import has_margin, margin_section
@@ -40,7 +41,9 @@ def compose_piecewise(pd) -> Sheet:
     if has_margin(pd):
         sections.append(margin_section(pd, "across_margin", "Sensitivity and tolerances across the switches"))
     record = build_switched_record(pd, [part.record for part in parts])
-    notes = cautions.hazard_notes(pd.model, tuple(y for _, y in pd.curve), cautions.coil_voltage_steps(pd))
+    notes = cautions.hazard_notes(
+        pd.model, tuple(y for _, y in pd.curve), cautions.coil_voltage_steps(pd), pd.numbers, pd.derived_at_switches
+    )
     return replace(
         first, outcome=_outcome(pd), sections=tuple(sections), record=record, cautions=(cautions.GENERAL,) + notes
     )
@@ -94,7 +97,10 @@ def _across(pd) -> Section:
         blocks.append(reach_table(m, num.reach))
     if num.verdicts:
         blocks.append(criteria_table(m, num.verdicts))
-    if num.extremes:
-        blocks += extremes_blocks(m, num.extremes)
+    own = tuple(e for e in num.extremes if not e.of)  # a derived quantity's are with its values below
+    if own:
+        blocks += extremes_blocks(m, own)
+    if m.derived:
+        blocks += switched_derived_blocks(pd)
     blocks.append(checks_table(pd.verification.checks, "Verification across the switches"))
     return Section("across", "Results across the switches", tuple(blocks))

@@ -11,7 +11,7 @@ from calcsheet.mathtext import plain
 from calcsheet.sheet.criterion_numbers import criterion_numbers
 from calcsheet.sheet.check_words import check_row, quadrature_words
 from calcsheet.sheet.quantities import record_value, rounded
-from calcsheet.sheet.derived_words import derived_record
+from calcsheet.sheet.derived_words import derived_record, switched_derived_record
 
 RECORD_FORMAT = "calcsheet-record"
 RECORD_VERSION = 2
@@ -224,7 +224,11 @@ def build_switched_record(sd, interval_records: list[dict]) -> dict:
             _interval_record(interval, record, previous)
             for interval, record, previous in zip(sd.intervals, interval_records, before)
         ],
-        "across": {**results_record(m, sd.numbers), "verification": verification_record(sd.verification)},
+        "across": {
+            **results_record(m, sd.numbers),
+            **(switched_derived_record(sd) if m.derived else {}),
+            "verification": verification_record(sd.verification),
+        },
         "passed": sd.passed,
     }
     return _with_margin(sd, record, record["across"])
@@ -240,6 +244,7 @@ def _interval_record(interval, record: dict, previous) -> dict:
         "initial": record["model"]["initial"]["value"],
         "parameters": _parameters_in_force(interval, record["model"]["parameters"], previous),
         **{key: record[key] for key in INTERVAL_KEYS},
+        **({"derived": record["derived"]} if record["derived"] else {}),
     }
 
 

@@ -212,11 +212,6 @@ def test_each_new_syntax_error_is_one_line_with_its_key(tmp_path, extra, key, wo
     assert key in message and words in message
 
 
-def test_a_switched_model_with_derived_quantities_is_refused_for_now(tmp_path):
-    message = refused(tmp_path, POWER + '[[switch]]\nat = "5 s"\nparameters = { R = "10 kohm" }\n')
-    assert "derived" in message and "switch" in message
-
-
 def test_the_command_line_exits_2_with_one_line(tmp_path):
     path = write(tmp_path, RC, RC_VALUES, "400 V", '[[derived]]\nname = "P_R"\nexpression = "v*R"\nunit = "W"\n')
     result = CliRunner().invoke(main, ["build", str(path), "--out", str(tmp_path / "out"), "--format", "json"])
