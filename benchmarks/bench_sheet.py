@@ -15,7 +15,10 @@ pairs is printed. CPU seconds and peak memory come from the kernel's accounting 
 
 A measurement, not a test: nothing asserts, and the figures depend on the machine and its load.
 
-    python benchmarks/bench_sheet.py [--quick] [--pairs N]
+    python benchmarks/bench_sheet.py [--quick] [--pairs N] [--checkout PATH]
+
+``--checkout`` measures the calcsheet of another checkout (its code, demos and corpus), e.g. one before a
+change; ``--quick`` takes two plain cases and two demos and leaves out the sine-forced reservoir.
 """
 
 from __future__ import annotations
@@ -31,16 +34,18 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
-CORPUS_DIR = ROOT / "tests" / "reference"
 # an RC charge, a sine-driven RC filter, a filling tank, a ramp
 PLAIN_CASES = ("rc_step_charge", "rc_filter_sine", "brine_tank_filling", "kiln_ramp_probe")
-DEMOS = sorted(p for p in (ROOT / "inputs").glob("*.toml") if p.name != "package.toml")
-PDF_DEMO = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
+PDF_DEMO_NAME = "bus-capacitor-bleed-down.toml"
 SINE_FORCING = '\n[forcing]\nform = "sine"\noffset = "3 m^3/s"\namplitude = "1 m^3/s"\nfrequency = "1/(24 h)"\n'
 
 
+def _demos() -> list[Path]:
+    return sorted(p for p in (ROOT / "inputs").glob("*.toml") if p.name != "package.toml")
+
+
 def _corpus():
-    sys.path.insert(0, str(CORPUS_DIR))
+    sys.path.insert(0, str(ROOT / "tests" / "reference"))
     import corpus  # noqa: PLC0415 - lives with the tests, found through the path above
 
     return corpus
@@ -119,7 +124,7 @@ def json_over_bare_solve(folder: Path, pairs: int, cases: tuple[str, ...]) -> li
         path = folder / f"{name}.toml"
         path.write_text(corpus.toml_text(corpus.by_name(name)), encoding="utf-8")
         ours = build([path], folder / "out", "json")
-        theirs = [sys.executable, str(Path(__file__).resolve()), "--bare-solve", name]
+        theirs = [sys.executable, str(Path(__file__).resolve()), "--checkout", str(ROOT), "--bare-solve", name]
         results = paired(ours, theirs, pairs)
         medians.append(statistics.median(a["wall"] / b["wall"] for a, b in results))
         lines.append(ratio_line(f"  {name}", results))
@@ -128,17 +133,18 @@ def json_over_bare_solve(folder: Path, pairs: int, cases: tuple[str, ...]) -> li
 
 
 def pdf_over_html(folder: Path, pairs: int) -> list[str]:
-    results = paired(build([PDF_DEMO], folder / "pdf", "pdf"), build([PDF_DEMO], folder / "html", "html"), pairs)
-    return [ratio_line(f"PDF build / HTML-only build ({PDF_DEMO.stem})", results)]
+    demo = ROOT / "inputs" / PDF_DEMO_NAME
+    results = paired(build([demo], folder / "pdf", "pdf"), build([demo], folder / "html", "html"), pairs)
+    return [ratio_line(f"PDF build / HTML-only build ({demo.stem})", results)]
 
 
 def demos_all_formats(folder: Path, demos: list[Path]) -> list[str]:
     every = run(build(demos, folder / "demos"))
-    one = run(build([PDF_DEMO], folder / "one", "pdf"))
+    one = run(build([ROOT / "inputs" / PDF_DEMO_NAME], folder / "one", "pdf"))
     return [
         f"{'CPU s per sheet, all four formats':46} {every['cpu'] / len(demos):6.2f} s  "
         f"({len(demos)} demos in one command: {every['cpu']:.1f} CPU s, {every['wall']:.1f} s wall)",
-        f"{'peak memory, one sheet with PDF':46} {one['mib']:6.0f} MiB ({PDF_DEMO.stem})",
+        f"{'peak memory, one sheet with PDF':46} {one['mib']:6.0f} MiB ({Path(PDF_DEMO_NAME).stem})",
     ]
 
 
@@ -161,20 +167,24 @@ def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true", help="two plain cases and two demos")
     parser.add_argument("--pairs", type=int, default=5, help="pairs per comparison (default 5)")
+    parser.add_argument("--checkout", type=Path, help="measure the calcsheet of this checkout (default: this one)")
     parser.add_argument("--bare-solve", metavar="CASE", help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
+    global ROOT
+    ROOT = args.checkout.resolve() if args.checkout else ROOT
     if args.bare_solve:
         return bare_solve(args.bare_solve)
     cases = PLAIN_CASES[:2] if args.quick else PLAIN_CASES
-    demos = DEMOS[:2] if args.quick else DEMOS
-    print(f"python {sys.version.split()[0]} on {os.cpu_count()} CPUs; whole processes; median of {args.pairs} pairs")
+    demos = _demos()[:2] if args.quick else _demos()
+    print(f"calcsheet of {ROOT}; python {sys.version.split()[0]} on {os.cpu_count()} CPUs")
+    print(f"whole processes; median of {args.pairs} pairs\n")
     with tempfile.TemporaryDirectory() as directory:
         folder = Path(directory)
         for section in (
             lambda: json_over_bare_solve(folder, args.pairs, cases),
             lambda: pdf_over_html(folder, args.pairs),
             lambda: demos_all_formats(folder, demos),
-            lambda: sine_reservoir(folder),
+            lambda: [] if args.quick else sine_reservoir(folder),
         ):
             for line in section():
                 print(line, flush=True)
