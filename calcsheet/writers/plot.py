@@ -18,6 +18,7 @@ matplotlib is imported inside the functions, never at module level, and pyplot i
 
 from __future__ import annotations
 
+import functools
 import math
 import re
 
@@ -77,8 +78,11 @@ _DECLARATION = re.compile(r"\A\s*<\?xml[^>]*\?>\s*")
 _DOCTYPE = re.compile(r"\A\s*<!DOCTYPE[^>]*>\s*")
 
 
+@functools.lru_cache(maxsize=8)
 def figure_svg(figure) -> str:
-    """The Figure as an SVG element (no XML declaration, no DOCTYPE), ready to inline in HTML."""
+    """The Figure as an SVG element (no XML declaration, no DOCTYPE), ready to inline in HTML. Cached by the
+    Figure's value (a frozen dataclass of tuples), so the HTML and PDF writers of one sheet share one drawing:
+    the drawing is the same bytes every time, and it is most of a writer's time."""
     import io
 
     import matplotlib

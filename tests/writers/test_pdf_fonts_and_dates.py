@@ -20,6 +20,7 @@ from calcsheet.pipeline import build_sheet
 from calcsheet.sheet.compose import sheet_labels, title_block
 from calcsheet.sheet.document import Outcome, Sheet
 from calcsheet.writers import fonts, pdf
+from calcsheet.writers.plot import figure_svg
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
@@ -114,6 +115,7 @@ def test_a_bad_source_date_epoch_leaves_the_pdf_as_without_one(sheet, built_pdf,
 
     monkeypatch.setattr(weasyprint_fonts, "harfbuzz_subset", None)  # the path where fontTools reads it
     monkeypatch.setenv("SOURCE_DATE_EPOCH", "soon")
+    figure_svg.cache_clear()  # the plot drawn anew, so matplotlib meets the bad value too
     with_bad_value = pdf.write(sheet)
     assert os.environ["SOURCE_DATE_EPOCH"] == "soon"  # put back after the build
     monkeypatch.delenv("SOURCE_DATE_EPOCH")

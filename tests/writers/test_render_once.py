@@ -1,0 +1,47 @@
+"""The plot and each equation are drawn once per sheet, however many writers show them: the HTML and PDF
+writers share one plot (writers/plot.py) and one SVG per equation's LaTeX (writers/svgmath.py). Counted by
+wrapping the drawing functions, never timed."""
+
+from __future__ import annotations
+
+from collections import Counter
+
+import pytest
+
+from calcsheet.pipeline import build_sheet, render
+from calcsheet.writers import mathml, plot, svgmath
+from tests.end_to_end.demo_verdicts import DEMOS
+
+
+@pytest.fixture(scope="module")
+def sheet():
+    return build_sheet(DEMOS[0]).sheet
+
+
+def test_the_plot_and_each_equation_are_drawn_once_for_all_four_formats(sheet, monkeypatch):
+    import ziamath
+
+    plots, equations, mathml_forms = Counter(), Counter(), Counter()
+    build, latex, convert = plot._build, ziamath.Latex, mathml.convert
+
+    def counted_build(figure):
+        plots[figure.title] += 1
+        return build(figure)
+
+    def counted_latex(text, *args, **kwargs):
+        equations[text] += 1
+        return latex(text, *args, **kwargs)
+
+    def counted_convert(text, *args, **kwargs):
+        mathml_forms[(text, *args, *sorted(kwargs.items()))] += 1
+        return convert(text, *args, **kwargs)
+
+    monkeypatch.setattr(plot, "_build", counted_build)
+    monkeypatch.setattr(ziamath, "Latex", counted_latex)
+    monkeypatch.setattr(mathml, "convert", counted_convert)
+    for cache in (plot.figure_svg, svgmath.render, mathml.to_mathml):
+        cache.cache_clear()
+    render(sheet, ("html", "pdf", "json", "txt"))
+    assert sum(plots.values()) == 1, plots
+    assert equations and max(equations.values()) == 1, [text for text, n in equations.items() if n > 1]
+    assert mathml_forms and max(mathml_forms.values()) == 1
