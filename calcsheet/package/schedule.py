@@ -24,6 +24,21 @@ def default_jobs() -> int:
         return max(1, os.cpu_count() or 1)
 
 
+def _die_with_parent(parent: int) -> None:
+    """A worker ends when the build that started it ends, even by SIGKILL (which no handler sees): on Linux
+    the kernel signals it (PR_SET_PDEATHSIG); a parent already gone ends it at once."""
+    import ctypes
+    import signal
+
+    try:
+        libc = ctypes.CDLL(None, use_errno=True)
+        libc.prctl(1, signal.SIGKILL)  # PR_SET_PDEATHSIG = 1
+    except (OSError, AttributeError):  # not Linux: the pool's own shutdown is all there is
+        pass
+    if os.getppid() != parent:
+        os._exit(1)
+
+
 def run_steps(steps: list[Step], start, finish, jobs: int) -> None:
     """For each step once its ``after`` steps are done: ``start(step)`` returns ``("done", result)`` when the
     main process settles it at once (a cache hit), or ``("work", function, argument)`` for a worker; then
@@ -47,7 +62,12 @@ def run_steps(steps: list[Step], start, finish, jobs: int) -> None:
                     finished.add(step.name)
                 else:
                     if pool is None:
-                        pool = ProcessPoolExecutor(max_workers=jobs, mp_context=multiprocessing.get_context("fork"))
+                        pool = ProcessPoolExecutor(
+                            max_workers=jobs,
+                            mp_context=multiprocessing.get_context("fork"),
+                            initializer=_die_with_parent,
+                            initargs=(os.getpid(),),
+                        )
                     running[pool.submit(started[1], started[2])] = step
                 progressed = True
                 break  # look again from the first pending step: keeps the order of settling stable

@@ -30,6 +30,29 @@ def _contents(folder: Path) -> dict[str, bytes]:
     return {p.name: p.read_bytes() for p in sorted(folder.iterdir()) if not p.name.startswith(".")}
 
 
+def _processes_naming(text: str, patience: float = 30.0) -> list[int]:
+    """Processes whose command line holds ``text`` (a forked worker keeps its build's command line), waiting up to
+    ``patience`` seconds for ones that are on their way out; a bound against a hang, not a measurement."""
+    proc = Path("/proc")
+    if not proc.is_dir():
+        return []
+    deadline = time.monotonic() + patience
+    while True:
+        found = []
+        for entry in proc.iterdir():
+            if entry.name.isdigit():
+                try:
+                    command = (entry / "cmdline").read_bytes()
+                    state = (entry / "stat").read_text().rsplit(")", 1)[1].split()[0]
+                except OSError:
+                    continue
+                if text.encode() in command and state != "Z":
+                    found.append(int(entry.name))
+        if not found or time.monotonic() > deadline:
+            return found
+        time.sleep(0.2)
+
+
 def test_a_killed_build_leaves_every_output_whole(tmp_path):
     # The inputs change between the first build and the killed ones, so each output must be either
     # the previous file or the new one, byte for byte, never a part of either.
@@ -51,6 +74,7 @@ def test_a_killed_build_leaves_every_output_whole(tmp_path):
         now = _contents(out)
         assert set(now) == set(old), f"an output went missing after a kill at {delay} s"
         assert all(now[name] in (old[name], new[name]) for name in now), f"a partial file after a kill at {delay} s"
+    assert _processes_naming(str(tmp_path)) == [], "a killed build left worker processes running"
     subprocess.run(_command(out, inputs), check=False, capture_output=True, timeout=600)
     assert _contents(out) == new
     assert not [p.name for p in out.iterdir() if p.name.endswith(".part")], "the killed builds' temporaries remain"
