@@ -19,7 +19,7 @@ import sympy as sp
 from scipy import integrate
 
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, LIMIT_SECONDS, NO_CLOSED_FORM, within
-from calcsheet.derive.extremes import NOISE, Extreme, ExtremeSearch, Piece
+from calcsheet.derive.extremes import NOISE, Extreme, ExtremeSearch, Piece, precise_at
 from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, has_infinity, real_float
 from calcsheet.model import DerivedQuantity, Model, Point, Window
 
@@ -184,11 +184,7 @@ class _DerivedPiece:
 
     def slope(self, at: float) -> float:
         if self.derivative is not None:
-            with mpmath.workdps(DIGITS):
-                try:
-                    value = real_float(self._precise(mpmath.mpf(at)))
-                except (ArithmeticError, ValueError, TypeError):
-                    value = math.nan
+            value = precise_at(self._precise, at)
             if math.isfinite(value):
                 return value
         return self.curve.slope(at)

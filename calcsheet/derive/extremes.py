@@ -45,6 +45,16 @@ DIGITS = 30  # mpmath digits for a closed-form derivative
 INWARD = 1e-9  # the scan starts this fraction of a grid step inside each stretch, off the jump itself
 
 
+def precise_at(precise, at: float) -> float:
+    """A closed form lambdified for mpmath, at one point in DIGITS digits; nan where it has no real value there
+    (the caller then falls back on the equation)."""
+    with mpmath.workdps(DIGITS):
+        try:
+            return real_float(precise(mpmath.mpf(at)))
+        except (ArithmeticError, ValueError, TypeError):
+            return math.nan
+
+
 @dataclass(frozen=True)
 class Stationary:
     at: float  # SI
@@ -96,11 +106,7 @@ class Piece:
     def slope(self, at: float) -> float:
         """dy/dx at a point: the closed form's derivative in 30 digits, else r - p*y from the equation."""
         if self.derivative is not None:
-            with mpmath.workdps(DIGITS):
-                try:
-                    value = real_float(self._precise(mpmath.mpf(at)))
-                except (ArithmeticError, ValueError, TypeError):
-                    value = math.nan
+            value = precise_at(self._precise, at)
             if math.isfinite(value):
                 return value
         try:
