@@ -149,7 +149,8 @@ def _write_bound_pdf(package, rows: list, entries, done: dict, out_dir: Path, qu
     """The package's bound PDF, made from the sheet PDFs in the out folder (this build's, or reused ones); only
     when they were built as PDF. Bound again only when something it holds changed (a key beside the build
     cache), so a build that changed nothing imports no PDF library."""
-    from calcsheet.package.bound import bind, bound_file_name, bound_key
+    from calcsheet.load.package_file import bound_file_name
+    from calcsheet.package.bound import bind, bound_key
     from calcsheet.pipeline import write_file
 
     files = {

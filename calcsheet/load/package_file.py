@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
@@ -102,6 +104,8 @@ def _package(file: Path, raw: dict) -> Package:
         raise InputError(
             f"'{shortened(texts['style'])}' is not a style folder beside the package file", "package.style"
         )
+    sheets = _sheets(file.parent, head.get("sheets"))
+    _outputs_apart(texts["number"], sheets, file.parent)
     return Package(
         file=file,
         title=texts["title"],
@@ -110,7 +114,7 @@ def _package(file: Path, raw: dict) -> Package:
         project=texts["project"],
         client=texts["client"],
         style=style,
-        sheets=_sheets(file.parent, head.get("sheets")),
+        sheets=sheets,
         basis=_basis(_table(raw, "basis")),
         signoff=_signoff(raw),
     )
@@ -150,6 +154,43 @@ def _sheets(folder: Path, patterns) -> tuple[Path, ...]:
             raise InputError(f"'{shortened(pattern)}' matches no input file", f"{where}[{index}]")
         found.extend(p for p in matches if p not in found)
     return tuple(found)
+
+
+def bound_file_name(number: str) -> str:
+    """The package number as a file name: letters, digits, '.', '_' and '-' kept, anything else '-'."""
+    stem = re.sub(r"[^A-Za-z0-9._-]+", "-", number).strip(".-") or "package"
+    return f"{stem}.pdf"
+
+
+REGISTER_STEM = "register"
+
+
+def _outputs_apart(number: str, sheets: tuple[Path, ...], folder: Path) -> None:
+    """Every sheet's outputs are named after its file's stem in one out folder, beside the register and the bound
+    PDF: two sheets of one stem, a sheet named like the register, or a package number that names the bound PDF
+    like a sheet's PDF would overwrite each other's files, so the package is refused before anything is built."""
+    seen: dict[str, Path] = {}
+    for sheet in sheets:
+        other = seen.setdefault(sheet.stem.casefold(), sheet)
+        if other != sheet:
+            raise InputError(
+                f"'{other.relative_to(folder).as_posix()}' and '{sheet.relative_to(folder).as_posix()}' would write "
+                "outputs of the same name into the out folder; rename one",
+                "package.sheets",
+            )
+        if sheet.stem.casefold() == REGISTER_STEM:
+            raise InputError(
+                f"'{sheet.name}' would write outputs named like the register (register.html); rename the sheet",
+                "package.sheets",
+            )
+    bound = bound_file_name(number)
+    clash = seen.get(bound.removesuffix(".pdf").casefold())
+    if clash is not None:
+        raise InputError(
+            f"the bound PDF '{shortened(bound)}' would overwrite the PDF of sheet '{clash.name}'; "
+            "rename the sheet or change the number",
+            "package.number",
+        )
 
 
 def _basis(table: dict) -> dict[str, BasisValue]:

@@ -15,7 +15,6 @@ from __future__ import annotations
 import hashlib
 import io
 import logging
-import re
 import warnings
 
 from markupsafe import escape
@@ -31,12 +30,6 @@ _CAUTION = (
     "Each sheet in this package is a calculation to be reviewed. Review by a licensed engineer governs any use "
     "of it, under the codes and practice that apply where the work is built."
 )
-
-
-def bound_file_name(number: str) -> str:
-    """The package number as a file name: letters, digits, '.', '_' and '-' kept, anything else '-'."""
-    stem = re.sub(r"[^A-Za-z0-9._-]+", "-", number).strip(".-") or "package"
-    return f"{stem}.pdf"
 
 
 def bound_key(package: Package, rows: list[Row], sheet_pdfs: dict[int, bytes]) -> str:

@@ -17,7 +17,7 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
-from calcsheet.package.bound import bound_file_name
+from calcsheet.load.package_file import bound_file_name
 from tests.package.test_package import HEAT, PLAIN, run
 
 ROOT = Path(__file__).resolve().parents[2]

@@ -300,6 +300,43 @@ def test_two_sheets_of_one_number_are_refused(tmp_path):
     assert "HT-1" in line and "unique" in line
 
 
+@pytest.mark.parametrize(
+    "sheets, extra, words",
+    [
+        # the bound PDF TP-01.pdf would overwrite the sheet TP-01.toml's PDF
+        (
+            '["heat.toml", "cool.toml", "plain.toml", "TP-01.toml"]',
+            {"TP-01.toml": "plain"},
+            ["package.number", "TP-01.pdf"],
+        ),
+        # register.html is the register's
+        (
+            '["heat.toml", "cool.toml", "plain.toml", "register.toml"]',
+            {"register.toml": "plain"},
+            ["package.sheets", "register"],
+        ),
+        # two sheets of one stem in different folders write into one out folder
+        (
+            '["heat.toml", "cool.toml", "plain.toml", "more/plain.toml"]',
+            {"more/plain.toml": "plain"},
+            ["package.sheets", "more/plain.toml"],
+        ),
+    ],
+)
+def test_sheets_whose_outputs_would_overwrite_others_are_refused(tmp_path, sheets, extra, words):
+    folder = write_package(tmp_path)
+    (folder / "package.toml").write_text(
+        PACKAGE.replace('["heat.toml", "cool.toml", "plain.toml"]', sheets), encoding="utf-8"
+    )
+    for name in extra:
+        (folder / name).parent.mkdir(exist_ok=True)
+        (folder / name).write_text(PLAIN.replace('number = "PL-1"', 'number = "PL-2"'), encoding="utf-8")
+    line = one_error(folder, "build", folder, "--out", tmp_path / "out")
+    for word in words:
+        assert word in line, line
+    assert not (tmp_path / "out").exists()
+
+
 def test_a_sheet_with_references_outside_any_package_is_refused(tmp_path):
     (tmp_path / "cool.toml").write_text(COOL, encoding="utf-8")
     line = one_error(tmp_path, "check", tmp_path / "cool.toml")
