@@ -183,3 +183,34 @@ def test_quiet_prints_nothing_but_errors(built):
     (folder / "plain.toml").write_text(PLAIN_BROKEN, encoding="utf-8")
     code, stdout, stderr = run("build", folder, "--out", out, "--format", FORMATS, "--quiet")
     assert code == 2 and stdout == "" and "plain.toml" in stderr
+
+
+def test_a_terminal_sees_a_progress_bar_with_the_sheet_being_built_and_a_count(tmp_path):
+    """On a TTY the build shows click's progress bar (label, count, the sheet's path) instead of a line per sheet.
+    A pseudo-terminal stands in for the engineer's terminal."""
+    import pty
+
+    folder = write_package(tmp_path)
+    probe = (
+        "from calcsheet.cli import main\n"
+        f"main(['build', {str(folder)!r}, '--out', {str(tmp_path / 'out')!r}, '--format', 'json', '--jobs', '1'])\n"
+    )
+    environment = {**os.environ, "PYTHONPATH": os.pathsep.join(sys.path), "COLUMNS": "200"}
+    pid, terminal = pty.fork()
+    if pid == 0:  # the child: its stdout is the pseudo-terminal
+        os.execve(sys.executable, [sys.executable, "-c", probe], environment)
+    shown = b""
+    while True:
+        try:
+            chunk = os.read(terminal, 4096)
+        except OSError:  # EIO: the child closed the terminal
+            break
+        if not chunk:
+            break
+        shown += chunk
+    _, status = os.waitpid(pid, 0)
+    text = shown.decode("utf-8", "replace")
+    assert os.waitstatus_to_exitcode(status) == 0, text
+    assert "building" in text and "3/3" in text, text
+    assert "cool.toml" in text, text  # the sheet being built is named beside the bar
+    assert "PASS" not in text.split("3/3")[0], text  # no per-sheet result lines while the bar runs
