@@ -11,16 +11,19 @@ from calcsheet.source import units
 
 _CALL = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\((.*)\)\s*$")
 NAMED = ("time_constant", "final_value")
+_IN_INTERVAL = re.compile(r"^(time_constant|final_value) in interval ([0-9]{1,3})$")
 
 
 def result_quantity(record: dict, result: str, upstream: str) -> str:
     """The result as a value with its unit, e.g. '6.0 s', ready for the downstream sheet's parameter table.
     ``upstream`` names the sheet in messages."""
+    text = " ".join(result.split())
     if "intervals" in record:
-        raise InputError(
-            f"sheet {upstream} is a switched model; passing its results to other sheets is not supported yet"
-        )
-    text = result.strip()
+        record, named = _switched(record, text, upstream)
+        if named is not None:
+            return named
+    elif _IN_INTERVAL.match(text):
+        raise InputError(f"'{shortened(text)}': sheet {upstream} is not switched; write {text.split()[0]}")
     if text in NAMED:
         return _quantity(record.get(text), text, upstream)
     call = _CALL.match(text)
@@ -35,6 +38,27 @@ def result_quantity(record: dict, result: str, upstream: str) -> str:
     if word in ("max", "min"):
         return _extreme(record, word, arguments, text, upstream)
     raise InputError(f"'{shortened(text)}': sheet {upstream}'s unknown is {_unknown(record)}, not {word}")
+
+
+def _switched(record: dict, text: str, upstream: str) -> tuple[dict, str | None]:
+    """A switched sheet shows its values and extremes across the intervals, and a time constant and final value per
+    interval: ``final_value`` is the last interval's (where the response settles), a time constant is named by
+    its interval (``time_constant in interval 2``). Anything else is read from the values across the switches."""
+    intervals = record["intervals"]
+    named = _IN_INTERVAL.match(text)
+    if named:
+        number = int(named.group(2))
+        if not 1 <= number <= len(intervals):
+            raise InputError(f"'{shortened(text)}': sheet {upstream} has intervals 1 to {len(intervals)}")
+        return record, _quantity(intervals[number - 1].get(named.group(1)), text, upstream)
+    if text == "final_value":
+        return record, _quantity(intervals[-1].get("final_value"), text, upstream)
+    if text == "time_constant":
+        raise InputError(
+            f"sheet {upstream} is switched and each interval has its own time constant: write "
+            f"'time_constant in interval N' (N from 1 to {len(intervals)})"
+        )
+    return {"model": record["model"], **record.get("across", {})}, None
 
 
 def _unknown(record: dict) -> str:

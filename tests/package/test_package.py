@@ -398,3 +398,63 @@ def test_diff_at_a_revision_sees_the_basis_as_it_was_then(tmp_path):
     old_min, new_min = 2000 / 60 * math.log(20 / 10), 2000 / 60 * math.log(30 / 20)
     assert reach["old"]["value"] == pytest.approx(old_min, rel=1e-8)
     assert reach["new"]["value"] == pytest.approx(new_min, rel=1e-8)
+
+
+HOLD = """
+[sheet]
+title = "Holding current into a second coil"
+number = "HD-1"
+[model]
+equation = "tau*dy/dt + y = I_1"
+unknown = "y [A]"
+variable = "t [ms]"
+[parameters]
+tau = { from = "EL-022", result = "time_constant in interval 2" }
+I_1 = { from = "EL-022", result = "i(120 ms)" }
+[initial]
+at = "0 ms"
+value = "0 A"
+[evaluate]
+at = ["10 ms"]
+"""
+
+
+def _switched_package(tmp_path: Path, hold: str) -> Path:
+    """The valve-coil demo (switched at 120 ms, EL-022) and a sheet that takes two of its results."""
+    demo = Path(__file__).resolve().parents[2] / "inputs" / "valve-coil-economiser.toml"
+    package = 'title = "Switched results"\nnumber = "SW-01"\nsheets = ["coil.toml", "hold.toml"]\n'
+    (tmp_path / "package.toml").write_text(
+        f'[package]\n{package}\n[basis]\nV_ctrl = {{ value = "24 V", tolerance = "10 %" }}\n', encoding="utf-8"
+    )
+    (tmp_path / "coil.toml").write_text(demo.read_text(encoding="utf-8"), encoding="utf-8")
+    (tmp_path / "hold.toml").write_text(hold, encoding="utf-8")
+    return tmp_path
+
+
+def test_a_switched_sheet_passes_a_value_and_an_interval_time_constant(tmp_path):
+    folder = _switched_package(tmp_path, HOLD)
+    code, stdout, stderr = run("build", folder, "--out", tmp_path / "out", "--format", "json", "--jobs", "1")
+    assert code in (0, 1), stdout + stderr  # the coil sheet fails at worst case by design (exit 1)
+    coil = json.loads((tmp_path / "out" / "coil.json").read_text(encoding="utf-8"))
+    hold = json.loads((tmp_path / "out" / "hold.json").read_text(encoding="utf-8"))
+    # interval 2 of the coil is L / R2 = 0.8 H / 80 ohm = 10 ms (the demo's values; hand arithmetic)
+    number, unit = parameter(hold, "tau")["value"].split()
+    assert float(number) == pytest.approx(10.0, rel=1e-9) and unit == "ms"
+    held = next(v for v in coil["across"]["values"] if v["at"]["value"] == 120.0)["value"]["value"]
+    # y(10 ms) = I_1 (1 - exp(-10/10)): the first-order step response written by hand (common practice, no source)
+    expected = held * (1 - math.exp(-1.0))
+    assert hold["values"][0]["value"]["value"] == pytest.approx(expected, rel=1e-9)
+
+
+@pytest.mark.parametrize(
+    "result, words",
+    [
+        ("time_constant", ["EL-022", "time_constant in interval N"]),
+        ("time_constant in interval 3", ["EL-022", "intervals 1 to 2"]),
+    ],
+)
+def test_an_ambiguous_result_of_a_switched_sheet_is_one_line(tmp_path, result, words):
+    folder = _switched_package(tmp_path, HOLD.replace("time_constant in interval 2", result))
+    line = one_error(folder, "build", folder, "--out", tmp_path / "out", "--format", "json", "--jobs", "1")
+    for word in words:
+        assert word in line, line
