@@ -201,6 +201,8 @@ def register_html(package: Package, rows: list[Row]) -> str:
     sheet_rows = []
     for row in rows:
         cells = dict(zip(COLUMNS, _cells(row)))
+        if not cells["status"] and not row.problem:  # the CSV and JSON keep "": a reader of the page sees why
+            cells["status"] = "not stated"
         verdict_class = {"PASS": "pass", "FAIL": "fail"}.get(row.verdict, "notbuilt")
         tds = "".join(
             f'<td class="{verdict_class}">{escape(visible(cells[c]))}</td>'

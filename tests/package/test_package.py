@@ -199,6 +199,7 @@ def test_the_package_build_writes_every_sheet_in_dependency_order_and_the_regist
     assert {b["name"] for b in register["basis"]} == {"T_amb", "V_ctrl"}
     html = (out / "register.html").read_text(encoding="utf-8")
     assert "Test package" in html and "design basis section 3" in html and "licensed engineer" in html
+    assert cool["status"] == "" and html.count("<td>not stated</td>") == 3  # no sheet states its issue status
     code, again, _ = run("build", folder, "--out", tmp_path / "again", "--format", "json,txt")
     for name in ("register.csv", "register.json", "register.html"):
         assert (out / name).read_bytes() == (tmp_path / "again" / name).read_bytes()
