@@ -205,6 +205,8 @@ def _inputs(old: dict, new: dict) -> list[Change]:
             )
         else:
             out += _text(INPUT, "criterion text", before.get("text"), after.get("text"), name=check, row=row)
+            for cited in ("source", "basis"):  # where the limit comes from: a checker signs against it
+                out += _text(INPUT, f"criterion {cited}", before.get(cited), after.get(cited), name=check, row=row)
     return out
 
 

@@ -35,6 +35,8 @@ SUBJECTS = {
     "kind": "model kind",
     "forcing": "forcing",
     "criterion text": "wording of criterion",
+    "criterion source": "source of the limit of criterion",
+    "criterion basis": "basis of the limit of criterion",
     "value": "value",
     "reach": "time to reach",
     "extreme value": "extreme",
@@ -48,7 +50,14 @@ SUBJECTS = {
     "forced": "forced response",
     "fingerprint": "fingerprint",
 }
-QUOTED = ("criterion", "criterion text", "worst case", "worst value")  # names that are a check as written
+QUOTED = (
+    "criterion",
+    "criterion text",
+    "criterion source",
+    "criterion basis",
+    "worst case",
+    "worst value",
+)  # names that are a check as written
 STATES = {"pass": "PASS", "fail": "FAIL", "not assessed": "NOT ASSESSED", True: "PASS", False: "FAIL"}
 ABSENT = "(none)"
 

@@ -24,6 +24,8 @@ TABLE_OF = {
     (INPUT, "tolerance"): "tolerances",
     (INPUT, "criterion"): "criteria",
     (INPUT, "criterion text"): "criteria",
+    (INPUT, "criterion source"): "criteria",
+    (INPUT, "criterion basis"): "criteria",
     (VERDICT, "criterion"): "criteria",
     (VERDICT, "worst case"): "worst_case",
     (RESULT, "value"): "values",

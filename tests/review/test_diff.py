@@ -278,3 +278,21 @@ def test_a_worst_case_verdict_that_flips_is_a_verdict_flip():
         ("verdict", "worst case", "pass", "fail"),
         ("verdict", "overall", True, False),
     ]
+
+
+def test_a_changed_source_of_a_limit_is_an_input_change(tmp_path):
+    """The checker signs a limit against its source: a new clause or document is reported, the verdict is not."""
+    old, new = bus_pair(tmp_path)
+    text = BUS.read_text(encoding="utf-8")
+    cited = 'source = "client specification CS-PD3 §4.2, touch-safe residual voltage (demo)"'
+    assert text.count(cited) == 2
+    new.write_text(text.replace(cited, cited.replace("§4.2", "§4.3"), 1), encoding="utf-8")
+    code, out, err = run("diff", old, new, "--format", "json")
+    assert code == 0, err
+    (comparison,) = json.loads(out)["comparisons"]
+    changes = [c for c in comparison["changes"] if c["subject"] == "criterion source"]
+    assert len(changes) == 1 and changes[0]["section"] == "input"
+    assert "§4.2" in changes[0]["old"] and "§4.3" in changes[0]["new"]
+    assert not [c for c in comparison["changes"] if c["section"] == "verdict"]
+    code, out, _ = run("diff", old, new)
+    assert "source of the limit of criterion" in out and "§4.3" in out
