@@ -203,11 +203,11 @@ def _reserved() -> set[str]:
 
 
 def _signature() -> dict:
+    signed = _closed(keys.SIGNATURE_KEYS)
+    # sheet_keys.signoff: a signed entry names its signer (left out, the prepared entry takes the originator)
+    signed["dependentSchemas"] = {"fingerprint": {"properties": {"name": {"pattern": NOT_BLANK}}}}
     return {
-        "anyOf": [
-            {"type": "string", "maxLength": MAX_TEXT},
-            _closed(keys.SIGNATURE_KEYS),
-        ],
+        "anyOf": [{"type": "string", "maxLength": MAX_TEXT}, signed],
         "description": 'A name in quotes, or a table { name = "...", date = "YYYY-MM-DD" }.',
     }
 
