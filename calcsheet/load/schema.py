@@ -48,6 +48,7 @@ CHECK_PATTERN = rf"^[{EXPRESSION_CHARS},]*(?:<=|>=|<|>)[{EXPRESSION_CHARS},]*$"
 EXTREME_PATTERN = r"^\s*(?:max|min)(?:\s+(?:from\s+.+|[^.]+?\s*\.\.\s*[^.].*))?\s*$"
 INTEGRAL_PATTERN = r"^\s*integral\s*\([^()]*\)\s*$"
 NOT_BLANK = r"\S"
+OUTSIDE = r"^\s*/|(?:^|/)\.\.(?:/|\s*$)"  # package_file._sheets: a pattern stays inside the package folder
 
 
 def input_schema() -> dict:
@@ -159,7 +160,7 @@ def _value(value: str, choices: tuple[str, ...] = ()) -> dict:
         keys.CHOICE: {"enum": list(choices)},
         keys.KIND: {"enum": list(all_kinds())},
         keys.FINGERPRINT: {"type": "string", "pattern": keys.FINGERPRINT_PATTERN},
-        keys.FILE_PATTERNS: {"type": "array", "items": {**text, "pattern": NOT_BLANK}},
+        keys.FILE_PATTERNS: {"type": "array", "items": {**text, "pattern": NOT_BLANK, "not": {"pattern": OUTSIDE}}},
         keys.SIGNATURE: {"$ref": "#/$defs/signature"},
         keys.PARAMETER_TABLE: {"$ref": "#/$defs/switch_parameters"},
         keys.FORCING_TABLE: {"$ref": "#/$defs/forcing"},

@@ -519,8 +519,14 @@ def test_a_reference_with_both_keys_missing_fails_both(tmp_path):
 
 @pytest.mark.parametrize(
     "change",
-    [('title = "Schema test package"\n', ""), ('"TP-01"', '""'), ('sheets = ["*.toml"]', "sheets = 3")],
-    ids=["no-title", "empty-number", "sheets-not-a-list"],
+    [
+        ('title = "Schema test package"\n', ""),
+        ('"TP-01"', '""'),
+        ('sheets = ["*.toml"]', "sheets = 3"),
+        ('sheets = ["*.toml"]', 'sheets = ["../*.toml"]'),
+        ('sheets = ["*.toml"]', 'sheets = ["/tmp/*.toml"]'),
+    ],
+    ids=["no-title", "empty-number", "sheets-not-a-list", "sheets-above", "sheets-absolute"],
 )
 def test_a_mistake_in_the_package_file_fails_both(tmp_path, change):
     text = PACKAGE_FILE.replace(*change)
