@@ -257,6 +257,15 @@ def test_enums_name_every_kind_form_role_and_status():
     assert properties["sheet"]["properties"]["status"]["enum"] == list(STATUSES)
 
 
+def test_every_choice_the_schema_offers_is_one_the_loader_accepts(tmp_path):
+    properties = input_schema()["properties"]
+    for status in properties["sheet"]["properties"]["status"]["enum"]:
+        text = FULL.replace('status = "for check"', f'status = "{status}"')
+        assert loads(tmp_path, text) and problems(SHEET, text) == [], status
+    for kind in properties["model"]["properties"]["kind"]["enum"]:
+        assert loads(tmp_path, starter_text(kind)), kind
+
+
 # ------------------------------------------------------------------------------- valid inputs validate
 @pytest.mark.parametrize("path", DEMOS, ids=[p.stem for p in DEMOS])
 def test_every_demo_validates(path):
