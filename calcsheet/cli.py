@@ -425,6 +425,15 @@ def impact(folder: str, target: str) -> None:
 
 
 @main.command()
+@click.option("--package", "package", is_flag=True, help="The schema of package.toml instead of an input file's.")
+def schema(package: bool) -> None:
+    """Print the JSON Schema of an input file (or of package.toml) for an editor to validate against."""
+    from calcsheet.load.schema import schema_text
+
+    click.echo(schema_text(package), nl=False)
+
+
+@main.command()
 @click.argument("name", required=False)
 def kinds(name: str | None) -> None:
     """List the model kinds, or show one kind's parameters, dimensions and equation."""

@@ -12,6 +12,7 @@ ORDER = [
     "formatting",
     "mathtext",
     "subjects",
+    "input_keys",
     "source",
     "kinds",
     "model",

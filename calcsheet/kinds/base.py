@@ -6,7 +6,6 @@ from dataclasses import dataclass, field
 from typing import Callable
 
 from calcsheet.errors import InputError
-from calcsheet.source import units
 
 
 INFO, WARNING, INVALID = "info", "warning", "invalid"
@@ -169,9 +168,12 @@ class KindUse:
 
 def check_slot_dimension(kind: Kind, slot: Slot, quantity, where: str) -> None:
     """A slot with an empty unit takes any dimension (a gain between two chosen units, say);
-    the equation's own unit check still applies to it."""
+    the equation's own unit check still applies to it. pint is imported here, not with the module, so the
+    kinds can be listed (the catalogue, the schema) without loading it."""
     if not slot.unit:
         return
+    from calcsheet.source import units
+
     expected = units.parse_unit(slot.unit)
     if not units.same_dimension(quantity.units, expected):
         raise InputError(

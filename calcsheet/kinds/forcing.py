@@ -10,80 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from calcsheet.errors import InputError
+from calcsheet.kinds.forcing_forms import EXPRESSION, FORM_KEY, FORMS, Role
 from calcsheet.source import units, value_expressions
-
-
-@dataclass(frozen=True)
-class Role:
-    key: str  # the key in [forcing]
-    suffix: str  # the parameter becomes <source>_<suffix>
-    dimension: str  # "source", "variable", "rate", "frequency" or "angle"
-    default: str | None = None
-    difference: bool = False  # a swing about a level, not a level: 10 degC here means 10 K
-
-
-@dataclass(frozen=True)
-class Form:
-    name: str
-    words: str  # how the sheet names it
-    roles: tuple[Role, ...]
-    template: str  # expression with {<suffix>} for parameter names and {x} for the variable
-
-
-FORMS = {
-    form.name: form
-    for form in (
-        Form("constant", "a constant", (Role("value", "val", "source"),), "{val}"),
-        Form(
-            "step",
-            "a step",
-            (Role("before", "before", "source", "0"), Role("after", "after", "source"), Role("at", "at", "variable")),
-            "{before} + ({after} - {before})*step({x} - {at})",
-        ),
-        Form(
-            "ramp",
-            "a ramp",
-            (
-                Role("start", "start", "source", "0"),
-                Role("rate", "rate", "rate"),
-                Role("from", "from", "variable", "0"),
-            ),
-            "{start} + {rate}*({x} - {from})*step({x} - {from})",
-        ),
-        Form(
-            "sine",
-            "a sinusoid",
-            (
-                Role("amplitude", "amp", "source", difference=True),
-                Role("frequency", "freq", "frequency"),
-                Role("phase", "phase", "angle", "0"),
-                Role("offset", "offset", "source", "0"),
-            ),
-            "{offset} + {amp}*sin(2*pi*{freq}*{x} + {phase})",
-        ),
-        Form(
-            "exponential",
-            "a decaying exponential",
-            (
-                Role("initial", "initial", "source"),
-                Role("final", "final", "source", "0"),
-                Role("time_constant", "tau", "variable"),
-            ),
-            "{final} + ({initial} - {final})*exp(-({x})/{tau})",
-        ),
-        Form(
-            "pulse",
-            "a rectangular pulse",
-            (
-                Role("base", "base", "source", "0"),
-                Role("height", "height", "source", difference=True),
-                Role("start", "start", "variable"),
-                Role("width", "width", "variable"),
-            ),
-            "{base} + {height}*(step({x} - {start}) - step({x} - {start} - {width}))",
-        ),
-    )
-}
 
 
 @dataclass(frozen=True)
@@ -99,12 +27,12 @@ def forcing_from_table(table: dict, source: str, source_unit: str, variable: str
     if not isinstance(table.get("form"), str):
         raise InputError(f"give the form of the forcing: one of {', '.join(FORMS)}, or expression", "forcing.form")
     name = table["form"].strip()
-    if name == "expression":
+    if name == EXPRESSION:
         return _expression(table, source)
     if name not in FORMS:
         raise InputError(f"unknown form '{name}' (known: {', '.join(FORMS)}, expression)", "forcing.form")
     form = FORMS[name]
-    allowed = {"form"} | {r.key for r in form.roles}
+    allowed = {FORM_KEY} | {r.key for r in form.roles}
     for key in table:
         if key not in allowed:
             raise InputError(f"unknown key for a {name} (expected: {', '.join(sorted(allowed))})", f"forcing.{key}")
@@ -165,7 +93,7 @@ def role_keys(table, source: str) -> dict[str, str]:
 
 def _expression(table: dict, source: str) -> Forcing:
     for key in table:
-        if key not in ("form", "expression"):
+        if key not in (FORM_KEY, EXPRESSION):
             raise InputError("unknown key for an expression (expected: expression)", f"forcing.{key}")
     text = table.get("expression")
     if not isinstance(text, str) or not text.strip():

@@ -12,6 +12,7 @@ from typing import Any
 import sympy as sp
 
 from calcsheet.errors import ErrorList, InputError, shortened
+from calcsheet.input_keys import DERIVED_KEYS, names
 from calcsheet.model import Declared, DerivedQuantity, Parameter
 from calcsheet.source import expressions as ex
 from calcsheet.source import units
@@ -19,7 +20,7 @@ from calcsheet.source.dimensions import check_expression, refuse_absolute_sums
 from calcsheet.source.symbolic import to_sympy
 from calcsheet.source.text_rules import toml_kind
 
-KEYS = ("name", "expression", "unit", "text", "integral_unit")
+KEYS = names(DERIVED_KEYS)  # calcsheet/input_keys.py
 
 
 def read_derived(

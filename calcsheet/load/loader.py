@@ -16,10 +16,11 @@ from typing import Any
 import sympy as sp
 
 from calcsheet.errors import CalcsheetError, ErrorList, InputError, ModelRefused, key_part, shortened
+from calcsheet.input_keys import PARAMETER_KEYS, RANGE_KEYS, SHEET_TABLES, names
 from calcsheet.formatting import number as _number
 from calcsheet.kinds.expand import expand_kind, kind_checks, worked_slot_dimensions
 from calcsheet.load import sheet_keys
-from calcsheet.load.derived import KEYS as DERIVED_KEYS, read_derived
+from calcsheet.load.derived import read_derived
 from calcsheet.load.overrides import apply_overrides
 from calcsheet.load.sweep_range import Vary, apply_sweep_range
 from calcsheet.load.toml_file import read_toml
@@ -46,7 +47,7 @@ from calcsheet.source.dimensions import check_equation, refuse_absolute_sums
 from calcsheet.source.singular import Values, check_equation_values
 from calcsheet.source.symbolic import to_sympy
 from calcsheet.source.text_rules import check_raw, toml_kind
-from calcsheet.source.tolerances import RANGE_KEYS, read_range
+from calcsheet.source.tolerances import read_range
 from calcsheet.subjects import (
     CONDITION_SUBJECT,
     INTEGRAL,
@@ -60,33 +61,10 @@ from calcsheet.subjects import (
     written_subject,
 )
 
-TABLES = {
-    "sheet": {
-        "title",
-        "number",
-        "revision",
-        "project",
-        "originator",
-        "purpose",
-        "references",
-        "assumptions",
-        "date",
-        "style",
-        "status",
-    },
-    "model": {"equation", "unknown", "variable", "kind"},
-    "forcing": None,  # keys depend on the form; checked in kinds/forcing.py
-    "parameters": None,  # any parameter name
-    "initial": {"at", "value"},
-    "evaluate": {"at", "reach", "extremes", "integrals"},
-    "criteria": {"text", "check", "source", "basis"},
-    "plot": {"to"},
-    "signoff": set(sheet_keys.ROLES),
-    "revisions": {"revision", "date", "description"},
-    "switch": {"at", "text", "parameters", "forcing"},
-    "derived": set(DERIVED_KEYS),
-}
-LISTS = {"criteria", "revisions", "switch", "derived"}  # written as [[name]]
+# The tables and keys an input may hold (calcsheet/input_keys.py, which the JSON Schema reads too); None: the
+# keys are the user's names ([parameters]) or depend on the form ([forcing], checked in kinds/forcing.py).
+TABLES = {table.name: None if table.keys is None else set(table.key_names) for table in SHEET_TABLES}
+LISTS = {table.name for table in SHEET_TABLES if table.listed}  # written as [[name]]
 RESERVED = set(ex.FUNCTIONS) | set(ex.CONSTANTS) | reserved_words()
 # Applied to stripped text: one optional group between single runs of spaces, so it is linear.
 _CHECK = re.compile(
@@ -599,12 +577,12 @@ class _Builder:
             raise InputError(f"'{name}' is reserved or already the unknown or the variable")
         source = note = ""
         if isinstance(entry, dict):
-            unknown_keys = set(entry) - {"value", "source", "note", *RANGE_KEYS}
+            unknown_keys = set(entry) - set(names(PARAMETER_KEYS))
             if unknown_keys:
                 shown = key_part(sorted(unknown_keys)[0])
                 raise InputError(
                     f"unknown key {shown if shown.startswith(chr(34)) else repr(shown)} "
-                    "(expected value, source, note, tolerance, min, max)"
+                    f"(expected {', '.join(names(PARAMETER_KEYS))})"
                 )
             if "value" not in entry:
                 raise InputError('the table needs a value, e.g. { value = "47 kohm" }')

@@ -9,15 +9,16 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from calcsheet.errors import ErrorList, InputError, key_part, shortened
+from calcsheet.input_keys import BASIS_KEYS as BASIS_ENTRY_KEYS
+from calcsheet.input_keys import PACKAGE_TABLES, TITLE_KEYS, names, table_named
 from calcsheet.load.toml_file import read_toml
 from calcsheet.source import units
 from calcsheet.source.expressions import NAME_PATTERN
 from calcsheet.source.text_rules import check_raw, toml_kind
-from calcsheet.source.tolerances import RANGE_KEYS
 
 PACKAGE_FILE = "package.toml"
-TITLE_KEYS = ("title", "number", "revision", "project", "client", "style")
-BASIS_KEYS = ("value", "source", "note", *RANGE_KEYS)
+BASIS_KEYS = names(BASIS_ENTRY_KEYS)
+PACKAGE_KEYS = names(table_named(PACKAGE_TABLES, "package").keys)
 
 
 @dataclass(frozen=True)
@@ -79,16 +80,17 @@ def read_package(file: Path) -> Package:
 
 
 def _package(file: Path, raw: dict) -> Package:
-    unknown = set(raw) - {"package", "basis", "signoff"}
+    unknown = set(raw) - {table.name for table in PACKAGE_TABLES}
     if unknown:
         raise InputError(
             "unknown table (a package file has [package], [basis] and [signoff])", key_part(sorted(unknown)[0])
         )
     head = _table(raw, "package")
-    extra = set(head) - {*TITLE_KEYS, "sheets"}
+    extra = set(head) - set(PACKAGE_KEYS)
     if extra:
         raise InputError(
-            f"unknown key (expected {', '.join(TITLE_KEYS)} or sheets)", f"package.{key_part(sorted(extra)[0])}"
+            f"unknown key (expected {', '.join(PACKAGE_KEYS[:-1])} or {PACKAGE_KEYS[-1]})",
+            f"package.{key_part(sorted(extra)[0])}",
         )
     texts = {}
     for key in TITLE_KEYS:

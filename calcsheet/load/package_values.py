@@ -7,7 +7,8 @@ from pathlib import Path
 
 from calcsheet.errors import InputError, shortened
 from calcsheet.load.package_file import Package, find_package, read_package
-from calcsheet.load.references import REFERENCE_KEYS, references_in
+from calcsheet.input_keys import REFERENCE_KEYS
+from calcsheet.load.references import references_in
 
 # (sheet number, result as written) -> (value with unit, citation of the sheet it comes from)
 Results = dict[tuple[str, str], tuple[str, str]]

@@ -7,10 +7,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from calcsheet.errors import InputError, key_part, shortened
+from calcsheet.input_keys import REFERENCE_KEYS
 from calcsheet.load.toml_file import read_toml
 from calcsheet.load.package_file import Package
-
-REFERENCE_KEYS = ("basis", "from", "result")
 
 
 @dataclass(frozen=True)

@@ -7,11 +7,11 @@ import re
 from typing import Any
 
 from calcsheet.errors import ErrorList, InputError
+from calcsheet.input_keys import FINGERPRINT_PATTERN, ROLES, SIGNATURE_KEYS, STATUSES, names
 from calcsheet.model import Revision, SignOff
 
-ROLES = ("prepared", "checked", "approved")  # in the order they sign
-STATUSES = ("preliminary", "for check", "issued", "superseded")
-_FINGERPRINT = re.compile(r"[0-9a-f]{64}")
+SIGNATURE_KEY_NAMES = frozenset(names(SIGNATURE_KEYS))
+_FINGERPRINT = re.compile(FINGERPRINT_PATTERN.strip("^$"))
 
 
 def iso_date(value: Any, where: str) -> str:
@@ -50,7 +50,7 @@ def _signoff_row(table: dict, role: str, originator: str) -> SignOff:
     where = f"signoff.{role}"
     if isinstance(entry, str):
         entry = {"name": entry}
-    if not isinstance(entry, dict) or set(entry) - {"name", "date", "fingerprint"}:
+    if not isinstance(entry, dict) or set(entry) - SIGNATURE_KEY_NAMES:
         raise InputError('must be a name in quotes or a table { name = "...", date = "YYYY-MM-DD" }', where)
     name = entry.get("name", originator if role == "prepared" else "")
     if not isinstance(name, str):

@@ -15,7 +15,7 @@ from dataclasses import dataclass
 from calcsheet.errors import InputError, key_part, shortened
 from calcsheet.load.overrides import check_like, settable
 from calcsheet.source import units
-from calcsheet.source.tolerances import RANGE_KEYS
+from calcsheet.input_keys import RANGE_KEYS
 from calcsheet.source.value_expressions import is_expression
 
 MIN_STEPS, MAX_STEPS = 2, 1000

@@ -13,9 +13,8 @@ import pint
 
 from calcsheet.errors import InputError
 from calcsheet.formatting import number
+from calcsheet.input_keys import RANGE_KEYS
 from calcsheet.source import units
-
-RANGE_KEYS = ("tolerance", "min", "max")
 
 
 @dataclass(frozen=True)
