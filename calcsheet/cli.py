@@ -277,7 +277,7 @@ def _watch(target, out_dir, formats, style, workers, poll, serve, port) -> None:
             say=click.echo,
             report=lambda line: click.echo(line, err=True),
             poll=poll,
-            after_round=server.rebuilt if server is not None else None,
+            after_round=(lambda: server.rebuilt(rebuild.outcomes)) if server is not None else None,
         )
     finally:
         if server is not None:

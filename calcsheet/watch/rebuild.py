@@ -5,7 +5,7 @@ save the watcher saw is answered."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 
@@ -21,11 +21,13 @@ class Rebuild:
     say: object  # a line to standard output
     warn: object  # a line to standard error
     write_registers: object  # (jobs, done, failures, out_dir, quiet): a package's register and bound PDF
+    outcomes: dict = field(default_factory=dict)  # the last round's pages: "<stem>.html" -> its error line, or ""
 
     def __call__(self, items: tuple[str, ...], first: bool) -> None:
         from calcsheet.package.build_run import BuildRun
         from calcsheet.package.session import jobs_for
 
+        self.outcomes.clear()
         if not items:  # only deleted sheets: nothing to build
             return
         jobs = jobs_for(items, writes=True)
@@ -49,6 +51,7 @@ class Rebuild:
             say_reused=first,
         )
         run.run(jobs, self.workers)
+        self.outcomes.update({f"{j.path.stem}.html": run.failures.get(j.path, "") for j in jobs})
         if not lines:
             self.say(f"{', '.join(items)}: no sheet changed")
         self.write_registers(jobs, run.done, run.failures, self.out_dir, not first)

@@ -35,6 +35,7 @@ class PageServer:
         self._changed = threading.Condition()
         self._generation = 0
         self._closing = False
+        self._problems: dict[str, str] = {}  # page -> why its last build failed
         self._http = ThreadingHTTPServer((HOST, port), _handler(self))  # port 0: the system picks a free one
         self.port = self._http.server_address[1]
         self._thread = threading.Thread(target=self._http.serve_forever, name="calcsheet-serve", daemon=True)
@@ -49,11 +50,19 @@ class PageServer:
     def start(self) -> None:
         self._thread.start()
 
-    def rebuilt(self) -> None:
-        """Wake the open event streams to compare their page with the file now on disk."""
+    def rebuilt(self, outcomes: dict[str, str] | None = None) -> None:
+        """Wake the open event streams to compare their page with the file now on disk. ``outcomes``: the pages
+        of the round, each with the line saying why it was not built ("" when it was), kept until its next round."""
         with self._changed:
+            for page, problem in (outcomes or {}).items():
+                self._problems[page] = " ".join(problem.split())  # one line, as an event's data must be
             self._generation += 1
             self._changed.notify_all()
+
+    def problem(self, page: str) -> str:
+        """Why the page's last build failed ("" when it did not), shown over the page until a build succeeds."""
+        with self._changed:
+            return self._problems.get(page, "")
 
     def close(self) -> None:
         with self._changed:
@@ -148,7 +157,8 @@ def _handler(server: PageServer):
             self._send(200, CONTENT_TYPES[".html"], page, body)
 
         def _events(self, query: dict, body: bool) -> None:
-            """Server-sent events: one "reload" once the page differs from ``since``, comments to keep alive."""
+            """Server-sent events: "problem" when the page's last build failed (empty data once one succeeds), one
+            "reload" once the page differs from ``since``, and comments to keep the stream alive."""
             page, since = query.get("page", [""])[0], query.get("since", [""])[0]
             if server.version(page) is None:
                 return self._plain(404, "not a page of the out folder", body)
@@ -161,13 +171,18 @@ def _handler(server: PageServer):
             try:
                 self.wfile.write(b"retry: 1000\n\n")
                 self.wfile.flush()
-                seen = server.generation
+                seen, shown = server.generation, ""
                 while seen >= 0:
                     current = server.version(page)
                     if current and current != since:  # a missing file waits for its rebuild
                         self.wfile.write(f"event: reload\ndata: {current}\n\n".encode("ascii"))
                         self.wfile.flush()
                         return
+                    problem = server.problem(page)
+                    if problem != shown:
+                        self.wfile.write(f"event: problem\ndata: {problem}\n\n".encode("utf-8"))
+                        self.wfile.flush()
+                        shown = problem
                     seen = server.wait_for_change(seen)
                     self.wfile.write(b": waiting\n\n")
                     self.wfile.flush()

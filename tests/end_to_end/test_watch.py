@@ -200,7 +200,7 @@ def _raw_get(port: int, path: str, host: str | None = None) -> int:
 SCRIPT = re.compile(rb"<script>\(function \(\) \{ var events = new EventSource\(\"([^\"]+)\"\);.*?</script>\n", re.S)
 
 
-def test_serve_shows_the_page_signals_its_reload_and_serves_only_the_out_folder(tmp_path):
+def test_serve_shows_the_page_signals_its_reload_and_a_problem_and_serves_only_the_out_folder(tmp_path):
     sheet = copy_demo(BUS, tmp_path)
     out = tmp_path / "out"
     watching = Watching(tmp_path, str(sheet), "--out", str(out), "--format", FORMATS, "--serve")
@@ -247,6 +247,17 @@ def test_serve_shows_the_page_signals_its_reload_and_serves_only_the_out_folder(
         assert status == 200 and b"FAIL: Residual bus voltage" in page and SCRIPT.sub(b"", page) == rebuilt
         status, index = _get(url)
         assert status == 200 and f'href="{sheet.stem}.html"'.encode() in index
+
+        # A bad value: the page stays as last built, and its stream says why.
+        _save(sheet, text.replace('R = { value = "4.7 kohm"', 'R = { value = "47 kohmz"'))
+        problem_events = url.rstrip("/") + events.split("&since=")[0] + "&since=" + hashlib.sha256(rebuilt).hexdigest()
+        with urllib.request.urlopen(problem_events, timeout=DEADLINE_SECONDS) as stream:
+            line = b""
+            while line != b"event: problem\n":
+                line = stream.readline()
+                assert line, "the event stream closed without naming the problem"
+            assert stream.readline().startswith(f"data: {sheet}: parameters.R: unknown unit 'kohmz'".encode())
+        assert (out / f"{sheet.stem}.html").read_bytes() == rebuilt
 
         # Only visible files inside the out folder, only to requests addressed to this server.
         (out / "outside.txt").symlink_to(sheet)

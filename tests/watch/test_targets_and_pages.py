@@ -197,3 +197,21 @@ def test_the_server_serves_only_visible_files_inside_the_out_folder(server, tmp_
     assert _raw_status(server, "/a.json", host=f"localhost:{server.port}") == 200
     assert _raw_status(server, "/a.json", host="calc.example.com") == 403
     assert _raw_status(server, "/a.json", host=f"calc.example.com:{server.port}") == 403
+
+
+def test_the_event_stream_shows_why_a_page_was_not_rebuilt_until_a_build_succeeds(server, tmp_path):
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "a.html").write_bytes(b"<body>built</body>")
+    version = hashlib.sha256(b"<body>built</body>").hexdigest()
+    server.rebuilt({"a.html": "a.toml: parameters.R: unknown unit 'kohmz'\n(second line)", "b.html": ""})
+    with urllib.request.urlopen(server.url.rstrip("/") + events_url("a.html", version), timeout=DEADLINE_SECONDS) as s:
+        lines = [s.readline() for _ in range(5)]  # retry, blank, the problem standing when the page opened, blank
+        assert lines[2:4] == [b"event: problem\n", b"data: a.toml: parameters.R: unknown unit 'kohmz' (second line)\n"]
+        server.rebuilt({"a.html": ""})  # built again, to the same bytes: no reload, the note goes
+        line = b""
+        while line != b"event: problem\n":
+            line = s.readline()
+            assert line, "the stream ended"
+        assert s.readline() == b"data: \n"
+    assert server.problem("b.html") == "" and server.problem("a.html") == ""
