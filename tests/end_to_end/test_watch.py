@@ -16,6 +16,7 @@ import json
 import os
 import re
 import signal
+import socket
 import subprocess
 import sys
 import time
@@ -32,6 +33,8 @@ ROOT = Path(__file__).resolve().parents[2]
 BUS = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"  # R = 4.7 kohm: v(60 s) well below 50 V, both criteria pass
 FORMATS = "html,json,txt"
 DEADLINE_SECONDS = 120  # a guard against a hang, not a measurement
+# The subprocesses run in temporary folders: this checkout first on their path, whatever is installed.
+ENV = {**os.environ, "PYTHONPATH": os.pathsep.join(p for p in (str(ROOT), os.environ.get("PYTHONPATH", "")) if p)}
 
 
 class Watching:
@@ -41,7 +44,7 @@ class Watching:
         self.out_file, self.err_file = folder / "watch.stdout", folder / "watch.stderr"
         with open(self.out_file, "wb") as out, open(self.err_file, "wb") as err:
             self.process = subprocess.Popen(
-                [sys.executable, "-m", "calcsheet", "watch", *args], stdout=out, stderr=err, cwd=folder
+                [sys.executable, "-m", "calcsheet", "watch", *args], stdout=out, stderr=err, cwd=folder, env=ENV
             )
 
     def stdout(self) -> str:
@@ -226,6 +229,7 @@ def test_serve_shows_the_page_signals_its_reload_and_a_problem_and_serves_only_t
             capture_output=True,
             text=True,
             cwd=tmp_path,
+            env=ENV,
         )
         assert built.returncode == 0, built.stderr
         assert _outputs(out) == _outputs(reference)
@@ -284,18 +288,24 @@ def test_serve_shows_the_page_signals_its_reload_and_a_problem_and_serves_only_t
 
 def test_bad_settings_are_one_line_and_exit_2(tmp_path):
     sheet = copy_demo(BUS, tmp_path)
-    for args, problem in (
-        ([str(tmp_path / "missing.toml")], f"{tmp_path / 'missing.toml'}: no such file or folder"),
-        ([str(sheet), "--port", "8000"], "--port: is the port of --serve: give --serve too"),
-        ([str(sheet), "--serve", "--format", "json"], "--format: --serve shows the HTML pages: add html to it"),
-        ([str(sheet), "--format", "docx"], "--format: unknown format 'docx'"),
-    ):
-        result = subprocess.run(
-            [sys.executable, "-m", "calcsheet", "watch", *args, "--out", str(tmp_path / "out")],
-            capture_output=True,
-            text=True,
-            timeout=DEADLINE_SECONDS,
-        )
-        assert result.returncode == 2, (args, result.stderr)
-        assert result.stderr.count("\n") == 1 and result.stderr.startswith(problem), (args, result.stderr)
+    with socket.socket() as taken:  # a port another program listens on
+        taken.bind(("127.0.0.1", 0))
+        taken.listen()
+        busy = taken.getsockname()[1]
+        for args, problem in (
+            ([str(tmp_path / "missing.toml")], f"{tmp_path / 'missing.toml'}: no such file or folder"),
+            ([str(sheet), "--port", "8000"], "--port: is the port of --serve: give --serve too"),
+            ([str(sheet), "--serve", "--format", "json"], "--format: --serve shows the HTML pages: add html to it"),
+            ([str(sheet), "--format", "docx"], "--format: unknown format 'docx'"),
+            ([str(sheet), "--serve", "--port", str(busy)], f"--port: cannot listen on 127.0.0.1:{busy}: "),
+        ):
+            result = subprocess.run(
+                [sys.executable, "-m", "calcsheet", "watch", *args, "--out", str(tmp_path / "out")],
+                capture_output=True,
+                text=True,
+                timeout=DEADLINE_SECONDS,
+                env=ENV,
+            )
+            assert result.returncode == 2, (args, result.stderr)
+            assert result.stderr.count("\n") == 1 and result.stderr.startswith(problem), (args, result.stderr)
     assert not (tmp_path / "out").exists()
