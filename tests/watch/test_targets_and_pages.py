@@ -215,3 +215,27 @@ def test_the_event_stream_shows_why_a_page_was_not_rebuilt_until_a_build_succeed
             assert line, "the stream ended"
         assert s.readline() == b"data: \n"
     assert server.problem("b.html") == "" and server.problem("a.html") == ""
+
+
+def test_where_notifications_cannot_be_set_up_the_watch_says_so_and_polls(tmp_path, monkeypatch):
+    from calcsheet.watch import loop
+
+    _files(tmp_path, "a.toml")
+    asked = []
+
+    def watched(target, poll):
+        asked.append(poll)
+        if not poll:
+            raise OSError(28, "inotify watch limit reached")
+        yield set()
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(loop, "_watched", watched)
+    reported = []
+    with pytest.raises(KeyboardInterrupt):
+        loop.watch(watch_target(str(tmp_path), "out"), lambda items, first: None, lambda line: None, reported.append)
+    assert asked == [False, True]
+    assert reported == [
+        f"{tmp_path}: file notifications are unavailable ([Errno 28] inotify watch limit reached); "
+        "polling every 300 ms instead"
+    ]
