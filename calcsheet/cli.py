@@ -233,7 +233,11 @@ def watch(
         try:
             _watch(target, out_dir, formats, style, workers, poll, serve, port)
         except KeyboardInterrupt:
-            pass
+            from calcsheet.package.cache import CACHE_FOLDER
+            from calcsheet.pipeline import remove_own_parts
+
+            for folder in (Path(out_dir), Path(out_dir) / CACHE_FOLDER):
+                remove_own_parts(folder)
     click.echo("stopped watching")
     sys.exit(EXIT_OK)
 

@@ -239,3 +239,13 @@ def test_where_notifications_cannot_be_set_up_the_watch_says_so_and_polls(tmp_pa
         f"{tmp_path}: file notifications are unavailable ([Errno 28] inotify watch limit reached); "
         "polling every 300 ms instead"
     ]
+
+
+def test_a_stopped_watch_removes_only_its_own_temporaries(tmp_path):
+    from calcsheet.pipeline import remove_own_parts
+
+    own, other = tmp_path / f".a.html.{os.getpid()}.x1y2.part", tmp_path / f".a.html.{os.getpid() + 1}.x1y2.part"
+    for part in (own, other, tmp_path / "a.html"):
+        part.write_bytes(b"")
+    remove_own_parts(tmp_path)
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted([other.name, "a.html"])
