@@ -115,11 +115,14 @@ def build(
     sys.exit(worst)
 
 
-def _write_registers(jobs, done: dict, failures: dict, out_dir: Path, quiet: bool = False) -> None:
+def _write_registers(jobs, done: dict, failures: dict, out_dir: Path, quiet: bool = False, guard=None) -> None:
     """A package built through its folder gets its register beside the sheets: register.csv, .json and .html
-    (``done``: each built sheet's row facts, fresh or from the build cache)."""
+    (``done``: each built sheet's row facts, fresh or from the build cache). ``guard`` runs each write (default:
+    a user's error ends the command; a watch passes one that lets the error through to be reported)."""
     from calcsheet.package.register import failed_row, register_csv, register_html, register_json, row_from_facts
     from calcsheet.pipeline import write_file
+
+    guard = guard or _guard
 
     sessions = {id(j.session): j.session for j in jobs if j.whole_package}
     for session in sessions.values():
@@ -139,13 +142,13 @@ def _write_registers(jobs, done: dict, failures: dict, out_dir: Path, quiet: boo
             ("register.json", register_json(package, rows)),
             ("register.html", register_html(package, rows)),
         ):
-            target = _guard(lambda: _os_guarded(lambda: write_file(out_dir / name, text), str(out_dir / name)))
+            target = guard(lambda: _os_guarded(lambda: write_file(out_dir / name, text), str(out_dir / name)))
             if not quiet:
                 click.echo(f"{package.file}: register -> {target}")
-        _write_bound_pdf(package, rows, session.entries, done, out_dir, quiet)
+        _write_bound_pdf(package, rows, session.entries, done, out_dir, quiet, guard)
 
 
-def _write_bound_pdf(package, rows: list, entries, done: dict, out_dir: Path, quiet: bool) -> None:
+def _write_bound_pdf(package, rows: list, entries, done: dict, out_dir: Path, quiet: bool, guard=None) -> None:
     """The package's bound PDF, made from the sheet PDFs in the out folder (this build's, or reused ones); only
     when they were built as PDF. Bound again only when something it holds changed (a key beside the build
     cache), so a build that changed nothing imports no PDF library."""
@@ -153,6 +156,7 @@ def _write_bound_pdf(package, rows: list, entries, done: dict, out_dir: Path, qu
     from calcsheet.package.bound import bind, bound_key
     from calcsheet.pipeline import write_file
 
+    guard = guard or _guard
     files = {
         i: out_dir / f"{e.path.stem}.pdf"
         for i, e in enumerate(entries)
@@ -160,7 +164,7 @@ def _write_bound_pdf(package, rows: list, entries, done: dict, out_dir: Path, qu
     }
     if not files:
         return
-    pdfs = {i: _guard(lambda f=f: _os_guarded(f.read_bytes, str(f))) for i, f in files.items()}
+    pdfs = {i: guard(lambda f=f: _os_guarded(f.read_bytes, str(f))) for i, f in files.items()}
     target = out_dir / bound_file_name(package.number)
     key_file = out_dir / ".calcsheet-cache" / f"{target.name}.key"
     key = bound_key(package, rows, pdfs)
@@ -169,10 +173,130 @@ def _write_bound_pdf(package, rows: list, entries, done: dict, out_dir: Path, qu
             click.echo(f"{package.file}: bound PDF -> {target} (unchanged)")
         return
     data = bind(package, rows, pdfs)
-    _guard(lambda: _os_guarded(lambda: write_file(target, data), str(target)))
-    _guard(lambda: _os_guarded(lambda: write_file(key_file, key), str(key_file)))
+    guard(lambda: _os_guarded(lambda: write_file(target, data), str(target)))
+    guard(lambda: _os_guarded(lambda: write_file(key_file, key), str(key_file)))
     if not quiet:
         click.echo(f"{package.file}: bound PDF -> {target}")
+
+
+@main.command()
+@click.argument("target", metavar="INPUT|FOLDER")
+@click.option("--out", "out_dir", default="out", show_default=True, help="Folder for the outputs.")
+@click.option("--format", "formats", default=None, help="Comma-separated: html,pdf,json,txt (default: all).")
+@click.option(
+    "--style",
+    default=None,
+    help="Folder of a house style overriding the default templates and CSS (wins over [sheet] style); watched too.",
+)
+@click.option(
+    "--jobs",
+    "workers",
+    type=click.IntRange(min=1),
+    default=1,
+    show_default=True,
+    help="Sheets built at once; with 1 they are built in the watching process, which keeps the libraries loaded "
+    "between rounds.",
+)
+@click.option(
+    "--poll",
+    is_flag=True,
+    help="Look for saves by reading the files' times every 0.3 s, for network drives and containers where the "
+    "system's file notifications do not arrive.",
+)
+@click.option(
+    "--serve",
+    is_flag=True,
+    help="Serve the HTML pages of --out on this machine only (127.0.0.1); an open page reloads itself when its "
+    "sheet is rebuilt.",
+)
+@click.option(
+    "--port",
+    type=click.IntRange(min=0, max=65535),
+    default=None,
+    help="The port for --serve (default: a free one, printed at the start).",
+)
+def watch(
+    target: str,
+    out_dir: str,
+    formats: str | None,
+    style: str | None,
+    workers: int,
+    poll: bool,
+    serve: bool,
+    port: int | None,
+) -> None:
+    """Build INPUT (a sheet, a folder of sheets or a package folder) into --out, then again each time a file it
+    depends on is saved: a package through its build cache, so only the sheets that changed and those using their
+    results. One line per sheet rebuilt; an input error is reported and the watch goes on. Ctrl-C stops it."""
+    from calcsheet.watch.stopping import stop_on_signals
+
+    with stop_on_signals():
+        try:
+            _watch(target, out_dir, formats, style, workers, poll, serve, port)
+        except KeyboardInterrupt:
+            from calcsheet.package.cache import CACHE_FOLDER
+            from calcsheet.pipeline import remove_own_parts
+
+            for folder in (Path(out_dir), Path(out_dir) / CACHE_FOLDER):
+                remove_own_parts(folder)
+    click.echo("stopped watching")
+    sys.exit(EXIT_OK)
+
+
+def _watch(target, out_dir, formats, style, workers, poll, serve, port) -> None:
+    """The watch command's work, inside its signal handling: settings checked, the server started, then the loop."""
+    from calcsheet.errors import InputError
+    from calcsheet.pipeline import DEFAULT_FORMATS, parse_formats
+    from calcsheet.watch.loop import watch as watch_loop
+    from calcsheet.watch.rebuild import Rebuild
+    from calcsheet.watch.targets import watch_target
+    from calcsheet.writers import WRITERS
+
+    chosen = _guard(lambda: parse_formats(formats, tuple(WRITERS)) if formats else DEFAULT_FORMATS)
+    style_dir = _guard(lambda: _style(style))
+    if port is not None and not serve:
+        _guard(lambda: _raise(InputError("is the port of --serve: give --serve too", key="--port")))
+    if serve and "html" not in chosen:
+        _guard(lambda: _raise(InputError("--serve shows the HTML pages: add html to it", key="--format")))
+    watched = _guard(lambda: watch_target(target, out_dir, style_dir))
+    rebuild = Rebuild(
+        out_dir=Path(out_dir),
+        formats=chosen,
+        style=style_dir,
+        workers=workers,
+        describe=_summary,
+        say=click.echo,
+        warn=lambda line: click.echo(line, err=True),
+        write_registers=lambda *args: _write_registers(*args, guard=lambda thunk: thunk()),
+    )
+    server = _guard(lambda: _page_server(Path(out_dir), port or 0)) if serve else None
+    try:
+        if server is not None:
+            server.start()
+            click.echo(f"serving {out_dir} at {server.url} (this machine only; open pages reload when rebuilt)")
+            if watched.mode == "sheet":
+                click.echo(f"  {server.page_url(watched.given.stem + '.html')}")
+        watch_loop(
+            watched,
+            rebuild,
+            say=click.echo,
+            report=lambda line: click.echo(line, err=True),
+            poll=poll,
+            after_round=(lambda: server.rebuilt(rebuild.outcomes)) if server is not None else None,
+        )
+    finally:
+        if server is not None:
+            server.close()
+
+
+def _page_server(out_dir: Path, port: int):
+    from calcsheet.errors import InputError
+    from calcsheet.watch.serve import HOST, PageServer
+
+    try:
+        return PageServer(out_dir, port)
+    except OSError as error:
+        raise InputError(f"cannot listen on {HOST}:{port}: {error.strerror or error}", key="--port") from None
 
 
 @main.command()
@@ -405,6 +529,10 @@ def _colour_wanted(choice: str) -> bool:
     if choice != "auto":
         return choice == "always"
     return sys.stdout.isatty() and not os.environ.get("NO_COLOR")
+
+
+def _raise(error: Exception):
+    raise error
 
 
 def _refuse(message: str, file: str):

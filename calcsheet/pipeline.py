@@ -228,6 +228,14 @@ def remove_stale_parts(folder: Path) -> None:
             part.unlink(missing_ok=True)
 
 
+def remove_own_parts(folder: Path) -> None:
+    """This process's temporaries: a watch stopped between staging a sheet's files and renaming them into place."""
+    for part in folder.glob(".*.part"):
+        pid = part.name.rsplit(".", 3)[-3] if part.name.count(".") >= 4 else ""
+        if pid == str(os.getpid()):
+            part.unlink(missing_ok=True)
+
+
 def _running(pid: int) -> bool:
     try:
         os.kill(pid, 0)

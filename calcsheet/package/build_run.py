@@ -89,6 +89,7 @@ class BuildRun:
     force: bool = False
     describe: object = None
     say: object = print  # one line per sheet (stdout)
+    say_reused: bool = True  # False: no line for a sheet reused from the cache (a watch's later rounds)
     warn: object = print  # errors (stderr)
     done: dict = field(default_factory=dict)  # path -> row facts of each sheet built or reused
     failures: dict = field(default_factory=dict)  # path -> the problem
@@ -222,7 +223,8 @@ class BuildRun:
                 self.worst = max(self.worst, problem.exit_code)
                 return
         note = " (unchanged)" if outcome.get("cached") else ""
-        self.say(f"{path}: {outcome['summary']} -> {', '.join(str(w) for w in written)}{note}")
+        if self.say_reused or not outcome.get("cached"):
+            self.say(f"{path}: {outcome['summary']} -> {', '.join(str(w) for w in written)}{note}")
         self.done[path] = outcome["facts"]
         code = outcome["code"]
         if outcome["problem"]:
