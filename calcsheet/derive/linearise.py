@@ -203,7 +203,8 @@ def _operating_point(model: Model, request: LineariseRequest) -> OperatingPoint:
 
 
 def _point_parameter(model: Model, si: float, text: str) -> Parameter:
-    """The operating point as a parameter of the linear model (y_0), so its equations stay in symbols."""
+    """The operating point as a parameter of the linear model (y_op; y_0 is the initial value), so its
+    equations stay in symbols."""
     taken = {p.name for p in model.parameters} | {model.unknown.name, model.variable.name}
     name = next(
         n
