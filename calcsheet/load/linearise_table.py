@@ -61,5 +61,7 @@ def _tolerance(raw: Any) -> float:
         raise InputError(f"'{shortened(raw)}' is not a percentage, e.g. \"2 %\"", "linearise.tolerance")
     share = float(match.group("number")) / 100
     if not 0 < share <= MAX_TOLERANCE:
-        raise InputError(f"'{shortened(raw)}' must be above 0 % and at most {MAX_TOLERANCE:.0%}", "linearise.tolerance")
+        raise InputError(
+            f"'{shortened(raw)}' must be above 0 % and at most {MAX_TOLERANCE * 100:g} %", "linearise.tolerance"
+        )
     return share
