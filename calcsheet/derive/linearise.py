@@ -208,7 +208,7 @@ def _point_parameter(model: Model, si: float, text: str) -> Parameter:
     taken = {p.name for p in model.parameters} | {model.unknown.name, model.variable.name}
     name = next(
         n
-        for n in (f"{model.unknown.name}_0", f"{model.unknown.name}_op", f"{model.unknown.name}_lin")
+        for n in (f"{model.unknown.name}_op", f"{model.unknown.name}_lin", f"{model.unknown.name}_point")
         if n not in taken
     )
     unit = units.si_unit(model.unknown.unit)

@@ -182,7 +182,7 @@ def accuracy_blocks(d) -> tuple:
             f"The non-linear equation as stated, integrated with scipy solve_ivp, {INTEGRATOR_WORDS[a.method]}, rtol "
             f"{acc.RTOL:.0e}, atol {acc.RTOL * acc.ATOL_SHARE:.0e} × the response's size, from the same initial "
             f"condition, independently of the linearisation. Each difference is shown as a share of the non-linear "
-            f"response's change over the range, {number(a.scale)} in SI units."
+            f"response's change over the range, {_change(a.scale, m.unknown)}."
         ),
         Paragraph(summary_line(d)),
     ]
@@ -200,6 +200,12 @@ def accuracy_blocks(d) -> tuple:
             )
         )
     return tuple(blocks)
+
+
+def _change(si: float, declared) -> str:
+    """A change of the unknown in its declared unit (a temperature change in degC is a difference)."""
+    shown = f"{number(si * declared.scale)} {declared.unit_text}".rstrip()
+    return shown + (" (a difference)" if declared.offset else "")
 
 
 def summary_line(d) -> str:
