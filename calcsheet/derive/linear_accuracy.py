@@ -19,6 +19,7 @@ import sympy as sp
 from scipy.integrate import solve_ivp
 
 from calcsheet.derive.verify import ODE, Check
+from calcsheet.derive.numbers import OPERATORS
 from calcsheet.model import Model
 
 LINEARISATION = "linearisation"  # Check.code
@@ -44,6 +45,8 @@ class Accuracy:
     method: str
     failure: str = ""  # "" when the integration reached the end of the range
     failed_at: float | None = None
+    # each criterion on the non-linear response: (criterion, found in SI or None, passed or None when not evaluated)
+    criteria: tuple[tuple[object, float | None, bool | None], ...] = ()
 
     @property
     def passed(self) -> bool:
@@ -58,8 +61,9 @@ def measure(original: Model, curve, response, tolerance: float) -> Accuracy:
     """Integrate ``original`` (non-linear, as stated) on ``curve``'s grid and at its evaluated points and
     compare with the linearised values (``curve``, ``response``: y(x) of the linear solution)."""
     x0, y0 = original.initial_at.si, original.initial_value.si
-    evaluated = sorted({p.si for p in original.evaluate_at if curve[0][0] <= p.si <= curve[-1][0]})
-    grid = sorted({x for x, _ in curve} | set(evaluated))
+    inside = lambda x: curve[0][0] <= x <= curve[-1][0]  # noqa: E731
+    evaluated = sorted({p.si for p in original.evaluate_at if inside(p.si)})
+    grid = sorted({x for x, _ in curve} | set(evaluated) | {x for x in _criterion_points(original) if inside(x)})
     slope = _slope(original)
     size_hint = max([abs(y0)] + [abs(y) for _, y in curve if math.isfinite(y)])
     method, values, failed_at = _integrate(slope, x0, y0, grid, size_hint)
@@ -77,7 +81,54 @@ def measure(original: Model, curve, response, tolerance: float) -> Accuracy:
     worst, worst_at = max(shares, key=lambda s: (s[0], -s[1]))
     rows = tuple((x, linear[x], reached[x], abs(linear[x] - reached[x]) / scale) for x in evaluated)
     nonlinear_curve = tuple((x, reached[x]) for x, _ in curve)
-    return Accuracy(rows, nonlinear_curve, worst, worst_at, scale, tolerance, method)
+    criteria = tuple((c, *_on_nonlinear(c, grid, reached)) for c in original.criteria)
+    return Accuracy(rows, nonlinear_curve, worst, worst_at, scale, tolerance, method, criteria=criteria)
+
+
+def _criterion_points(model: Model) -> list[float]:
+    """Where a criterion on the unknown needs the non-linear value: its point, or its window's ends."""
+    points = []
+    for c in model.criteria:
+        if c.of:
+            continue
+        if c.subject == "value":
+            points.append(c.argument.si)
+        if c.subject in ("max", "min") and c.window is not None:
+            points += [end.si for end in (c.window.start, c.window.end) if end is not None]
+    return points
+
+
+def _on_nonlinear(criterion, grid: list[float], reached: dict) -> tuple[float | None, bool | None]:
+    """A criterion's quantity on the non-linear response, at the integrated points (an extreme or a level
+    reached between them is taken on the grid, to its spacing); None for what only the linear model has
+    (a time constant, a final value) and for derived quantities."""
+    if criterion.of or criterion.subject not in ("value", "max", "min", "reach"):
+        return None, None
+    if criterion.subject == "value":
+        found = reached.get(criterion.argument.si)
+    elif criterion.subject == "reach":
+        found = _first_crossing(criterion.argument.si, grid, reached)
+    else:
+        window = criterion.window
+        start = grid[0] if window is None or window.start is None else window.start.si
+        end = grid[-1] if window is None or window.end is None else window.end.si
+        values = [reached[x] for x in grid if start <= x <= end]
+        found = (max if criterion.subject == "max" else min)(values) if values else None
+    if found is None and criterion.subject != "reach":
+        return None, None
+    compared = math.inf if found is None else found
+    return found, bool(OPERATORS[criterion.operator](compared, criterion.limit.si))
+
+
+def _first_crossing(level: float, grid: list[float], reached: dict) -> float | None:
+    """Where the non-linear response first reaches ``level``, by linear interpolation between grid points."""
+    for a, b in zip(grid[:-1], grid[1:]):
+        ya, yb = reached[a] - level, reached[b] - level
+        if ya == 0:
+            return a
+        if ya * yb < 0:
+            return a + (b - a) * ya / (ya - yb)
+    return grid[-1] if reached[grid[-1]] == level else None
 
 
 def _slope(model: Model):

@@ -199,7 +199,53 @@ def accuracy_blocks(d) -> tuple:
                 status_column=3,
             )
         )
+    blocks += _criteria_blocks(d)
     return tuple(blocks)
+
+
+def _found(criterion, si, m) -> str:
+    if si is None:
+        return "never reached" if criterion.subject == "reach" else "n/a"
+    return (m.variable if criterion.subject == "reach" else m.unknown).text_of(si)
+
+
+def _criteria_blocks(d) -> list:
+    """Each criterion's verdict on the linearised model (the sheet's method) beside its verdict on the
+    non-linear integration, so that a checker sees both."""
+    a, m = d.accuracy, d.linearisation.original
+    if not a.criteria:
+        return []
+    rows, differ = [], []
+    for criterion, found, passed in a.criteria:
+        verdict = next((v for v in d.numbers.verdicts if v.criterion.check == criterion.check), None)
+        linear_cell = "n/a" if verdict is None else f"{_found(criterion, verdict.actual, m)}: {_pass(verdict.passed)}"
+        if passed is None:
+            non_linear = "not evaluated (a property of the linear model only)"
+        else:
+            non_linear = f"{_found(criterion, found, m)}: {_pass(passed)}"
+            if verdict is not None and verdict.passed != passed:
+                differ.append(criterion.check)
+        rows.append((criterion.check, linear_cell, non_linear))
+    blocks = [
+        Table(
+            ("Criterion", "Linearised model (the sheet's verdict)", "Non-linear model"),
+            tuple(rows),
+            "Criteria on both models (non-linear: on the integrated points, extremes and crossings to their spacing)",
+        )
+    ]
+    if differ:
+        blocks.append(
+            Note(
+                "warning",
+                f"The verdicts differ between the linearised and the non-linear model for: {', '.join(differ)}. "
+                "Do not rely on the linearised verdict there; check the design on the non-linear model.",
+            )
+        )
+    return blocks
+
+
+def _pass(passed: bool) -> str:
+    return "PASS" if passed else "FAIL"
 
 
 def _change(si: float, declared) -> str:
@@ -272,6 +318,16 @@ def linearisation_record(d) -> dict:
                 "difference": coarse(share),
             }
             for at, lv, nv, share in a.rows
+        ],
+        "criteria": [
+            {
+                "check": criterion.check,
+                "non_linear_found": None
+                if found is None
+                else _coarse_value(found, m.variable if criterion.subject == "reach" else m.unknown),
+                "non_linear_passed": passed,
+            }
+            for criterion, found, passed in a.criteria
         ],
         "max_difference": None if a.failure else coarse(a.worst),
         "max_difference_at": record_value(a.worst_at, m.variable),

@@ -256,3 +256,22 @@ def test_same_input_same_bytes(tmp_path):
     first = render(tank(tmp_path).sheet, ("json", "txt"))
     second = render(tank(tmp_path).sheet, ("json", "txt"))
     assert first == second
+
+
+def test_criteria_are_also_judged_on_the_non_linear_integration(tmp_path):
+    # from 1.6 m towards 1.44 m, linearised about 1.0 m: h(600 s) differs between the two models; a limit
+    # between the two values passes on one and fails on the other, and the sheet says so
+    text = TANK.format(linearise='about = "h = 1.0 m"\ntolerance = "50 %"', start="1.6 m")
+    d0 = built(tmp_path, text, "probe").derivation
+    linear = next(v.y for v in d0.numbers.values if v.at.si == 600)
+    ours = solve_ivp(
+        lambda t, h: [(0.012 - 0.01 * math.sqrt(h[0])) / 2.5], (0, 600), [1.6], method="LSODA", rtol=1e-12, atol=1e-14
+    ).y[0][-1]
+    assert abs(linear - ours) > 1e-3
+    limit = (linear + ours) / 2
+    text += f'\n[[criteria]]\ntext = "level at 10 min"\ncheck = "h(600 s) <= {limit:.6f} m"\n'
+    b = built(tmp_path, text, "both")
+    ((criterion, found, passed),) = b.derivation.accuracy.criteria
+    assert found == pytest.approx(ours, rel=1e-8)
+    assert passed == (ours <= limit) and b.derivation.numbers.verdicts[0].passed == (linear <= limit)
+    assert "The verdicts differ between the linearised and the non-linear model" in render(b.sheet, ("txt",))["txt"]
