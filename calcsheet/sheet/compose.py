@@ -403,7 +403,8 @@ def _classification(d: Derivation, n: _Notation) -> Section:
         (
             "Linearity",
             "linear",
-            f"{y} and d{y}/d{x} appear only to the first power, never multiplied together or inside a function",
+            f"{y} and d{y}/d{x} appear only to the first power, never multiplied together or inside a function"
+            + (f" (the model linearised in step {n.step_numbers['linearisation']})" if d.linearisation else ""),
         ),
         _forcing_row(c, m),
         (

@@ -149,6 +149,13 @@ def linearisation_section(d, n) -> Section:
             "in deviations",
         )
     )
+    if point.method == lin.NUMERIC:
+        blocks.append(
+            Paragraph(
+                f"The terms free of Δ{y} are the steady-state equation at {y}_op, so with the values they cancel "
+                f"({y}_op is its root); they are kept in symbols above."
+            )
+        )
     lm = found.model
     blocks.append(Paragraph(f"And in {y} itself, the equation the following steps solve:"))
     blocks.append(
