@@ -36,6 +36,8 @@ FILE_PATTERNS = "file patterns"  # a list of file patterns relative to the packa
 SIGNATURE = "signature"  # a signer's name, or a table of SIGNATURE_KEYS
 PARAMETER_TABLE = "parameter table"  # a table of parameters, as [parameters]
 FORCING_TABLE = "forcing table"  # a table as [forcing]
+OPERATING_POINT = "operating point"  # "steady state", or the unknown at a value: "h = 1.2 m"
+PERCENT = "percent"  # a percentage in quotes: "2 %"
 
 ROLES = ("prepared", "checked", "approved")  # in the order they sign
 STATUSES = ("preliminary", "for check", "issued", "superseded")
@@ -240,6 +242,20 @@ SHEET_TABLES = (
         listed=True,
     ),
     Table("derived", "Quantities computed from the response, one table each.", DERIVED_KEYS, listed=True),
+    Table(
+        "linearise",
+        "A non-linear equation linearised about an operating point; the sheet measures the linearisation's error.",
+        (
+            Key(
+                "about",
+                OPERATING_POINT,
+                'The operating point: "steady state", or the unknown at a value.',
+                "h = 1.2 m",
+                required=True,
+            ),
+            Key("tolerance", PERCENT, "How far the linearised response may stray from the non-linear one.", "2 %"),
+        ),
+    ),
 )
 
 PACKAGE_TITLE_KEYS = (

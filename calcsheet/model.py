@@ -237,6 +237,22 @@ class Switch:
 
 
 @dataclass(frozen=True)
+class LineariseRequest:
+    """``[linearise]``: linearise a non-linear equation about an operating point before it is solved.
+
+    ``point`` is the stated operating point of the unknown; None asks for the steady state (the
+    equation with the derivative set to zero, solved for the unknown). ``tolerance`` is the largest
+    difference between the linearised and the non-linear response the sheet accepts, as a fraction.
+    """
+
+    about: str  # as written: "h = 1.2 m" or "steady state"
+    point: Point | None
+    tolerance: float
+    tolerance_text: str
+    tolerance_stated: bool  # False: the default, which the sheet states as such
+
+
+@dataclass(frozen=True)
 class Model:
     path: str
     sheet: SheetInfo
@@ -261,6 +277,7 @@ class Model:
     switches: tuple[Switch, ...] = ()  # later intervals, in order
     unused_parameters: tuple[str, ...] = field(default=())
     overrides: tuple[Override, ...] = ()  # --set: a what-if, not the issued design
+    linearise: LineariseRequest | None = None  # [linearise]: a non-linear equation, linearised before it is solved
 
     @property
     def residual(self) -> sp.Expr:

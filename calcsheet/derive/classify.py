@@ -86,10 +86,17 @@ def _refuse_nonlinear_terms(residual: sp.Expr, y: sp.Symbol, dy: sp.Symbol, mode
         for wrt in (y, dy):
             slope = sp.diff(term, wrt)
             if slope.has(y) or slope.has(dy):
+                only_in_y = not sp.diff(term, dy).has(y) and not sp.diff(term, dy).has(dy)
                 raise ModelRefused(
                     f"term '{plain(term)}' is not linear in {model.unknown.name} and "
                     f"d{model.unknown.name}/d{model.variable.name}; the integrating-factor method "
-                    "needs a linear equation",
+                    "needs a linear equation"
+                    + (
+                        '; add a [linearise] table (about = "steady state" or an operating point) to solve it '
+                        "linearised about a point"
+                        if only_in_y
+                        else ""
+                    ),
                     "model.equation",
                 )
 

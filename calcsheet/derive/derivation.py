@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -31,6 +31,8 @@ class Derivation:
     quadrature: QuadratureLog | None
     response: object = None  # the ResponseEvaluator: y(x) in SI, for intervals that follow this one
     margin: object = None  # derive/margin.py's Margin, when parameters have ranges (set by the pipeline)
+    linearisation: object = None  # derive/linearise.py's Linearisation, when the stated equation was non-linear
+    accuracy: object = None  # derive/linear_accuracy.py's Accuracy: the linearised against the non-linear response
 
     @property
     def passed(self) -> bool:
@@ -39,6 +41,8 @@ class Derivation:
 
 
 def derive(model: Model) -> Derivation:
+    if model.linearise is not None:
+        return _linearised(model)
     if not math.isfinite(model.initial_value.si) or not math.isfinite(model.initial_at.si):
         raise ModelRefused("the initial condition is not a finite number", "initial")
     cls = classify(model)
@@ -51,6 +55,20 @@ def derive(model: Model) -> Derivation:
             return _numeric(model, cls, solution)
     except NotFinite as failure:
         raise ModelRefused(_not_finite_message(model, failure), "model.equation") from None
+
+
+def _linearised(model: Model) -> Derivation:
+    """Linearise, derive the linear model as any other, then measure it against the non-linear equation."""
+    from calcsheet.derive.linear_accuracy import measure
+    from calcsheet.derive.linearise import linearise
+
+    found = linearise(model)
+    inner = derive(replace(found.model, linearise=None))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)
+        accuracy = measure(model, inner.curve, inner.response, model.linearise.tolerance)
+    verification = replace(inner.verification, linearisation=accuracy.check())
+    return replace(inner, verification=verification, linearisation=found, accuracy=accuracy)
 
 
 def _numeric(model: Model, cls: Classification, solution: Solution) -> Derivation:

@@ -76,10 +76,12 @@ class Verification:
     initial_condition: Check
     integration: Check
     compared: tuple[tuple[float, float, float], ...]  # (x, derived y, integrated y), SI
+    linearisation: Check | None = None  # a linearised model against its non-linear equation (linear_accuracy.py)
 
     @property
     def checks(self) -> tuple[Check, ...]:
-        return (self.substitution, self.initial_condition, self.integration)
+        own = (self.substitution, self.initial_condition, self.integration)
+        return own + ((self.linearisation,) if self.linearisation is not None else ())
 
     @property
     def passed(self) -> bool:

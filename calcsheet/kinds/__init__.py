@@ -22,6 +22,8 @@ KIND_MODULES = (
     "rotating_inertia",
     "mass_with_drag",
     "pipe_temperature",
+    "orifice_tank",
+    "radiating_body",
 )
 
 

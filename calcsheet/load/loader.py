@@ -21,6 +21,7 @@ from calcsheet.formatting import number as _number
 from calcsheet.kinds.expand import expand_kind, kind_checks, worked_slot_dimensions
 from calcsheet.load import sheet_keys
 from calcsheet.load.derived import read_derived
+from calcsheet.load.linearise_table import read_linearise
 from calcsheet.load.overrides import apply_overrides
 from calcsheet.load.sweep_range import Vary, apply_sweep_range
 from calcsheet.load.toml_file import read_toml
@@ -278,6 +279,13 @@ class _Builder:
             else ()
         )
         plot_to = errors.attempt(lambda: self.plot_end(initial_at, variable)) if variable else None
+        linearise = None
+        if "linearise" in self.raw and unknown:
+            linearise = errors.attempt(lambda: read_linearise(self.raw["linearise"], unknown, self.point))
+            if self.original.get("switch"):
+                errors.add(
+                    InputError("a switched model cannot be linearised; remove [[switch]] or [linearise]", "linearise")
+                )
         kind = None
         if kind_use is not None and parameters is not None:
             kind = errors.attempt(lambda: kind_checks(kind_use, parameters))
@@ -311,6 +319,7 @@ class _Builder:
             unused_parameters=unused,
             plot_to=plot_to,
             kind=kind,
+            linearise=linearise,
         )
         return replace(model, switches=self.switches(model)) if self.original.get("switch") else model
 

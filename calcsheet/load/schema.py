@@ -47,6 +47,10 @@ DATE_PATTERN = r"^\s*\d{4}-\d{2}-\d{2}"  # a TOML date reaches a schema as its I
 CHECK_PATTERN = rf"^[{EXPRESSION_CHARS},]*(?:<=|>=|<|>)[{EXPRESSION_CHARS},]*$"
 EXTREME_PATTERN = r"^\s*(?:max|min)(?:\s+(?:from\s+.+|[^.]+?\s*\.\.\s*[^.].*))?\s*$"
 INTEGRAL_PATTERN = r"^\s*integral\s*\([^()]*\)\s*$"
+# load/linearise_table.py: "steady state" (any case) or "name = value"; a percentage "2 %"
+STEADY_STATE_PATTERN = r"[Ss][Tt][Ee][Aa][Dd][Yy]\s+[Ss][Tt][Aa][Tt][Ee]"
+OPERATING_POINT_PATTERN = rf"^\s*(?:{STEADY_STATE_PATTERN}|[A-Za-z][A-Za-z0-9_]*\s*=\s*\S.*)\s*$"
+PERCENT_PATTERN = r"^\s*(?:\d+(?:\.\d*)?|\.\d+)\s*%\s*$"
 NOT_BLANK = r"\S"
 OUTSIDE = r"^\s*/|(?:^|/)\.\.(?:/|\s*$)"  # package_file._sheets: a pattern stays inside the package folder
 
@@ -164,6 +168,8 @@ def _value(value: str, choices: tuple[str, ...] = ()) -> dict:
         keys.SIGNATURE: {"$ref": "#/$defs/signature"},
         keys.PARAMETER_TABLE: {"$ref": "#/$defs/switch_parameters"},
         keys.FORCING_TABLE: {"$ref": "#/$defs/forcing"},
+        keys.OPERATING_POINT: {**text, "pattern": OPERATING_POINT_PATTERN},
+        keys.PERCENT: {"type": "string", "pattern": PERCENT_PATTERN},
     }
     return dict(fragments[value])
 

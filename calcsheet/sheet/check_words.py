@@ -4,6 +4,7 @@ this module alone says them, for the sheet's tables and the record alike."""
 from __future__ import annotations
 
 from calcsheet.derive import verify as v
+from calcsheet.derive.linear_accuracy import LINEARISATION
 from calcsheet.derive.evaluate import QUAD_RTOL, QUAD_SUBINTERVALS
 
 NAMES = {
@@ -13,6 +14,7 @@ NAMES = {
     v.EACH_INTERVAL: "each interval",
     v.CONTINUITY: "continuity at the switches",
     v.SWITCHED_INTEGRATION: "switched integration",
+    LINEARISATION: "linearisation against the non-linear model",
 }
 INTEGRATOR_WORDS = {
     v.ODE_METHOD: "DOP853 (explicit Runge–Kutta of order 8)",
@@ -55,6 +57,10 @@ def measure_words(check: v.Check) -> str:
 
 
 def method_words(check: v.Check) -> str:
+    if check.code == LINEARISATION:
+        from calcsheet.sheet.linearise_words import check_method
+
+        return check_method()
     if check.code == v.SUBSTITUTION:
         return "symbolic" if check.how == v.SYMBOLIC else "numeric at sample points"
     if check.code == v.INITIAL_CONDITION:
@@ -91,6 +97,10 @@ def method_words(check: v.Check) -> str:
 
 
 def detail_words(check: v.Check) -> str:
+    if check.code == LINEARISATION:
+        from calcsheet.sheet.linearise_words import check_detail
+
+        return check_detail(check)
     if check.fact("failure"):
         words = FAILURE_WORDS[check.fact("failure")].format(calls=check.fact("calls", 0))
         return f"interval {check.fact('interval')}: {words}" if check.fact("interval") else words

@@ -56,6 +56,7 @@ from calcsheet.sheet.quantities import duration, in_units, number, numeric_expre
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_words, whatif_words
 from calcsheet.sheet.derived_words import derived_section, has_derived
+from calcsheet.sheet.linearise_words import accuracy_blocks, linearisation_section
 from calcsheet.sheet.record import build_record
 from calcsheet.sheet.worked_values import check_cell, hand_check_blocks, parameter_source, source_cell
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
@@ -402,7 +403,8 @@ def _classification(d: Derivation, n: _Notation) -> Section:
         (
             "Linearity",
             "linear",
-            f"{y} and d{y}/d{x} appear only to the first power, never multiplied together or inside a function",
+            f"{y} and d{y}/d{x} appear only to the first power, never multiplied together or inside a function"
+            + (f" (the model linearised in step {n.step_numbers['linearisation']})" if d.linearisation else ""),
         ),
         _forcing_row(c, m),
         (
@@ -1051,6 +1053,7 @@ def _verification(d: Derivation, n: _Notation) -> Section:
         (
             Paragraph(checks_lead(len(d.verification.checks))),
             checks_table(d.verification.checks),
+            *(accuracy_blocks(d) if d.linearisation is not None else ()),
         ),
     )
 
@@ -1058,6 +1061,7 @@ def _verification(d: Derivation, n: _Notation) -> Section:
 # The numbered steps in their order: (section key, builder). Cross-references use the numbers this gives.
 STEPS = (
     ("governing", _governing),
+    ("linearisation", linearisation_section),
     ("classification", _classification),
     ("standard_form", _standard_form),
     ("integrating_factor", _integrating_factor),
@@ -1072,6 +1076,7 @@ STEPS = (
 )
 # shown only when the input asks for them (extremes, derived quantities), or gives parameters ranges (margin)
 OPTIONAL_STEPS = {
+    "linearisation": lambda d: getattr(d, "linearisation", None) is not None,
     "extremes": lambda d: any(not e.of for e in d.numbers.extremes),
     "derived": has_derived,
     "margin": has_margin,

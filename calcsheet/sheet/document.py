@@ -88,6 +88,7 @@ class Figure:
     switches: tuple[tuple[float, str], ...] = ()  # switch instants (x, what happens)
     crossings: tuple[tuple[float, float, str], ...] = ()  # where a level is first reached (x, y, label)
     legend: "Legend | None" = None  # the words of the legend (compose's), None: no legend entries
+    nonlinear: tuple[tuple[float, float], ...] = ()  # a linearised model's non-linear response, integrated on its own
 
 
 @dataclass(frozen=True)
@@ -99,6 +100,7 @@ class Legend:
     points: str
     largest: str  # an extreme that is a largest value
     smallest: str
+    nonlinear: str = ""  # the non-linear model's curve beside a linearised one
 
 
 @dataclass(frozen=True)

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from calcsheet.sheet.document import Figure, Guide, Legend, PointLimit
 from calcsheet.source.units import from_si
 from calcsheet.subjects import SUBJECTS, UNKNOWN, VARIABLE
@@ -14,6 +16,7 @@ LEGEND = Legend(
     largest="extremes (max)",
     smallest="extremes (min)",
 )
+NONLINEAR_LEGEND = "non-linear model"
 
 
 def response_figure(d) -> Figure:
@@ -55,6 +58,8 @@ def response_figure(d) -> Figure:
             limits.append(Guide(x_of(c.limit.si), f"limit {c.check}", status))
         if subject.argument == UNKNOWN and all(g.label != f"level {c.argument.text}" for g in levels):
             levels.append(Guide(y_of(c.argument.si), f"level {c.argument.text}", ""))
+    accuracy = getattr(d, "accuracy", None)
+    nonlinear = tuple((x_of(x), y_of(y)) for x, y in accuracy.curve) if accuracy is not None else ()
     return Figure(
         title=f"Response of {m.unknown.name}",
         x_label=_axis(m.variable),
@@ -67,10 +72,13 @@ def response_figure(d) -> Figure:
         extremes=extremes,
         point_limits=tuple(point_limits),
         crossings=crossings,
-        legend=LEGEND,
+        legend=replace(LEGEND, nonlinear=NONLINEAR_LEGEND) if nonlinear else LEGEND,
+        nonlinear=nonlinear,
         switches=tuple((x_of(s.at.si), s.text) for s in m.switches if start <= s.at.si <= end),
         caption=(
-            f"Line: the particular solution; open circles: the independent numerical integration; "
+            f"Line: the particular solution{' of the linearised model' if nonlinear else ''}; open circles: the "
+            f"independent numerical integration; "
+            f"{'dashed line: the non-linear model, integrated on its own equation; ' if nonlinear else ''}"
             f"filled dots: the values asked for{'; triangles: the extremes found' if extremes else ''}"
             f"{'; crosses: where a level is first reached' if crossings else ''}"
             f"{'; dash-dotted grey lines: the switches' if m.switches else ''}"

@@ -103,9 +103,19 @@ def build_record(d, n) -> dict:
         **results_record(m, num),
         **derived_record(d),
         "verification": verification_record(d.verification),
+        **_linearisation(d),
         "passed": d.passed,
     }
     return _with_margin(d, record, record)
+
+
+def _linearisation(d) -> dict:
+    """``linearisation`` only on a sheet whose stated equation was linearised (linearise_words.py)."""
+    if getattr(d, "linearisation", None) is None:
+        return {}
+    from calcsheet.sheet.linearise_words import linearisation_record
+
+    return {"linearisation": linearisation_record(d)}
 
 
 def _with_margin(d, record: dict, results: dict) -> dict:

@@ -36,6 +36,7 @@ FIGSIZE_IN = (6.3, 3.35)  # about 16 cm x 8.5 cm
 MARGIN = 0.05  # fraction of the data span added above and below
 
 EXTREME = "#7a4a00"
+NONLINEAR = "#b3541e"  # the non-linear model beside a linearised one: apart from the ink and the checks' blue
 
 # status -> (colour, matplotlib linestyle, linewidth in pt); the dash patterns are set in _RC
 GUIDE_STYLE = {
@@ -135,6 +136,17 @@ def _build(figure):
             label=_legend(figure, "curve"),
             zorder=3,
             gid="calcsheet-curve",
+        )
+    if figure.nonlinear:
+        ax.plot(
+            [p[0] for p in figure.nonlinear],
+            [p[1] for p in figure.nonlinear],
+            color=NONLINEAR,
+            linewidth=1.2,
+            linestyle=(0, (5, 3)),
+            label=_legend(figure, "nonlinear"),
+            zorder=3,
+            gid="calcsheet-nonlinear",
         )
     if figure.independent:
         ax.plot(
@@ -308,6 +320,7 @@ def _ranges(figure, curve):
     ys = (
         [y for _, y in curve]
         + [y for _, y in figure.independent]
+        + [y for _, y in figure.nonlinear if _finite(y)]
         + [p[1] for p in figure.points]
         + [g.value for g in figure.levels]
         + [p.value for p in figure.point_limits]
