@@ -115,6 +115,29 @@ integral_unit = "J"
 '''.replace("FINGERPRINT", FINGERPRINT)
 
 # A kind with a forcing form and a switch that changes a parameter and the forcing.
+# A well draining through an orifice, linearised about its steady level h = (q_in/k)^2 = 1 m (test values).
+ORIFICE = """[sheet]
+title = "Test well draining through an orifice"
+
+[model]
+equation = "A*dh/dt = q_in - k*sqrt(h)"
+unknown = "h [m]"
+variable = "t [s]"
+
+[parameters]
+A = "2 m^2"
+q_in = "0.01 m^3/s"
+k = "0.01 m^2.5/s"
+
+[initial]
+at = "0 s"
+value = "1.2 m"
+
+[linearise]
+about = "steady state"
+tolerance = "5 %"
+"""
+
 COIL = """[sheet]
 title = "Test coil with an economy phase"
 
@@ -338,6 +361,7 @@ def test_every_mutated_demo_the_loader_accepts_validates(tree, tmp_path_factory)
 def test_an_input_with_every_key_loads_and_validates(tmp_path):
     assert loads(tmp_path, FULL) and problems(SHEET, FULL) == []
     assert loads(tmp_path, COIL) and problems(SHEET, COIL) == []
+    assert loads(tmp_path, ORIFICE) and problems(SHEET, ORIFICE) == []
     write(tmp_path, PACKAGE_FILE, "package.toml")
     read_package(tmp_path / "package.toml")
     assert problems(PACKAGE, PACKAGE_FILE) == []
@@ -359,7 +383,7 @@ def _closed_keys(tables: tuple[Table, ...]) -> set[str]:
 
 
 def test_every_key_the_schema_knows_is_used_by_an_input_the_loader_accepts():
-    used = set().union(*(_keys_used(tomllib.loads(text)) for text in (FULL, COIL, IN_PACKAGE)))
+    used = set().union(*(_keys_used(tomllib.loads(text)) for text in (FULL, COIL, ORIFICE, IN_PACKAGE)))
     assert _closed_keys(SHEET_TABLES) - used == set()
     assert set(input_schema()["properties"]) == {t.name for t in SHEET_TABLES}
     for entry in ("value", "source", "note", "tolerance", "min", "max"):
@@ -387,7 +411,7 @@ CLOSED = [t.name for t in SHEET_TABLES if t.keys is not None]
 
 @pytest.mark.parametrize("table", CLOSED)
 def test_an_unknown_key_in_each_table_is_refused_by_both_and_the_loader_lists_the_schemas_keys(tmp_path, table):
-    raw = tomllib.loads(FULL if table in tomllib.loads(FULL) else COIL)
+    raw = tomllib.loads(next(text for text in (FULL, COIL, ORIFICE) if table in tomllib.loads(text)))
     entry = raw[table][0] if isinstance(raw[table], list) else raw[table]
     entry["zz_probe"] = "1 s"
     text = tomli_w.dumps(raw)
