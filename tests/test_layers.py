@@ -22,6 +22,7 @@ ORDER = [
     "review",
     "pipeline",
     "package",
+    "api",
     "cli",
 ]
 
