@@ -76,7 +76,11 @@ class Sheet:
         return EXIT_OK if self.passed and not self.problem else EXIT_CHECK_FAILED
 
     def rendered(
-        self, formats: Iterable[str] | str, *, style: str | os.PathLike[str] | None = None, fallback_style=None
+        self,
+        formats: Iterable[str] | str,
+        *,
+        style: str | os.PathLike[str] | None = None,
+        fallback_style: str | os.PathLike[str] | None = None,
     ) -> Sheet:
         """This sheet with ``formats`` rendered into ``outputs`` (in memory). The house style is ``style``, else the
         input's own ``[sheet] style``, else ``fallback_style`` (a package's style, for a package build)."""
@@ -126,7 +130,7 @@ def load(
 def build(
     source: Source,
     *,
-    formats: Iterable[str] | str = (),
+    formats: Iterable[str] | str | None = None,
     set: Overrides = None,
     out: str | os.PathLike[str] | None = None,
     style: str | os.PathLike[str] | None = None,
@@ -134,11 +138,13 @@ def build(
     name: str | None = None,
 ) -> Sheet:
     """Build an input's sheet (``source`` as ``load`` takes it, or an Input): derive, verify, compose, and render
-    each of ``formats`` (html, pdf, json, txt; default none, so only the record is made). With ``out`` the outputs
-    are written there as ``<stem>.<format>`` (``<stem>.whatif.<format>`` with ``set``), all or none, as
-    ``calcsheet build`` writes them. ``style``: a house style folder (wins over the input's ``[sheet] style``);
-    ``changes_since``: a git revision or an older file, as ``--changes-since``."""
-    chosen = _formats(formats)
+    each of ``formats`` (html, pdf, json, txt; by default all four with ``out`` and none without, when only the
+    record is made). With ``out`` the outputs are written there as ``<stem>.<format>`` (``<stem>.whatif.<format>``
+    with ``set``), all or none, as ``calcsheet build`` writes them. ``style``: a house style folder (wins over
+    the input's ``[sheet] style``); ``changes_since``: a git revision or an older file, as ``--changes-since``."""
+    from calcsheet.pipeline import DEFAULT_FORMATS
+
+    chosen = _formats(formats if formats is not None else (DEFAULT_FORMATS if out is not None else ()))
     folder = _style_folder(style)
     given = load(source, name=name, set=set)
     sheet = built_sheet(given, changes_since).rendered(chosen, style=folder)

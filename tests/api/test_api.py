@@ -224,3 +224,10 @@ def test_text_is_read_as_the_file_it_is_named_after(tmp_path: Path, tmp_path_fac
     with pytest.raises(calcsheet.InputError) as caught:
         calcsheet.load(text, name=str(tmp_path_factory.mktemp("alone") / "bench.toml"))
     assert "no package.toml" in caught.value.message and caught.value.key == "parameters.C"
+
+
+def test_build_into_out_writes_every_format_by_default(bench: Path, tmp_path: Path):
+    sheet = calcsheet.build(calcsheet.load(bench), out=tmp_path / "all")
+    assert sorted(p.name for p in sheet.written) == ["bench.html", "bench.json", "bench.pdf", "bench.txt"]
+    assert isinstance(sheet.outputs["pdf"], bytes) and sheet.outputs["pdf"].startswith(b"%PDF")
+    assert (tmp_path / "all" / "bench.pdf").read_bytes() == sheet.outputs["pdf"]
