@@ -79,6 +79,7 @@ def build(
 ) -> None:
     """Build a sheet for each INPUT (file or folder of .toml files) into --out. A package's sheets that have not
     changed since the last build into the same --out are reused from its build cache (--force builds all)."""
+    from calcsheet.api import sheet_of
     from calcsheet.package.build_run import BuildRun
     from calcsheet.package.schedule import default_jobs
     from calcsheet.package.session import jobs_for
@@ -99,7 +100,7 @@ def build(
         overrides=overrides,
         since=since,
         force=force,
-        describe=_summary,
+        make=sheet_of,
         say=(lambda line: None) if quiet or tty else click.echo,
         warn=lambda line: click.echo(line, err=True),
     )
@@ -304,13 +305,19 @@ def _page_server(out_dir: Path, port: int):
 @_what_if
 def check(inputs: tuple[str, ...], assignments: tuple[str, ...]) -> None:
     """Derive, verify and evaluate the criteria of each INPUT; write nothing."""
+    from calcsheet import api
+
     overrides = _guard(lambda: _assignments(assignments))
 
-    def one(built) -> int:
-        click.echo(f"{built.path}: {_summary(built.derivation)}")
-        return _issue_guard(built, EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED)
+    def one(job) -> int:
+        sheet = api.check(api.load(job.path, set=overrides, package_records=job.package_records))
+        job.remember(sheet.built.sheet.record, overrides)
+        click.echo(f"{sheet.name}: {sheet.summary}")
+        if sheet.problem:
+            click.echo(f"{sheet.name}: NOT FOR ISSUE: {sheet.problem}", err=True)
+        return sheet.exit_code
 
-    sys.exit(_run_each(inputs, one, overrides=overrides))
+    sys.exit(_run_each(inputs, one, build=False))
 
 
 FAMILY_CURVES = 5  # response curves a --family plot overlays (every point when the sweep has fewer)
@@ -397,14 +404,6 @@ def _whole_number(text: str, key: str) -> int:
         return int(text.strip())
     except ValueError:
         raise InputError(f"'{text}' is not a whole number", key) from None
-
-
-def _issue_guard(built, code: int) -> int:
-    """An issued sheet without current prepared, checked and approved sign-offs fails, with the reason."""
-    if not built.sheet.review.problem:
-        return code
-    click.echo(f"{built.path}: NOT FOR ISSUE: {built.sheet.review.problem}", err=True)
-    return max(code, EXIT_CHECK_FAILED)
 
 
 @main.command()
@@ -609,7 +608,7 @@ def _run_each(
     failures=None,
     build: bool = True,
 ) -> int:
-    """Build each input (a package's sheets in their build order) and act on it (on its path, with ``build``
+    """Build each input (a package's sheets in their build order) and act on it (on its session.Job, with ``build``
     False); one sheet's failure is reported on one line and the others go on. The exit code is the worst."""
     from calcsheet.package.session import jobs_for
 
@@ -621,7 +620,7 @@ def _run_each(
     for job in found:
         path = job.path
         try:
-            worst = max(worst, _os_guarded(lambda: action(job.build(overrides) if build else path), str(path)))
+            worst = max(worst, _os_guarded(lambda: action(job.build(overrides) if build else job), str(path)))
         except CalcsheetError as error:
             click.echo(str(error.located(file=str(path))), err=True)
             failures[path] = str(error)
@@ -637,34 +636,6 @@ def _run_each(
             failures[path] = f"internal error: {type(error).__name__}"
             worst = max(worst, EXIT_INTERNAL)
     return worst
-
-
-def _summary(derivation) -> str:
-    """One line: the verdict, how many criteria pass, and which fail or are not assessed, by number and text."""
-    verdicts = derivation.numbers.verdicts
-    passed = sum(v.status == "pass" for v in verdicts)
-    parts = [f"{passed} of {len(verdicts)} criteria pass" if verdicts else "no criteria"]
-    failed = [f'#{k} "{v.criterion.text}"' for k, v in enumerate(verdicts, 1) if v.status == "fail"]
-    unassessed = [f'#{k} "{v.criterion.text}"' for k, v in enumerate(verdicts, 1) if v.status == "not assessed"]
-    if failed:
-        parts.append("FAIL: " + ", ".join(failed))
-    if unassessed:
-        why = (
-            "the model is not valid for this case"
-            if derivation.numbers.not_valid
-            else "they need the response past the model's validity limit"
-        )
-        parts.append("not assessed (" + why + "): " + ", ".join(unassessed))
-    margin = getattr(derivation, "margin", None)
-    worst = [
-        f"#{k}"
-        for k, (v, w) in enumerate(zip(verdicts, margin.worst if margin else ()), 1)
-        if v.status == "pass" and w is not None and not w.passed
-    ]
-    if worst:
-        parts.append("FAIL at worst case of the tolerances: " + ", ".join(worst))
-    parts.append("verification passed" if derivation.verification.passed else "verification FAILED")
-    return ("PASS" if derivation.passed else "FAIL") + " (" + "; ".join(parts) + ")"
 
 
 def _style(style: str | None) -> Path | None:

@@ -19,32 +19,48 @@ class Built:
     sheet: object
 
 
-def build_sheet(path: Path, overrides: tuple[tuple[str, str], ...] = (), upstream: dict | None = None) -> Built:
+def build_sheet(
+    path: Path, overrides: tuple[tuple[str, str], ...] = (), upstream: dict | None = None, text: str | None = None
+) -> Built:
     """Load, derive and compose one input (imports sympy lazily: only commands that solve pay for it);
-    ``overrides`` (--set) replace parameters for a what-if. Where parameters have ranges, the derivation
-    carries its margin (derive/margin.py), which the sheet shows and the verdict includes. A sheet of a package
-    that uses other sheets' results has them built first (``upstream``: records by sheet number, shared by the
-    sheets of one command so that each is built once)."""
+    ``overrides`` (--set) replace parameters for a what-if. A sheet of a package that uses other sheets' results
+    has them built first (``upstream``: records by sheet number, shared by the sheets of one command so that
+    each is built once). ``text``: the input's TOML given directly, read as if it were the file ``path``."""
+    return build_model(load_sheet(path, overrides, upstream, text))
+
+
+def load_sheet(
+    path: Path, overrides: tuple[tuple[str, str], ...] = (), upstream: dict | None = None, text: str | None = None
+):
+    """The validated Model of one input, with its package's values and the upstream sheets' results filled in
+    (the upstream sheets are built here, once per ``upstream`` cache)."""
+    from calcsheet.load.loader import load_model
+
+    results = upstream_results(Path(path), {} if upstream is None else upstream, text)
+    return load_model(path, overrides, results, text=text)
+
+
+def build_model(model) -> Built:
+    """Derive and compose a loaded Model. Where parameters have ranges, the derivation carries its margin
+    (derive/margin.py), which the sheet shows and the verdict includes; every composed Sheet is sealed."""
     from dataclasses import replace
 
     from calcsheet.derive.margin import find_margin
-    from calcsheet.derive.derivation import derive
-    from calcsheet.sheet.compose import compose
-    from calcsheet.load.loader import load_model
-
     from calcsheet.review.seal import seal
 
-    model = load_model(path, overrides, upstream_results(path, {} if upstream is None else upstream))
     if model.switches:
         from calcsheet.derive.piecewise import derive_piecewise
         from calcsheet.sheet.piecewise import compose_piecewise
 
         derivation = derive_piecewise(model)
         derivation = replace(derivation, margin=find_margin(derivation))
-        return Built(path, derivation, seal(compose_piecewise(derivation), model.sheet))
+        return Built(Path(model.path), derivation, seal(compose_piecewise(derivation), model.sheet))
+    from calcsheet.derive.derivation import derive
+    from calcsheet.sheet.compose import compose
+
     derivation = derive(model)
     derivation = replace(derivation, margin=find_margin(derivation))
-    return Built(path, derivation, seal(compose(derivation), model.sheet))
+    return Built(Path(model.path), derivation, seal(compose(derivation), model.sheet))
 
 
 SWEEP_FORMATS = ("csv", "svg", "png")
@@ -104,18 +120,19 @@ def sweep_outputs(path: Path, request: SweepRequest, overrides: tuple[tuple[str,
     return files, layout.summary_lines(sweep, model, vary)
 
 
-def upstream_results(path: Path, records: dict) -> dict:
-    """The results of other sheets that ``path`` uses, each with the citation its parameter table shows:
-    (number, result) -> (value with unit, "sheet EL-014 rev B, time_constant, fingerprint ..."). ``records``
-    caches each upstream sheet's JSON record by number (or the error that stopped it)."""
+def upstream_results(path: Path, records: dict, text: str | None = None) -> dict:
+    """The results of other sheets that ``path`` (or ``text``, read as if it were that file) uses, each with the
+    citation its parameter table shows: (number, result) -> (value with unit, "sheet EL-014 rev B,
+    time_constant, fingerprint ..."). ``records`` caches each upstream sheet's JSON record by number (or the
+    error that stopped it)."""
     from calcsheet.errors import CalcsheetError
     from calcsheet.load.package_file import find_package, read_package
     from calcsheet.load.references import build_order, references_in, sheet_entries
     from calcsheet.load.results import result_quantity
-    from calcsheet.load.toml_file import read_toml
+    from calcsheet.load.toml_file import read_toml, read_toml_text
 
     try:
-        references = [r for r in references_in(read_toml(path)) if r.sheet]
+        references = [r for r in references_in(read_toml(path) if text is None else read_toml_text(text)) if r.sheet]
     except CalcsheetError:
         return {}  # the loader reports it, with the file and key
     file = find_package(path) if references else None

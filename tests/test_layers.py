@@ -23,6 +23,7 @@ ORDER = [
     "review",
     "pipeline",
     "package",
+    "api",
     "watch",
     "cli",
 ]

@@ -24,7 +24,7 @@ from calcsheet.load.derived import read_derived
 from calcsheet.load.linearise_table import read_linearise
 from calcsheet.load.overrides import apply_overrides
 from calcsheet.load.sweep_range import Vary, apply_sweep_range
-from calcsheet.load.toml_file import read_toml
+from calcsheet.load.toml_file import read_toml, read_toml_text
 from calcsheet.model import (
     Criterion,
     Declared,
@@ -125,14 +125,17 @@ def _same_place(a: str, b: str) -> bool:
     return long == short or long.startswith(short + ".") or long.startswith(short + "[")
 
 
-def load_model(path: str | Path, overrides: tuple[tuple[str, str], ...] = (), results=None) -> Model:
+def load_model(
+    path: str | Path, overrides: tuple[tuple[str, str], ...] = (), results=None, text: str | None = None
+) -> Model:
     """Read and validate ``path``; raise an InputError or ModelRefused naming file and key. ``overrides``:
     (name, value) pairs from ``--set`` that replace parameters' values before anything is checked.
     A sheet of a package takes design-basis values and other sheets' ``results`` (load/package_values.py)
-    before the overrides and every check."""
+    before the overrides and every check. ``text``: the input's TOML given directly (the Python API), read
+    as if it were the file ``path`` (its style folder and package are looked for beside that name)."""
     name = str(path)
     try:
-        raw = read_toml(Path(path))
+        raw = read_toml(Path(path)) if text is None else read_toml_text(text)
         problems = check_raw(raw)
         raw = fill_package_values(Path(path), raw, results or {})
         raw, replaced = apply_overrides(raw, overrides)

@@ -15,7 +15,14 @@ from calcsheet.source import units
 def parse_assignment(text: str) -> tuple[str, str]:
     """``R=5.1 kohm`` -> (R, 5.1 kohm); the command line's own form, checked for shape only."""
     name, sep, value = text.partition("=")
-    if not sep or not name.strip() or not value.strip():
+    if not sep:
+        raise InputError(f"'{shortened(text)}' is not NAME=VALUE, e.g. --set R=\"5.1 kohm\"", "--set")
+    return checked_pair(name, value, text)
+
+
+def checked_pair(name: str, value: str, text: str) -> tuple[str, str]:
+    """(name, value) with the spaces around them taken off; both must be there (``text``: as written)."""
+    if not name.strip() or not value.strip():
         raise InputError(f"'{shortened(text)}' is not NAME=VALUE, e.g. --set R=\"5.1 kohm\"", "--set")
     return name.strip(), value.strip()
 

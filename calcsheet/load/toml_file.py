@@ -19,6 +19,20 @@ def read_toml(path: Path) -> dict:
             data = handle.read(MAX_FILE_BYTES + 1)
     except OSError as exc:
         raise InputError(f"cannot read the file ({exc.strerror or exc})")
+    return read_toml_bytes(data)
+
+
+def read_toml_text(text: str) -> dict:
+    """TOML given as text rather than in a file (the Python API's ``load``), within the same bounds."""
+    try:
+        data = text.encode("utf-8")
+    except UnicodeEncodeError:  # a lone surrogate: not text a file could hold
+        raise InputError("the file is not UTF-8 text") from None
+    return read_toml_bytes(data)
+
+
+def read_toml_bytes(data: bytes) -> dict:
+    """The tables of an input's bytes; every problem one InputError, as ``read_toml`` reports it."""
     if len(data) > MAX_FILE_BYTES:
         raise InputError(f"the file is larger than {MAX_FILE_BYTES:,} bytes; an input is a short text")
     try:

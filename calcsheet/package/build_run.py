@@ -1,10 +1,10 @@
-"""``calcsheet build``'s loop: every sheet built in dependency order in a pool of workers (pipeline.build_sheet,
-render), its files written by the main process, and, for a package built through its folder, each unchanged
-sheet's outputs reused from the build cache (package/cache.py) without deriving or rendering it again."""
+"""``calcsheet build``'s loop: every sheet built in dependency order in a pool of workers (the Python API's
+``sheet_of``, then ``Sheet.rendered``), its files written by the main process, and, for a package built through
+its folder, each unchanged sheet's outputs reused from the build cache (package/cache.py) without deriving or
+rendering it again."""
 
 from __future__ import annotations
 
-import json
 import os
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -27,26 +27,21 @@ class SheetTask:
     overrides: tuple = ()
     records: dict = field(default_factory=dict)  # upstream number -> JSON record, or ("failed", message)
     since: str | None = None
-    describe: object = None  # built.derivation -> the one-line summary
     package_sheet: bool = False  # built through its package: upstream records come from ``records``
+    # the Python API's sheet_of(path, overrides, package records, since) -> its Sheet, not yet rendered (the
+    # command line passes it in: this layer sits below the API)
+    make: object = None
 
 
 def build_outputs(task: SheetTask) -> dict:
     """Build and render one sheet: its files in memory, its record, and the facts the register shows. A user's
     error comes back as a value (so that the other sheets go on); a defect of ours is raised."""
-    from calcsheet.pipeline import build_sheet, render, with_changes_since
-
     record = None
     try:
         records = {n: InputError(r[1]) if isinstance(r, (list, tuple)) else r for n, r in task.records.items()}
-        built = build_sheet(task.path, task.overrides, records) if task.package_sheet else None
-        if built is None:
-            built = build_sheet(task.path, task.overrides)
-        record = json.loads(cache.canonical(built.sheet.record))  # as a cached one reads back
-        if task.since is not None:
-            built = with_changes_since(built, task.since)
-        house = task.style or (Path(built.sheet.style) if built.sheet.style else None) or task.package_style
-        rendered = render(built.sheet, task.formats, house)
+        sheet = task.make(task.path, task.overrides, records if task.package_sheet else None, task.since)
+        record = sheet.record
+        sheet = sheet.rendered(task.formats, style=task.style, fallback_style=task.package_style)
     except CalcsheetError as error:
         return {
             "error": str(error.located(file=str(task.path))),
@@ -54,16 +49,16 @@ def build_outputs(task: SheetTask) -> dict:
             "code": error.exit_code,
             "record": record,
         }
-    pages = _pages(rendered.get("pdf"))
+    pages = _pages(sheet.outputs.get("pdf"))
     from calcsheet.package.register import row_facts
 
     return {
-        "rendered": rendered,
+        "rendered": dict(sheet.outputs),
         "record": record,
-        "facts": row_facts(built, pages),
-        "summary": task.describe(built.derivation) if task.describe else "",
-        "problem": built.sheet.review.problem or "",
-        "code": EXIT_OK if built.derivation.passed else EXIT_CHECK_FAILED,
+        "facts": row_facts(sheet.built, pages),
+        "summary": sheet.summary,
+        "problem": sheet.problem,
+        "code": EXIT_OK if sheet.passed else EXIT_CHECK_FAILED,
     }
 
 
@@ -87,7 +82,7 @@ class BuildRun:
     overrides: tuple = ()
     since: str | None = None
     force: bool = False
-    describe: object = None
+    make: object = None  # the Python API's sheet_of (see SheetTask)
     say: object = print  # one line per sheet (stdout)
     say_reused: bool = True  # False: no line for a sheet reused from the cache (a watch's later rounds)
     warn: object = print  # errors (stderr)
@@ -181,7 +176,7 @@ class BuildRun:
             overrides=self.overrides,
             records=upstream,
             since=self.since,
-            describe=self.describe,
+            make=self.make,
             package_sheet=job.session is not None and job.whole_package and not self.overrides,
         )
         return ("work", _keyed_build, (task, key))

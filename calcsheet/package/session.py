@@ -43,9 +43,13 @@ class PackageSession:
                 file=str(path),
             )
         built = build_sheet(path, overrides, self.records)
-        if entry.number and not overrides:
-            self.records[entry.number] = built.sheet.record
+        self.remember(entry, built.sheet.record, overrides)
         return built
+
+    def remember(self, entry: SheetEntry, record: dict, overrides: tuple = ()) -> None:
+        """A sheet's record, for the sheets after it that use its results; a what-if's results do not flow."""
+        if entry.number and not overrides:
+            self.records[entry.number] = record
 
 
 @dataclass(frozen=True)
@@ -55,6 +59,19 @@ class Job:
     path: Path
     session: PackageSession | None
     whole_package: bool = False  # named through its package's folder: the build writes the register too
+
+    @property
+    def package_records(self) -> dict | None:
+        """The records of its package's sheets built so far by this command (None: a sheet on its own finds its
+        package's values itself as it is built)."""
+        return None if self.session is None else self.session.records
+
+    def remember(self, record: dict, overrides: tuple = ()) -> None:
+        """This sheet's record, built through the Python API, for its package's later sheets."""
+        if self.session is not None:
+            entry = next((e for e in self.session.entries if e.path == self.path), None)
+            if entry is not None:
+                self.session.remember(entry, record, overrides)
 
     def build(self, overrides: tuple[tuple[str, str], ...] = ()):
         from calcsheet.pipeline import build_sheet
