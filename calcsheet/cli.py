@@ -247,6 +247,7 @@ def watch(
 def _watch(target, out_dir, formats, style, workers, poll, serve, port) -> None:
     """The watch command's work, inside its signal handling: settings checked, the server started, then the loop."""
     from calcsheet.errors import InputError
+    from calcsheet.api import sheet_of
     from calcsheet.pipeline import DEFAULT_FORMATS, parse_formats
     from calcsheet.watch.loop import watch as watch_loop
     from calcsheet.watch.rebuild import Rebuild
@@ -265,7 +266,7 @@ def _watch(target, out_dir, formats, style, workers, poll, serve, port) -> None:
         formats=chosen,
         style=style_dir,
         workers=workers,
-        describe=_summary,
+        make=sheet_of,
         say=click.echo,
         warn=lambda line: click.echo(line, err=True),
         write_registers=lambda *args: _write_registers(*args, guard=lambda thunk: thunk()),

@@ -17,7 +17,7 @@ class Rebuild:
     formats: tuple[str, ...]
     style: Path | None
     workers: int
-    describe: object  # derivation -> the build's one-line verdict
+    make: object  # the Python API's sheet_of: builds one sheet and gives its one-line verdict
     say: object  # a line to standard output
     warn: object  # a line to standard error
     write_registers: object  # (jobs, done, failures, out_dir, quiet): a package's register and bound PDF
@@ -45,7 +45,7 @@ class Rebuild:
             out_dir=self.out_dir,
             formats=self.formats,
             style=self.style,
-            describe=self.describe,
+            make=self.make,
             say=said,
             warn=warned,
             say_reused=first,
