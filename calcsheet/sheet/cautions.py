@@ -96,8 +96,8 @@ def hot_surface_note(model: Model, hottest: float) -> str:
 
 
 def _temperature_limits(model: Model) -> tuple[tuple[str, float, str], ...]:
-    """(check, temperature in K, as written) for each criterion that states a temperature of the unknown: the limit of a value,
-    extreme or final value, the level of a reach."""
+    """(check, temperature in K, as written) for each criterion that states a temperature of the unknown: the
+    limit of a value, extreme or final value, the level of a reach."""
     from calcsheet.subjects import SUBJECTS, UNKNOWN
 
     found = []

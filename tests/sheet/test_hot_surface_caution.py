@@ -43,8 +43,7 @@ def test_the_flange_note_names_the_common_practice_figures_and_places_its_50_deg
     assert "Common practice" in note and "43-48 degC on prolonged contact" in note and "60 degC on brief" in note
     assert "about 45 degC" not in note  # the old threshold, which a 50 degC handling limit seemed to break
     assert (
-        "reach(50 degC) <= 1 h uses 50 degC, above the figure for prolonged contact and below the one for brief"
-        in note
+        "reach(50 degC) <= 1 h uses 50 degC, above the figure for prolonged contact and below the one for brief" in note
     )
     assert "T(45 min) <= 60 degC uses 60 degC, at or above the figure for brief contact" in note
     assert "local codes and licensed practice" in note
