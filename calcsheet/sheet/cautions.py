@@ -126,6 +126,37 @@ def _against_contact_figures(kelvin: float) -> str:
     return "at or above the figure for brief contact: a part at that temperature can burn even on brief contact"
 
 
+# The response "stays far below its input" when it covers less than this fraction of the input's excursion from the
+# start value: a lag that reaches 95 % of a slow input is tracking it; one that reaches 70 % of a spike is not.
+FAR_BELOW = 0.9
+
+
+def input_beyond_response(model: Model, driving) -> tuple[str, ...]:
+    """Where a forced response stays far below its input (a probe lagging a spike): the input's peak and the
+    response's, both stated, for each side (above and below the start value) where it happens. ``driving`` is
+    derive/driving.py's facts; nothing without them or for a forcing that does not change."""
+    from calcsheet.sheet.quantities import in_units
+
+    if driving is None or not driving.varies:
+        return ()
+    start, name, x = model.initial_value.si, model.unknown.name, model.variable
+    notes = []
+    for word, verb, u, y, sign in (
+        ("higher", "peaks at", driving.largest, driving.response_largest, 1),
+        ("lower", "falls to", driving.smallest, driving.response_smallest, -1),
+    ):
+        reach_of_input, reach_of_response = sign * (u.value - start), sign * (y.value - start)
+        if reach_of_input > 0 and reach_of_response < FAR_BELOW * reach_of_input:
+            notes.append(
+                f"The input reached a {word} value than the response: the forcing, as a value of {name}, {verb} "
+                f"{in_units(u.value, model.unknown)} at {x.name} = {in_units(u.at, x)}, while {name} {verb} "
+                f"{in_units(y.value, model.unknown)} at {x.name} = {in_units(y.at, x)}. Whatever the forcing acts "
+                f"on directly (the medium a probe sits in, a part's surroundings) sees the input's value; judge "
+                f"exposure to it from the input, not from {name}."
+            )
+    return tuple(notes)
+
+
 def stored_energies(model: Model) -> tuple[str, ...]:
     """The derived quantities that are a stored electrical energy: in joules, of a voltage or a current (a kind's
     offered E_C or E_L, or the user's own)."""

@@ -88,6 +88,8 @@ class Figure:
     switches: tuple[tuple[float, str], ...] = ()  # switch instants (x, what happens)
     crossings: tuple[tuple[float, float, str], ...] = ()  # where a level is first reached (x, y, label)
     legend: "Legend | None" = None  # the words of the legend (compose's), None: no legend entries
+    forcing: tuple[tuple[float, float], ...] = ()  # the forcing as a value of the unknown (r/p), a thin curve
+    forcing_label: str = ""  # its legend entry
 
 
 @dataclass(frozen=True)

@@ -36,6 +36,7 @@ FIGSIZE_IN = (6.3, 3.35)  # about 16 cm x 8.5 cm
 MARGIN = 0.05  # fraction of the data span added above and below
 
 EXTREME = "#7a4a00"
+FORCING = "#6a3d8f"  # the forcing drawn as a value of the unknown: thin, apart from the solution's black
 
 # status -> (colour, matplotlib linestyle, linewidth in pt); the dash patterns are set in _RC
 GUIDE_STYLE = {
@@ -135,6 +136,17 @@ def _build(figure):
             label=_legend(figure, "curve"),
             zorder=3,
             gid="calcsheet-curve",
+        )
+    forcing = [(x, y) for x, y in figure.forcing if _finite(x, y)]
+    if forcing:
+        ax.plot(
+            [p[0] for p in forcing],
+            [p[1] for p in forcing],
+            color=FORCING,
+            linewidth=0.9,
+            label=figure.forcing_label or "_nolegend_",
+            zorder=2.5,
+            gid="calcsheet-forcing",
         )
     if figure.independent:
         ax.plot(
@@ -300,7 +312,7 @@ def _obstacles(ax, renderer, figure, curve, levels, limits, extremes, point_limi
     return data_obstacles(
         ax,
         renderer,
-        [curve],
+        [curve, [(x, y) for x, y in figure.forcing if _finite(x, y)]],
         markers,
         [g.value for g in levels],
         [g.value for g in limits] + switches,
@@ -426,6 +438,7 @@ def _ranges(figure, curve):
     ys = (
         [y for _, y in curve]
         + [y for _, y in figure.independent]
+        + [y for _, y in figure.forcing]
         + [p[1] for p in figure.points]
         + [g.value for g in figure.levels]
         + [p.value for p in figure.point_limits]
