@@ -3,7 +3,7 @@
 For a lag (a probe in a gas whose temperature spikes) the checker wants the input beside the reading: the
 reading's peak is later and lower than the input's, and a sheet that shows only the reading hides how high
 the input went. Written as dy/dx + p y = r, the forcing in the unknown's own dimension is r/p, for any
-linear first-order model with p not zero (for tau dT/dt + T = u it is u itself). This module returns facts
+linear first-order model with a constant, non-zero p (for tau dT/dt + T = u it is u itself). This module returns facts
 in SI: r/p sampled where the plotted curve is, and the largest and smallest values of r/p and of the
 response over the plotted range, each refined from the best sample by a bounded scalar search.
 """
@@ -39,14 +39,16 @@ class Driving:
 
 
 def driving_value(model, cls, y, curve) -> Driving | None:
-    """None where r/p does not exist over the plotted range (p is zero somewhere, as for a tank whose volume
-    only grows, or r/p is not finite) or where there is no curve."""
+    """None where p is zero or changes with the variable, where r/p is not finite over the plotted range, or
+    where there is no curve."""
     if len(curve) < 3:
         return None
     x = model.variable.symbol
     values = model.numeric_values()
     p, r = sp.sympify(cls.p).subs(values), sp.sympify(cls.r).subs(values)
-    if p.is_zero or not p.free_symbols <= {x} or not r.free_symbols <= {x}:
+    # with p changing along the variable (a tank whose volume grows) r/p is a drifting quasi-steady value, not an
+    # input anyone set: drawing it would suggest a forcing that is not there
+    if p.is_zero or p.free_symbols or not r.free_symbols <= {x}:
         return None
     expr = r / p
     xs = [c[0] for c in curve]

@@ -133,3 +133,10 @@ def test_points_past_the_plotted_range_are_named_in_the_caption(tmp_path):
     # a plunge into 80 degC with tau = 3 s reaches 79 degC at 3 ln 60 = 12.28 s (by hand), past a plot to 10 s
     figure = response_figure(_derive(tmp_path, PLUNGE, "plunge"))
     assert figure.crossings == () and figure.caption.endswith("in the tables only: where T reaches 79 degC.")
+
+
+def test_a_filling_tank_draws_no_forcing():
+    # the tracer tank's outflow term q_out/V(t) changes as the tank fills: r/p there is a drifting quasi-steady
+    # value, not an input, so nothing is drawn and no caution compares it
+    tank = derive(load_model(ROOT / "inputs" / "equalisation-tank-tracer.toml"))
+    assert tank.driving is None and response_figure(tank).forcing == ()
