@@ -9,6 +9,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from calcsheet.derive.classify import Classification, classify
+from calcsheet.derive.driving import Driving, driving_value
 from calcsheet.derive.evaluate import QuadratureLog, make_evaluator
 from calcsheet.derive.integrating_factor import Solution, solve
 from calcsheet.derive.numbers import Numbers, compute_numbers
@@ -33,6 +34,7 @@ class Derivation:
     margin: object = None  # derive/margin.py's Margin, when parameters have ranges (set by the pipeline)
     linearisation: object = None  # derive/linearise.py's Linearisation, when the stated equation was non-linear
     accuracy: object = None  # derive/linear_accuracy.py's Accuracy: the linearised against the non-linear response
+    driving: Driving | None = None  # the forcing as a value of the unknown (r/p) over the plotted range
 
     @property
     def passed(self) -> bool:
@@ -94,6 +96,7 @@ def _numeric(model: Model, cls: Classification, solution: Solution) -> Derivatio
         curve=curve,
         quadrature=None if solution.closed_form else y.log,
         response=y,
+        driving=driving_value(model, cls, y, curve),
     )
 
 

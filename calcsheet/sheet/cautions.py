@@ -11,9 +11,13 @@ GENERAL = (
     "licensed practice govern any use of its results."
 )
 
-# Common practice, no source: contact with surfaces much above about 45 degC can burn, so any
-# temperature past that in the model earns the hot-surface note.
-HOT_SURFACE_KELVIN = 318.15
+# Contact-burn figures for bare metal, common practice, no source; quoted from memory: about 43-48 degC for
+# prolonged contact (minutes and more) and about 60 degC for brief contact (a few seconds). Any temperature in the
+# model past the lower figure earns the hot-surface note, and the note places the sheet's own temperature limits
+# against these figures, so that it never reads as contradicting them.
+PROLONGED_CONTACT_KELVIN = (316.15, 321.15)
+BRIEF_CONTACT_KELVIN = 333.15
+HOT_SURFACE_KELVIN = PROLONGED_CONTACT_KELVIN[0]
 
 ELECTRICAL = (
     "Stored electrical energy: treat the circuit as live until its voltage has been "
@@ -30,8 +34,10 @@ INDUCTIVE = (
     "safety rules for isolation."
 )
 HEAT = (
-    "Hot surfaces: parts above about 45 degC can burn on contact; keep guards, warning signs "
-    "and protective equipment as local rules require until the part has been measured cool."
+    "Hot surfaces: this model reaches {hottest}. Common practice (figures commonly quoted, no cited source) takes "
+    "bare metal to burn skin at about 43-48 degC on prolonged contact and at about 60 degC on brief contact.{limits} "
+    "Keep guards, warning signs and protective equipment as local codes and licensed practice require until the "
+    "part has been measured cool."
 )
 PRESSURE = (
     "Stored pressure energy: do not open or work on the system until it is verified "
@@ -64,10 +70,90 @@ def hazard_notes(
             )
             + energy
         )
-    if _dim(model.unknown.unit) == _dim("K") and max((_hottest(model),) + tuple(response)) > HOT_SURFACE_KELVIN:
-        notes.append(HEAT)
+    if _dim(model.unknown.unit) == _dim("K"):
+        hottest = max((_hottest(model),) + tuple(v for v in response if v == v))
+        if hottest > HOT_SURFACE_KELVIN:
+            notes.append(hot_surface_note(model, hottest))
     if dims & {_dim("Pa")}:
         notes.append(PRESSURE)
+    return tuple(notes)
+
+
+def hot_surface_note(model: Model, hottest: float) -> str:
+    """The hot-surface note: the hottest temperature of the model, the common-practice contact figures, and each of
+    the sheet's own temperature limits placed against them (a 50 degC handling limit sits between the two)."""
+    from calcsheet.sheet.quantities import in_units
+
+    by_value: dict[tuple[float, str], list[str]] = {}
+    for check, value, text in _temperature_limits(model):
+        by_value.setdefault((value, text), []).append(check)
+    limits = "".join(
+        f" The {'criterion' if len(checks) == 1 else 'criteria'} {' and '.join(checks)} "
+        f"{'uses' if len(checks) == 1 else 'use'} {text}, {_against_contact_figures(value)}."
+        for (value, text), checks in by_value.items()
+    )
+    return HEAT.format(hottest=in_units(hottest, model.unknown), limits=limits)
+
+
+def _temperature_limits(model: Model) -> tuple[tuple[str, float, str], ...]:
+    """(check, temperature in K, as written) for each criterion that states a temperature of the unknown: the
+    limit of a value, extreme or final value, the level of a reach."""
+    from calcsheet.subjects import SUBJECTS, UNKNOWN
+
+    found = []
+    for c in model.criteria:
+        if c.of:
+            continue
+        subject = SUBJECTS[c.subject]
+        if subject.found == UNKNOWN:
+            found.append((c.check, c.limit.si, c.limit.text))
+        elif subject.argument == UNKNOWN and c.argument is not None:
+            found.append((c.check, c.argument.si, c.argument.text))
+    return tuple(found)
+
+
+def _against_contact_figures(kelvin: float) -> str:
+    low, high = PROLONGED_CONTACT_KELVIN
+    if kelvin < low:
+        return "below both figures"
+    if kelvin <= high:
+        return "within the range quoted for prolonged contact"
+    if kelvin < BRIEF_CONTACT_KELVIN:
+        return (
+            "above the figure for prolonged contact and below the one for brief contact: a part that meets it can "
+            "still burn on prolonged contact"
+        )
+    return "at or above the figure for brief contact: a part at that temperature can burn even on brief contact"
+
+
+# The response "stays far below its input" when it covers less than this fraction of the input's excursion from the
+# start value: a lag that reaches 95 % of a slow input is tracking it; one that reaches 70 % of a spike is not.
+FAR_BELOW = 0.9
+
+
+def input_beyond_response(model: Model, driving) -> tuple[str, ...]:
+    """Where a forced response stays far below its input (a probe lagging a spike): the input's peak and the
+    response's, both stated, for each side (above and below the start value) where it happens. ``driving`` is
+    derive/driving.py's facts; nothing without them or for a forcing that does not change."""
+    from calcsheet.sheet.quantities import in_units
+
+    if driving is None or not driving.varies:
+        return ()
+    start, name, x = model.initial_value.si, model.unknown.name, model.variable
+    notes = []
+    for word, verb, u, y, sign in (
+        ("higher", "peaks at", driving.largest, driving.response_largest, 1),
+        ("lower", "falls to", driving.smallest, driving.response_smallest, -1),
+    ):
+        reach_of_input, reach_of_response = sign * (u.value - start), sign * (y.value - start)
+        if reach_of_input > 0 and reach_of_response < FAR_BELOW * reach_of_input:
+            notes.append(
+                f"The input reached a {word} value than the response: the forcing, as a value of {name}, {verb} "
+                f"{in_units(u.value, model.unknown)} at {x.name} = {in_units(u.at, x)}, while {name} {verb} "
+                f"{in_units(y.value, model.unknown)} at {x.name} = {in_units(y.at, x)}. Whatever the forcing acts "
+                f"on directly (the medium a probe sits in, a part's surroundings) sees the input's value; judge "
+                f"exposure to it from the input, not from {name}."
+            )
     return tuple(notes)
 
 

@@ -105,7 +105,9 @@ def compose(d: Derivation) -> Sheet:
         labels=sheet_labels(),
         outcome=_outcome(d),
         sections=(response, _basis(d)) + numbered,
-        cautions=(cautions.GENERAL,) + cautions.hazard_notes(d.model, tuple(y for _, y in d.curve), numbers=d.numbers),
+        cautions=(cautions.GENERAL,)
+        + cautions.hazard_notes(d.model, _response_and_input(d), numbers=d.numbers)
+        + cautions.input_beyond_response(d.model, d.driving),
         signoff=tuple(SignOffLine(s.role, s.name, s.date) for s in d.model.sheet.signoff),
         revisions=d.model.sheet.revisions,
         metadata=_metadata(d),
@@ -235,6 +237,13 @@ def sheet_labels() -> Labels:
         signoff_state="State",
         fingerprint="Fingerprint",
     )
+
+
+def _response_and_input(d) -> tuple[float, ...]:
+    """The values the hazard notes look at: the response, and the forcing as a value of the unknown where it
+    exists (a probe's reading peaks lower than the gas it sits in; the gas is what is hot)."""
+    driving = d.driving.samples if d.driving is not None else ()
+    return tuple(y for _, y in d.curve) + tuple(v for _, v in driving)
 
 
 def _outcome(d: Derivation) -> Outcome:

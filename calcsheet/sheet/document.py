@@ -89,6 +89,8 @@ class Figure:
     crossings: tuple[tuple[float, float, str], ...] = ()  # where a level is first reached (x, y, label)
     legend: "Legend | None" = None  # the words of the legend (compose's), None: no legend entries
     nonlinear: tuple[tuple[float, float], ...] = ()  # a linearised model's non-linear response, integrated on its own
+    forcing: tuple[tuple[float, float], ...] = ()  # the forcing as a value of the unknown (r/p), a thin curve
+    forcing_label: str = ""  # its legend entry
 
 
 @dataclass(frozen=True)

@@ -37,6 +37,7 @@ MARGIN = 0.05  # fraction of the data span added above and below
 
 EXTREME = "#7a4a00"
 NONLINEAR = "#b3541e"  # the non-linear model beside a linearised one: apart from the ink and the checks' blue
+FORCING = "#6a3d8f"  # the forcing drawn as a value of the unknown: thin, apart from the solution's black
 
 # status -> (colour, matplotlib linestyle, linewidth in pt); the dash patterns are set in _RC
 GUIDE_STYLE = {
@@ -148,6 +149,17 @@ def _build(figure):
             zorder=3,
             gid="calcsheet-nonlinear",
         )
+    forcing = [(x, y) for x, y in figure.forcing if _finite(x, y)]
+    if forcing:
+        ax.plot(
+            [p[0] for p in forcing],
+            [p[1] for p in forcing],
+            color=FORCING,
+            linewidth=0.9,
+            label=figure.forcing_label or "_nolegend_",
+            zorder=2.5,
+            gid="calcsheet-forcing",
+        )
     if figure.independent:
         ax.plot(
             [p[0] for p in figure.independent],
@@ -254,37 +266,155 @@ def _build(figure):
                 gid=f"calcsheet-{kind}-{guide.status or 'none'}-{i}",
             )
 
-    legend = None
+    # settle the layout, then put the legend and the labels where they cover least, measured on the drawing;
+    # the layout is kept from then on (the labels sit inside the axes, so laying out again would change nothing)
+    _place_legend_and_labels(fig, ax, figure, curve, levels, limits, extremes, point_limits)
+    return fig
+
+
+_LEGEND_STYLE = {
+    "frameon": True,
+    "framealpha": 0.92,
+    "edgecolor": GRID,
+    "fancybox": False,
+    "borderpad": 0.5,
+    "handlelength": 2.2,
+    "labelcolor": INK,
+}
+
+
+def _place_legend_and_labels(fig, ax, figure, curve, levels, limits, extremes, point_limits):
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    from calcsheet.writers import plot_labels
+
+    renderer = FigureCanvasAgg(fig).get_renderer()  # measures text in the same DejaVu Sans the SVG draws
+    fig.draw_without_rendering()
+    obstacles = _obstacles(ax, renderer, figure, curve, levels, limits, extremes, point_limits)
     if ax.get_legend_handles_labels()[0]:
-        legend = ax.legend(
-            loc=_legend_corner(curve, xlim, ylim),
-            frameon=True,
-            framealpha=0.92,
-            edgecolor=GRID,
-            fancybox=False,
-            borderpad=0.5,
-            handlelength=2.2,
-            labelcolor=INK,
-        )
+        legend = plot_labels.place_legend(fig, ax, obstacles, renderer, _LEGEND_STYLE)
         legend.get_frame().set_linewidth(0.6)
         legend.set_zorder(10)
-
-    # settle the layout so the labels below can be placed against the real axes size and legend box, then
-    # keep it: the labels sit inside the axes, so laying out again when saving would change nothing
-    fig.draw_without_rendering()
+        fig.draw_without_rendering()  # a legend moved below the axes shrinks them
+        obstacles = _obstacles(ax, renderer, figure, curve, levels, limits, extremes, point_limits)
+        obstacles.add_text(tuple(legend.get_window_extent(renderer).extents))
     fig.set_layout_engine("none")
-    placer = _Placer(fig, ax, legend, curve, figure, levels, limits)
+    for t in ax.get_xticklabels() + ax.get_yticklabels() + [ax.xaxis.label, ax.yaxis.label]:
+        if t.get_visible() and t.get_text().strip():
+            obstacles.add_text(tuple(t.get_window_extent(renderer).extents))
+    labels = _Labels(ax, obstacles)
     for guide in sorted(levels, key=lambda g: -g.value):  # from the top, where the frame leaves least room
-        placer.level_label(guide)
+        labels.level(guide)
     for guide in limits:
-        placer.limit_label(guide)
-    for x, y, label in figure.points:
-        placer.point_label(x, y, label)
-    for x, y, label in extremes:
-        placer.point_label(x, y, label)
-    for mark in point_limits:
-        placer.point_label(mark.x, mark.value, mark.label)
-    return fig
+        labels.limit(guide)
+    # criteria first, where there is most room: a limit's words matter more than a point's name
+    for x, y, label in [(m.x, m.value, m.label) for m in point_limits] + extremes + [p for p in figure.points]:
+        labels.point(x, y, label, curve)
+
+
+def _obstacles(ax, renderer, figure, curve, levels, limits, extremes, point_limits):
+    from calcsheet.writers.plot_labels import data_obstacles
+
+    markers = [(x, y, 2.5, 2.5) for x, y in figure.independent if _finite(x, y)]
+    markers += [(p[0], p[1], 3.0, 3.0) for p in figure.points if _finite(p[0], p[1])]
+    markers += [(e[0], e[1], 3.5, 3.5) for e in extremes]
+    markers += [(c[0], c[1], 3.0, 3.0) for c in figure.crossings if _finite(c[0], c[1])]
+    markers += [(m.x, m.value, 8.0, 4.0) for m in point_limits]  # the bar and its caret
+    switches = [s[0] for s in figure.switches if _finite(s[0])]
+    return data_obstacles(
+        ax,
+        renderer,
+        [curve, [(x, y) for x, y in figure.forcing if _finite(x, y)]],
+        markers,
+        [g.value for g in levels],
+        [g.value for g in limits] + switches,
+    )
+
+
+class _Labels:
+    """Each label drawn once, then moved by plot_labels.place_label among spots in the order preferred."""
+
+    FONT_SIZE = 7.0
+    GAP = 2.5  # pt between a label and its line or point
+
+    def __init__(self, ax, obstacles):
+        self.ax, self.obstacles = ax, obstacles
+
+    def _draw(self, text, colour, xycoords, rotated=False):
+        return self.ax.annotate(
+            text,
+            (0.0, 0.0),
+            xycoords=xycoords,
+            xytext=(0.0, 0.0),
+            textcoords="offset points",
+            rotation=90 if rotated else 0,
+            fontsize=self.FONT_SIZE,
+            color=colour,
+            parse_math=False,
+            zorder=6,
+            annotation_clip=False,
+            bbox=_LABEL_BOX,
+            in_layout=False,
+        )
+
+    def level(self, guide):
+        from calcsheet.writers.plot_labels import place_label
+
+        if not guide.label:
+            return
+        artist = self._draw(
+            guide.label, GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0], self.ax.get_yaxis_transform()
+        )
+        g, y = self.GAP, guide.value
+        candidates = []
+        for fx, ha in ((0.01, "left"), (0.99, "right"), (0.25, "left"), (0.5, "left"), (0.75, "right")):
+            candidates += [((fx, y), (0, g), ha, "bottom"), ((fx, y), (0, -g), ha, "top")]
+        place_label(artist, self.obstacles, candidates)
+
+    def limit(self, guide):
+        from calcsheet.writers.plot_labels import place_label
+
+        if not guide.label:
+            return
+        colour = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0]
+        artist = self._draw(guide.label, colour, self.ax.get_xaxis_transform(), rotated=True)
+        g, x = self.GAP, guide.value
+        candidates = []
+        for fy, va in ((0.98, "top"), (0.02, "bottom"), (0.5, "center"), (0.75, "center"), (0.25, "center")):
+            candidates += [((x, fy), (-g, 0), "right", va, 90), ((x, fy), (g, 0), "left", va, 90)]
+        # written across where no upright spot is free: a long label does not fit between close levels
+        for fy, va in ((0.98, "top"), (0.02, "bottom"), (0.5, "center"), (0.75, "center"), (0.25, "center")):
+            candidates += [((x, fy), (g, 0), "left", va, 0), ((x, fy), (-g, 0), "right", va, 0)]
+        place_label(artist, self.obstacles, candidates)
+
+    def point(self, x, y, label, curve):
+        from calcsheet.writers.plot_labels import place_label
+
+        if not label or not _finite(x, y):
+            return
+        artist = self._draw(label, INK, "data")
+        spots = {}
+        for d in (self.GAP + 2.5, self.GAP + 9.0, self.GAP + 18.0):  # clear of the dot, then farther out
+            spots[d] = {
+                "below right": ((d, -d), "left", "top"),
+                "above left": ((-d, d), "right", "bottom"),
+                "above right": ((d, d), "left", "bottom"),
+                "below left": ((-d, -d), "right", "top"),
+                "above": ((0, d), "center", "bottom"),
+                "below": ((0, -d), "center", "top"),
+                "right": ((d, 0), "left", "center"),
+                "left": ((-d, 0), "right", "center"),
+            }
+        # a rising curve leaves the lower right and upper left free, a falling one the other two
+        before, after = _height_near(curve, x, -1), _height_near(curve, x, 1)
+        rising = before is None or after >= before
+        order = (
+            ["below right", "above left", "above right", "below left"]
+            if rising
+            else ["above right", "below left", "below right", "above left"]
+        ) + ["above", "below", "right", "left"]
+        candidates = [((x, y), *spots[d][k]) for d in spots for k in order]
+        place_label(artist, self.obstacles, candidates)
 
 
 def _legend(figure, mark: str) -> str:
@@ -321,6 +451,7 @@ def _ranges(figure, curve):
         [y for _, y in curve]
         + [y for _, y in figure.independent]
         + [y for _, y in figure.nonlinear if _finite(y)]
+        + [y for _, y in figure.forcing if _finite(y)]
         + [p[1] for p in figure.points]
         + [g.value for g in figure.levels]
         + [p.value for p in figure.point_limits]
@@ -330,180 +461,16 @@ def _ranges(figure, curve):
     return (lo, hi), (y0 - pad, y1 + pad)
 
 
-def _legend_corner(curve, xlim, ylim) -> str:
-    """Lower right when the curve sits high on the right-hand half, upper right otherwise."""
-    middle = 0.5 * (xlim[0] + xlim[1])
-    right = [y for x, y in curve if x >= middle]
-    if not right:
-        return "upper right"
-    return "lower right" if sum(right) / len(right) > 0.5 * (ylim[0] + ylim[1]) else "upper right"
-
-
-class _Placer:
-    """Puts each text label at the candidate spot that collides least with what is already drawn.
-
-    Everything is worked in axes fractions (0..1 across the plotting area). A candidate is scored
-    by what its box would cover: leaving the axes, crossing the curve, crossing another guide line,
-    covering markers, the legend or a label already placed. The first candidate wins a tie, so the
-    order of candidates carries the preferred placement.
-    """
-
-    FONT_SIZE = 7.0
-    GAP = 2.5  # pt between a label and its line or point
-
-    def __init__(self, fig, ax, legend, curve, figure, levels, limits):
-        from matplotlib.font_manager import FontProperties
-        from matplotlib.textpath import TextToPath
-
-        self.ax = ax
-        box = ax.get_window_extent()
-        self.size = (box.width * 72 / fig.dpi, box.height * 72 / fig.dpi)  # axes size in pt
-        self.xlim, self.ylim = ax.get_xlim(), ax.get_ylim()
-        self._measure = lambda text: TextToPath().get_text_width_height_descent(
-            text, FontProperties(family="DejaVu Sans", size=self.FONT_SIZE), ismath=False
-        )
-        to_axes = ax.transAxes.inverted()
-        self.placed = [tuple(legend.get_window_extent().transformed(to_axes).extents)] if legend else []
-        self.curve = [self._frac(x, y) for x, y in curve]
-        self.markers = [self._frac(x, y) for x, y in figure.independent if _finite(x, y)]
-        self.markers += [self._frac(p[0], p[1]) for p in figure.points if _finite(p[0], p[1])]
-        self.markers += [self._frac(p[0], p[1]) for p in figure.extremes if _finite(p[0], p[1])]
-        self.hlines = [self._frac(self.xlim[0], g.value)[1] for g in levels]
-        self.vlines = [self._frac(g.value, self.ylim[0])[0] for g in limits]
-
-    def _frac(self, x, y):
-        return ((x - self.xlim[0]) / (self.xlim[1] - self.xlim[0]), (y - self.ylim[0]) / (self.ylim[1] - self.ylim[0]))
-
-    def _text_size(self, text, rotated=False):
-        width, height, _ = self._measure(text)
-        pad = 2 * 0.1 * self.FONT_SIZE
-        w, h = (width + pad) / self.size[0], (height + pad) / self.size[1]
-        if rotated:
-            w, h = (height + pad) / self.size[0], (width + pad) / self.size[1]
-        return w, h
-
-    def _box(self, anchor, offset, ha, va, wh):
-        x = anchor[0] + offset[0] / self.size[0]
-        y = anchor[1] + offset[1] / self.size[1]
-        x0 = {"left": x, "right": x - wh[0]}[ha]
-        y0 = {"bottom": y, "top": y - wh[1]}[va]
-        return (x0, y0, x0 + wh[0], y0 + wh[1])
-
-    def _cost(self, box) -> float:
-        x0, y0, x1, y1 = box
-        cost = 0.0
-        if x0 < 0 or y0 < 0 or x1 > 1 or y1 > 1:
-            cost += 6
-        cost += 3 * any(_segment_hits(box, p, q) for p, q in zip(self.curve, self.curve[1:]))
-        cost += 2 * sum(y0 < h < y1 for h in self.hlines) + 2 * sum(x0 < v < x1 for v in self.vlines)
-        cost += sum(x0 <= mx <= x1 and y0 <= my <= y1 for mx, my in self.markers)
-        cost += 4 * sum(x0 < b[2] and b[0] < x1 and y0 < b[3] and b[1] < y1 for b in self.placed)
-        return cost
-
-    def _place(self, text, colour, xy, xycoords, candidates, rotated=False, anchor_of=None):
-        """candidates: (offset in pt, ha, va, anchor in axes fractions)."""
-        wh = self._text_size(text, rotated)
-        best = min(candidates, key=lambda c: self._cost(self._box(c[3], c[0], c[1], c[2], wh)))
-        offset, ha, va, anchor = best
-        self.placed.append(self._box(anchor, offset, ha, va, wh))
-        self.ax.annotate(
-            text,
-            xy(anchor) if callable(xy) else xy,
-            xycoords=xycoords,
-            xytext=offset,
-            textcoords="offset points",
-            ha=ha,
-            va=va,
-            rotation=90 if rotated else 0,
-            fontsize=self.FONT_SIZE,
-            color=colour,
-            parse_math=False,
-            zorder=6,
-            annotation_clip=False,
-            bbox=_LABEL_BOX,
-            in_layout=False,
-        )
-
-    def level_label(self, guide):
-        if not guide.label:
-            return
-        colour = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0]
-        f = self._frac(self.xlim[0], guide.value)[1]
-        g = self.GAP
-        candidates = [
-            ((0, g), "left", "bottom", (0.01, f)),
-            ((0, -g), "left", "top", (0.01, f)),
-            ((0, g), "right", "bottom", (0.99, f)),
-            ((0, -g), "right", "top", (0.99, f)),
-        ]
-        self._place(guide.label, colour, lambda a: (a[0], guide.value), self.ax.get_yaxis_transform(), candidates)
-
-    def limit_label(self, guide):
-        if not guide.label:
-            return
-        colour = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0]
-        f = self._frac(guide.value, self.ylim[0])[0]
-        g = self.GAP
-        candidates = [
-            ((-g, 0), "right", "top", (f, 0.98)),
-            ((-g, 0), "right", "bottom", (f, 0.02)),
-            ((g, 0), "left", "top", (f, 0.98)),
-            ((g, 0), "left", "bottom", (f, 0.02)),
-        ]
-        self._place(
-            guide.label, colour, lambda a: (guide.value, a[1]), self.ax.get_xaxis_transform(), candidates, rotated=True
-        )
-
-    def point_label(self, x, y, label):
-        if not label or not _finite(x, y):
-            return
-        anchor = self._frac(x, y)
-        d = self.GAP + 2.5  # clear of the dot
-        quadrants = {
-            "below right": ((d, -d), "left", "top", anchor),
-            "above left": ((-d, d), "right", "bottom", anchor),
-            "above right": ((d, d), "left", "bottom", anchor),
-            "below left": ((-d, -d), "right", "top", anchor),
-        }
-        # a rising curve leaves the lower right and upper left free, a falling one the other two
-        before, after = _height_near(self.curve, anchor[0] - 0.01), _height_near(self.curve, anchor[0] + 0.01)
-        rising = before is None or after >= before
-        order = (
-            ["below right", "above left", "above right", "below left"]
-            if rising
-            else ["above right", "below left", "below right", "above left"]
-        )
-        self._place(label, INK, (x, y), "data", [quadrants[k] for k in order])
-
-
-def _height_near(curve, fx):
-    """The curve's height (axes fraction) at fx by linear interpolation; None without a curve."""
-    if not curve:
+def _height_near(curve, x, side):
+    """The curve's height a little before (side -1) or after (side +1) x, by linear interpolation; None
+    without a curve."""
+    if len(curve) < 2:
         return None
     pts = sorted(curve)
+    fx = x + side * 0.01 * (pts[-1][0] - pts[0][0])
     if fx <= pts[0][0]:
         return pts[0][1]
     for (xa, ya), (xb, yb) in zip(pts, pts[1:]):
         if xa <= fx <= xb:
             return ya if xb == xa else ya + (yb - ya) * (fx - xa) / (xb - xa)
     return pts[-1][1]
-
-
-def _segment_hits(box, p, q) -> bool:
-    """Whether the segment p-q crosses the box (Liang-Barsky clipping)."""
-    x0, y0, x1, y1 = box
-    dx, dy = q[0] - p[0], q[1] - p[1]
-    lo, hi = 0.0, 1.0
-    for step, room in ((-dx, p[0] - x0), (dx, x1 - p[0]), (-dy, p[1] - y0), (dy, y1 - p[1])):
-        if step == 0:
-            if room < 0:
-                return False
-        else:
-            t = room / step
-            if step < 0:
-                lo = max(lo, t)
-            else:
-                hi = min(hi, t)
-            if lo > hi:
-                return False
-    return True

@@ -207,10 +207,17 @@ def _legend_place(fig):
     return f"{vertical} {horizontal}"
 
 
-def test_legend_corner_follows_the_curve(built):
-    assert _legend_place(built) == "lower right"  # a rise ends high
+def test_legend_corner_follows_the_curve():
+    assert _legend_place(build_figure(_figure())) == "lower right"  # a rise ends high
     falling_curve = tuple((x, 70 - y) for x, y in _rise())
     assert _legend_place(build_figure(_figure(curve=falling_curve, points=False))) == "upper right"
+
+
+def test_the_legend_goes_below_the_axes_when_every_corner_would_cover_a_line(built):
+    # FULL has levels and limits crossing every corner of the axes
+    assert built.axes[0].get_legend() is None and len(built.legends) == 1
+    legend, frame = built.legends[0].get_window_extent(), built.axes[0].get_window_extent()
+    assert legend.y1 < frame.y0
 
 
 def test_without_levels_limits_or_points_and_with_awkward_text():
