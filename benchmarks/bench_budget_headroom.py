@@ -7,8 +7,10 @@ and a test must not. Run it after making a step slower or adding a demo:
     .venv/bin/python benchmarks/bench_budget_headroom.py [--scale 0.25]
 
 It prints, per demo, whether the records are the same with the smaller budgets and whether any step fell
-back because time ran out; exit status 1 if any demo differs. If one does, make the step cheaper (try cheap
-forms first); do not just raise the budget (DEVELOPERS.md, "Rules we keep").
+back because time ran out, then the five budgeted steps that came nearest their budgets (their share of it,
+wall clock and CPU seconds; a loaded machine shows the wall clock growing); exit status 1 if any demo
+differs. If one does, make the step cheaper (try cheap forms first); do not just raise the budget
+(DEVELOPERS.md, "Rules we keep").
 """
 
 from __future__ import annotations
@@ -38,9 +40,15 @@ def main() -> int:
     parser.add_argument("--scale", type=float, default=0.25, help="budget multiplier (default 0.25)")
     scale = parser.parse_args().scale
     worst = 0
+    nearest = []  # (share of the budget used, demo, step, budget s, wall s, CPU s) at full budgets
     for path in DEMOS:
         started = time.process_time()
-        full, _ = _records(path)
+        budget.STEPS_SEEN = []
+        try:
+            full, _ = _records(path)
+        finally:
+            seen, budget.STEPS_SEEN = budget.STEPS_SEEN, None
+        nearest.extend((wall / seconds, path.stem, name, seconds, wall, cpu) for name, seconds, wall, cpu in seen)
         cpu = time.process_time() - started
         budget.SCALE = scale
         try:
@@ -51,6 +59,9 @@ def main() -> int:
         worst = max(worst, 0 if same else 1)
         verdict = "same records" if same else ("a budget ran out" if ran_out else "records DIFFER")
         print(f"{path.stem:32s} {cpu:6.1f} CPU s at full budgets; at x{scale:g}: {verdict}")
+    print("\nthe budgeted steps nearest their budgets at full budgets (wall clock, which the budgets measure):")
+    for share, stem, name, seconds, wall, cpu in sorted(nearest, reverse=True)[:5]:
+        print(f"  {share:6.1%} of {seconds:g} s  ({wall:.2f} s wall, {cpu:.2f} CPU s)  {stem}: {name}")
     return worst
 
 

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-import pint
+from calcsheet.source.pint_import import pint
 import sympy as sp
 
 from calcsheet.formatting import number

@@ -24,6 +24,9 @@ INTEGRATE_SECONDS = 40.0
 SIMPLIFY_SECONDS = 15.0
 LIMIT_SECONDS = 15.0
 SCALE = 1.0  # multiplies every budget; only the headroom benchmark changes it
+# Only the headroom benchmark sets this to a list: each budgeted step then appends (step's name, budget s,
+# wall s, CPU s) so the step nearest its budget can be found. Nothing reads it back during a build.
+STEPS_SEEN: list | None = None
 
 # Why a symbolic step fell back, as a code a record or a test can compare (the sheet words it).
 NO_CLOSED_FORM = "no_closed_form"
@@ -91,6 +94,7 @@ def within(seconds: float, step: Callable[[], T], fallback: T) -> tuple[T, bool]
     """Run ``step`` under a budget; return (result, True) or (fallback, False) when its own time ran out.
     An outer budget that runs out meanwhile passes through to its own ``within``."""
     token = None
+    started = (time.monotonic(), time.process_time()) if STEPS_SEEN is not None else None
     try:
         with time_budget(seconds) as token:
             return step(), True
@@ -98,3 +102,7 @@ def within(seconds: float, step: Callable[[], T], fallback: T) -> tuple[T, bool]
         if expired.budget is not token:
             raise
         return fallback, False
+    finally:
+        if started is not None and STEPS_SEEN is not None:
+            name = f"{getattr(step, '__module__', '')}.{getattr(step, '__qualname__', repr(step))}"
+            STEPS_SEEN.append((name, seconds, time.monotonic() - started[0], time.process_time() - started[1]))

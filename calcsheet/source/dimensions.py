@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Callable
 
-import pint
+from calcsheet.source.pint_import import pint
 
 from calcsheet.errors import InputError
 from calcsheet.source import expressions as ex

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-import pint
+from calcsheet.source.pint_import import pint
 
 from calcsheet.errors import InputError
 from calcsheet.formatting import number

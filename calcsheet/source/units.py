@@ -11,7 +11,7 @@ import functools
 import math
 import re
 
-import pint
+from calcsheet.source.pint_import import pint
 
 from calcsheet.errors import InputError, shortened
 

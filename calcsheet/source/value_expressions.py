@@ -15,7 +15,7 @@ import re
 from dataclasses import dataclass
 from typing import Callable, Mapping
 
-import pint
+from calcsheet.source.pint_import import pint
 import sympy as sp
 
 from calcsheet.errors import InputError, shortened

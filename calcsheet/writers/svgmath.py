@@ -26,6 +26,9 @@ class Rendered:
 def render(latex: str, size: float = FONT_SIZE) -> Rendered:
     import ziamath
 
+    from calcsheet.writers.ziamath_rows import measure_once
+
+    measure_once()
     math = ziamath.Latex(latex, size=size)
     svg = math.svg()
     width, height = _viewbox_size(svg)
