@@ -1,8 +1,10 @@
 """Time budgets for symbolic steps that can run for minutes (sympy's integrate has no timeout).
 
-A SIGALRM timer interrupts the step; the caller then takes its fallback. Budgets nest (an inner
-step never cancels its caller's budget), and where one cannot be armed (off the main thread) the
-step is refused loudly rather than run without one.
+A timer on this process's own CPU time (ITIMER_PROF, SIGPROF) interrupts the step; the caller then takes its
+fallback. CPU time, not the wall clock: other work on the machine (a loaded CI host, parallel builds) takes
+nothing from a budget, so a sheet does not change with the machine's load. Budgets nest (an inner step never
+cancels its caller's budget), and where one cannot be armed (off the main thread) the step is refused loudly
+rather than run without one.
 """
 
 from __future__ import annotations
@@ -52,18 +54,24 @@ class BudgetUnavailable(RuntimeError):
     """A budget cannot be armed here (off the main thread, or no interval timer): a defect of the caller."""
 
 
-_open: list[tuple[object, float]] = []  # (budget, deadline on the monotonic clock), outermost first
+_open: list[tuple[object, float]] = []  # (budget, deadline in this process's CPU seconds), outermost first
+_SIGNAL, _TIMER = (signal.SIGPROF, signal.ITIMER_PROF) if hasattr(signal, "SIGPROF") else (None, None)
+
+
+def _cpu() -> float:
+    """The CPU seconds this process has used: the clock ITIMER_PROF counts (user and system, all threads)."""
+    return time.process_time()
 
 
 @contextmanager
 def time_budget(seconds: float):
     """Interrupt the body after ``seconds`` × SCALE. Budgets nest: the timer is armed for the nearest
     deadline of all open budgets, and an inner one never cancels or extends an outer one."""
-    if threading.current_thread() is not threading.main_thread() or not hasattr(signal, "setitimer"):
-        raise BudgetUnavailable("symbolic steps need a time budget, which needs the main thread and SIGALRM")
+    if threading.current_thread() is not threading.main_thread() or _SIGNAL is None:
+        raise BudgetUnavailable("symbolic steps need a time budget, which needs the main thread and SIGPROF")
     token = object()
-    _open.append((token, time.monotonic() + seconds * SCALE))
-    previous = signal.signal(signal.SIGALRM, _expire) if len(_open) == 1 else None
+    _open.append((token, _cpu() + seconds * SCALE))
+    previous = signal.signal(_SIGNAL, _expire) if len(_open) == 1 else None
     try:
         _arm()
         yield token
@@ -72,18 +80,18 @@ def time_budget(seconds: float):
         if _open:
             _arm()
         else:
-            signal.setitimer(signal.ITIMER_REAL, 0)
-            signal.signal(signal.SIGALRM, previous)
+            signal.setitimer(_TIMER, 0)
+            signal.signal(_SIGNAL, previous)
 
 
 def _arm() -> None:
     """Set the timer for the nearest open deadline (at once, if it has passed)."""
     nearest = min(deadline for _, deadline in _open)
-    signal.setitimer(signal.ITIMER_REAL, max(nearest - time.monotonic(), 1e-6))
+    signal.setitimer(_TIMER, max(nearest - _cpu(), 1e-6))
 
 
 def _expire(signum, frame):
-    now = time.monotonic()
+    now = _cpu()
     expired = min(_open, key=lambda entry: entry[1])
     if expired[1] <= now + 1e-3:
         raise OutOfTime(expired[0])

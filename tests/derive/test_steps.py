@@ -124,6 +124,15 @@ def test_budget_interrupts_a_long_step():
     assert (result, finished) == ("fallback", False)
 
 
+def test_a_budget_counts_this_process_s_cpu_time_not_the_wall_clock():
+    """Time the process spends waiting (here asleep; on a loaded machine, behind other processes) takes nothing
+    from a budget, so a sheet does not change with the machine's load: half a second asleep finishes inside a
+    budget of a tenth of a second of CPU."""
+    import time
+
+    assert budget.within(0.1, lambda: time.sleep(0.5) or "finished", "fell back") == ("finished", True)
+
+
 def test_an_inner_budget_does_not_cancel_the_outer_one():
     # The outer budget (0.2 s) must still interrupt the loop that follows a finished inner step.
     def inner_then_forever():
