@@ -106,20 +106,21 @@ class _OutOfTime(BaseException):
 
 
 def _with_alarm(seconds: float, thunk):
-    """Run thunk on the main thread with a SIGALRM budget; None when it runs out."""
+    """Run thunk on the main thread with a budget of this process's CPU time (so the machine's load does not
+    decide whether the oracle runs); None when it runs out."""
 
     def expire(signum, frame):
         raise _OutOfTime()
 
-    previous = signal.signal(signal.SIGALRM, expire)
-    signal.setitimer(signal.ITIMER_REAL, seconds)
+    previous = signal.signal(signal.SIGPROF, expire)
+    signal.setitimer(signal.ITIMER_PROF, seconds)
     try:
         return thunk()
     except _OutOfTime:
         return None
     finally:
-        signal.setitimer(signal.ITIMER_REAL, 0)
-        signal.signal(signal.SIGALRM, previous)
+        signal.setitimer(signal.ITIMER_PROF, 0)
+        signal.signal(signal.SIGPROF, previous)
 
 
 _T = sp.Symbol("t", real=True)
