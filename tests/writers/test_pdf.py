@@ -154,3 +154,14 @@ def test_no_page_ends_with_a_step_heading(pdfs, demo):
             line for line in page.extract_text().splitlines() if line.strip() and "Prepared with calcsheet" not in line
         ]
         assert not re.match(r"^Step \d+\b", body[-1]), f"page {number} ends with '{body[-1]}'"
+
+
+def test_an_equation_svg_has_no_glyph_of_zero_size():
+    # ziamath draws the thin space of "p\,dt" as a glyph of zero width; its use would be scaled by zero,
+    # a singular matrix in the PDF (poppler: "matrix not invertible") that cairo drew as debris.
+    import re
+
+    svg = svgmath.render(r"\mu = \exp\left(\int p\,dt\right)").svg
+    boxes = re.findall(r'<symbol id="[^"]+" viewBox="[-\d.]+ [-\d.]+ ([-\d.]+) ([-\d.]+)"', svg)
+    assert boxes and all(float(w) > 0 and float(h) > 0 for w, h in boxes)
+    assert not re.search(r'<use [^>]*(width|height)="0"', svg)
