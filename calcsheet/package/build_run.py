@@ -29,6 +29,7 @@ class SheetTask:
     since: str | None = None
     describe: object = None  # built.derivation -> the one-line summary
     package_sheet: bool = False  # built through its package: upstream records come from ``records``
+    archive: bool = False  # the PDF as PDF/A-3b carrying the input and the JSON record (build --archive)
 
 
 def build_outputs(task: SheetTask) -> dict:
@@ -46,7 +47,7 @@ def build_outputs(task: SheetTask) -> dict:
         if task.since is not None:
             built = with_changes_since(built, task.since)
         house = task.style or (Path(built.sheet.style) if built.sheet.style else None) or task.package_style
-        rendered = render(built.sheet, task.formats, house)
+        rendered = render(built.sheet, task.formats, house, task.path if task.archive else None)
     except CalcsheetError as error:
         return {
             "error": str(error.located(file=str(task.path))),
@@ -87,6 +88,7 @@ class BuildRun:
     overrides: tuple = ()
     since: str | None = None
     force: bool = False
+    archive: bool = False
     describe: object = None
     say: object = print  # one line per sheet (stdout)
     warn: object = print  # errors (stderr)
@@ -155,7 +157,7 @@ class BuildRun:
         basis = {name: package.basis[name].entry for name in entry.basis_used}
         folders = [cache.default_styles_folder(), self.style, package.style, _named_style(job.path)]
         styles = {str(f): self._digest(f) for f in folders if f is not None}
-        settings = {"formats": list(self.formats), "epoch": source_date_epoch()}
+        settings = {"formats": list(self.formats), "epoch": source_date_epoch(), "archive": self.archive}
         return cache.sheet_key(job.path, basis, upstream, styles, settings, self._versions)
 
     def _digest(self, folder: Path) -> str:
@@ -181,6 +183,7 @@ class BuildRun:
             records=upstream,
             since=self.since,
             describe=self.describe,
+            archive=self.archive,
             package_sheet=job.session is not None and job.whole_package and not self.overrides,
         )
         return ("work", _keyed_build, (task, key))
