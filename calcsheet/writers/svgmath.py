@@ -2,16 +2,16 @@
 
 ziamath typesets with its own math font in pure Python. A displayed equation wider than the
 column is broken at top-level '=' signs, then at top-level '+' and '-', and only then scaled down.
-ziamath draws a space (the thin space in ``p\\,dt``) as a glyph of zero width; scaled to zero width it
-gives a singular matrix in the PDF, which poppler reports and cairo draws as stray fragments, so such
-glyphs are dropped (they draw nothing).
+Glyphs are written as plain paths, not SVG 2 <symbol>/<use> pairs: WeasyPrint 70 draws an image's second
+occurrence on a page (an equation shown twice, the same data URI) with each <use> scaled to zero, a singular
+matrix that poppler reports ("matrix not invertible") and cairo draws as debris; and ziamath's glyph of zero
+width (the thin space in ``p\\,dt``) gave the same singular matrix at its first occurrence.
 """
 
 from __future__ import annotations
 
 import base64
 import functools
-import re
 from dataclasses import dataclass
 
 FONT_SIZE = 13.5  # px; matches 10 pt body text
@@ -28,26 +28,15 @@ class Rendered:
 
 @functools.lru_cache(maxsize=2048)
 def render(latex: str, size: float = FONT_SIZE) -> Rendered:
+    import ziafont
     import ziamath
 
+    ziafont.config.svg2 = False  # paths, not <symbol>/<use>: see the module's docstring
     math = ziamath.Latex(latex, size=size)
-    svg = without_empty_glyphs(math.svg())
+    svg = math.svg()
     width, height = _viewbox_size(svg)
     top = float(svg.split('viewBox="', 1)[1].split()[1])
     return Rendered(svg, width, height, max(height + top, 0.0))
-
-
-_SYMBOL = re.compile(r'<symbol id="([^"]+)" viewBox="([^"]*)"\s*(?:/>|>.*?</symbol>)', re.S)
-
-
-def without_empty_glyphs(svg: str) -> str:
-    """The SVG without glyphs of zero width or height and their uses: each would be drawn through a
-    singular transform (a scale of zero), which a PDF reader warns about and may draw as debris."""
-    empty = {m[1] for m in _SYMBOL.finditer(svg) if 0.0 in [float(v) for v in m[2].split()[2:4]]}
-    for glyph in sorted(empty):
-        svg = re.sub(rf'<symbol id="{re.escape(glyph)}"[^>]*?(?:/>|>.*?</symbol>)', "", svg, flags=re.S)
-        svg = re.sub(rf'<use href="#{re.escape(glyph)}"[^>]*/>', "", svg)
-    return svg
 
 
 def data_uri(svg: str) -> str:
