@@ -8,6 +8,7 @@ The page tests share this so that one worker builds each PDF once (pytest runs o
 from __future__ import annotations
 
 import functools
+import re
 import shutil
 import subprocess
 import tempfile
@@ -148,3 +149,27 @@ def _section_problems(title: str, blocks, heading: int, spans: list) -> list[str
         if isinstance(block, doc.Table) and len(block.rows) <= 4 and spans[i] is not None and len(set(spans[i])) > 1:
             problems.append(f"{title!r}: a table of {len(block.rows)} rows split across pages")
     return problems
+
+
+_PAIR = re.compile(r"(?<![\w.])\d[\d.]*(?:e-?\d+)? (?:[^\W\d_]|[°µΩ%])\S*")
+
+
+def split_pairs(printed_sheet: Printed) -> list[str]:
+    """Each number and unit in a table cell ("4.7 kohm") that poppler, reading the page's layout, does not
+    find on one line: the column was too narrow and the line broke between them."""
+    out = subprocess.run(
+        ["pdftotext", "-layout", "-enc", "UTF-8", "-", "-"], input=printed_sheet.pdf, capture_output=True
+    )
+    lines = {" ".join(unicodedata.normalize("NFKC", line).split()) for line in out.stdout.decode("utf-8").splitlines()}
+    text = "\n".join(lines)
+    cells = [
+        " ".join(visible(cell).split())
+        for section in printed_sheet.sheet.sections
+        for block in section.blocks
+        if isinstance(block, doc.Table)
+        for row in block.rows
+        for cell in row
+        if isinstance(cell, str)
+    ]
+    pairs = sorted({m.group(0) for cell in cells for m in _PAIR.finditer(cell)})
+    return [pair for pair in pairs if pair not in text]
