@@ -1,13 +1,15 @@
-"""Spaces a line must not break at, for the HTML and PDF: a number and its unit ("4.7 kohm", "10 %"), and a
-header's closing "at t =", so that a narrow table column never shows "4.7 / kohm" or a lone "=".
-
-The words stay as the Sheet has them; only the space becomes a no-break space (U+00A0), which a table's
-column then has to make room for. The text record keeps plain spaces.
+"""Text as the HTML and PDF show it: units after numbers in the trade's form (sheet/quantities.py::trade_units:
+4.7 kΩ, 25 °C, W/(m²·K)), and no-break spaces where a line must not break: between a number and its unit
+("4.7 kΩ", "10 %") and in a header's closing "at t =", so a narrow table column never shows "4.7 / kohm" or
+a lone "=". The words stay as the Sheet has them; a table's column has to make room for the joined pair.
+The text record keeps the ASCII units and plain spaces (one form there, one form here).
 """
 
 from __future__ import annotations
 
 import re
+
+from calcsheet.sheet.quantities import trade_units
 
 NO_BREAK = "\u00a0"
 _NUMBER_AND_UNIT = re.compile(r"(?<=\d) (?=[^\W\d_]|[°µΩ%])")
@@ -15,6 +17,6 @@ _CLOSING_EQUALS = re.compile(r"(\S+) (\S+) =$")
 
 
 def unbroken(text: str) -> str:
-    """``text`` with no-break spaces between each number and its unit and inside a closing "at t =" ."""
-    text = _NUMBER_AND_UNIT.sub(NO_BREAK, text)
+    """``text`` with trade units, and no-break spaces between each number and its unit and in a closing "at t =" ."""
+    text = _NUMBER_AND_UNIT.sub(NO_BREAK, trade_units(text))
     return _CLOSING_EQUALS.sub(rf"\1{NO_BREAK}\2{NO_BREAK}=", text)

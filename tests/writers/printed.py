@@ -20,6 +20,7 @@ from calcsheet.kinds import KIND_MODULES
 from calcsheet.kinds.catalogue import starter_text
 from calcsheet.pipeline import build_sheet, render
 from calcsheet.sheet import document as doc
+from calcsheet.sheet.quantities import trade_units
 from calcsheet.writers.visible_text import visible
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -80,20 +81,28 @@ def locate(block, pages: list[str], cursor: int) -> tuple[int, int]:
     repeat an earlier row's is still placed on its own page."""
     if isinstance(block, doc.Table):
         head = block.caption or next((h for h in block.header if squeeze(h)), "")
-        start = end = find_page(pages, squeeze(visible(head))[:30], cursor)
+        start = end = find_page(pages, squeeze(shown(head))[:30], cursor)
         for row in block.rows:
-            cells = [squeeze(visible(c))[:30] for c in row if isinstance(c, str) and squeeze(c)]
+            cells = [squeeze(shown(c))[:30] for c in row if isinstance(c, str) and squeeze(c)]
             if cells and end >= 0:
                 end = next((i for i in range(end, len(pages)) if all(c in pages[i] for c in cells)), -1)
         return start, end
     if isinstance(block, doc.ItemList):
-        first, last = squeeze(visible(block.items[0])), squeeze(visible(block.items[-1]))
+        first, last = squeeze(shown(block.items[0])), squeeze(shown(block.items[-1]))
     else:
-        text = {doc.Paragraph: "text", doc.Note: "text", doc.Figure: "caption"}.get(type(block))
-        words = squeeze(visible(block.math.text if isinstance(block, doc.Equation) else getattr(block, text)))
+        text = {doc.Paragraph: "text", doc.Note: "text"}.get(type(block))
+        if isinstance(block, (doc.Equation, doc.Figure)):  # drawn, with their words as the Sheet has them
+            words = squeeze(visible(block.math.text if isinstance(block, doc.Equation) else block.caption))
+        else:
+            words = squeeze(shown(getattr(block, text)))
         first = last = words
     start = find_page(pages, first[:40], cursor)
     return start, find_page(pages, last[-40:], max(start, cursor))
+
+
+def shown(text: str) -> str:
+    """User-facing text as the HTML and PDF show it: units after numbers in the trade's form."""
+    return trade_units(visible(text))
 
 
 def find_page(pages: list[str], words: str, start: int) -> int:
@@ -163,7 +172,7 @@ def split_pairs(printed_sheet: Printed) -> list[str]:
     lines = {" ".join(unicodedata.normalize("NFKC", line).split()) for line in out.stdout.decode("utf-8").splitlines()}
     text = "\n".join(lines)
     cells = [
-        " ".join(visible(cell).split())
+        " ".join(unicodedata.normalize("NFKC", shown(cell)).split())
         for section in printed_sheet.sheet.sections
         for block in section.blocks
         if isinstance(block, doc.Table)
