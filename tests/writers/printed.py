@@ -71,7 +71,7 @@ def page_texts(pdf: bytes) -> list[str]:
 def squeeze(text: str) -> str:
     """Text without white space and in compatibility form, so that line wrapping and ligatures do not
     decide whether a block's words are found."""
-    return "".join(unicodedata.normalize("NFKC", text).split())
+    return "".join(unicodedata.normalize("NFKC", text).replace("\u2060", "").split())
 
 
 def locate(block, pages: list[str], cursor: int) -> tuple[int, int]:
@@ -169,7 +169,8 @@ def split_pairs(printed_sheet: Printed) -> list[str]:
     out = subprocess.run(
         ["pdftotext", "-layout", "-enc", "UTF-8", "-", "-"], input=printed_sheet.pdf, capture_output=True
     )
-    lines = {" ".join(unicodedata.normalize("NFKC", line).split()) for line in out.stdout.decode("utf-8").splitlines()}
+    said = unicodedata.normalize("NFKC", out.stdout.decode("utf-8")).replace("\u2060", "")
+    lines = {" ".join(line.split()) for line in said.splitlines()}
     text = "\n".join(lines)
     cells = [
         " ".join(unicodedata.normalize("NFKC", shown(cell)).split())
