@@ -182,4 +182,5 @@ def split_pairs(printed_sheet: Printed) -> list[str]:
         if isinstance(cell, str)
     ]
     pairs = sorted({m.group(0) for cell in cells for m in _PAIR.finditer(cell)})
-    return [pair for pair in pairs if pair not in text]
+    # poppler sometimes reads a short "5 s" as "5s" (its gap heuristic); a pair broken across lines is neither
+    return [pair for pair in pairs if pair not in text and pair.replace(" ", "", 1) not in text]
