@@ -81,9 +81,11 @@ class Sheet:
         *,
         style: str | os.PathLike[str] | None = None,
         fallback_style: str | os.PathLike[str] | None = None,
+        archive_of: str | os.PathLike[str] | None = None,
     ) -> Sheet:
         """This sheet with ``formats`` rendered into ``outputs`` (in memory). The house style is ``style``, else the
-        input's own ``[sheet] style``, else ``fallback_style`` (a package's style, for a package build)."""
+        input's own ``[sheet] style``, else ``fallback_style`` (a package's style, for a package build). With
+        ``archive_of`` (the input file) the PDF is a PDF/A-3b carrying that input and the JSON record."""
         from dataclasses import replace
 
         from calcsheet.pipeline import render
@@ -93,7 +95,8 @@ class Sheet:
         chosen = _formats(formats)
         own = Path(self.built.sheet.style) if self.built.sheet.style else None
         house = _style_folder(style) or own or (Path(fallback_style) if fallback_style else None)
-        outputs = render(self.built.sheet, chosen, house) if chosen else {}
+        archive = Path(archive_of) if archive_of is not None else None
+        outputs = render(self.built.sheet, chosen, house, archive) if chosen else {}
         return replace(self, outputs={**self.outputs, **outputs}, style=house)
 
     def _repr_html_(self) -> str:

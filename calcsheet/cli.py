@@ -59,6 +59,11 @@ def _neutralise_bad_source_date_epoch() -> None:
 )
 @click.option("--force", is_flag=True, help="Build every sheet again, ignoring the build cache.")
 @click.option(
+    "--archive",
+    is_flag=True,
+    help="Write the PDF as PDF/A-3b (for archiving) with the input file and the JSON record attached.",
+)
+@click.option(
     "--jobs",
     "workers",
     type=click.IntRange(min=1),
@@ -74,6 +79,7 @@ def build(
     assignments: tuple[str, ...],
     since: str | None,
     force: bool,
+    archive: bool,
     workers: int | None,
     quiet: bool,
 ) -> None:
@@ -89,6 +95,8 @@ def build(
     chosen = _guard(lambda: parse_formats(formats, tuple(WRITERS)) if formats else DEFAULT_FORMATS)
     style_dir = _guard(lambda: _style(style))
     overrides = _guard(lambda: _assignments(assignments))
+    if archive and "pdf" not in chosen:
+        _guard(lambda: _refuse("makes the PDF an archival one; add pdf to --format", "--archive"))
     if since is not None and Path(since).is_file() and len(_guard(lambda: collect_inputs(inputs))) != 1:
         _guard(lambda: _refuse("compares one input with one earlier file: give a single INPUT", since))
     jobs = _guard(lambda: jobs_for(inputs, writes=True))
@@ -101,6 +109,7 @@ def build(
         since=since,
         force=force,
         make=sheet_of,
+        archive=archive,
         say=(lambda line: None) if quiet or tty else click.echo,
         warn=lambda line: click.echo(line, err=True),
     )

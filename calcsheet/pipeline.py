@@ -186,11 +186,21 @@ def with_changes_since(built: Built, since: str) -> Built:
     return replace(built, sheet=with_changes(built.sheet, changes, earlier.baseline, revision_now))
 
 
-def render(sheet, formats: tuple[str, ...], style: Path | None = None) -> dict[str, str | bytes]:
-    """Every requested format as text, all in memory before anything touches the disk."""
+def render(
+    sheet, formats: tuple[str, ...], style: Path | None = None, archive_of: Path | None = None
+) -> dict[str, str | bytes]:
+    """Every requested format as text, all in memory before anything touches the disk. With ``archive_of``
+    (the input file) the PDF is an archival PDF/A-3b carrying that input and the sheet's JSON record."""
     from calcsheet.writers import writer_for
 
-    return {fmt: writer_for(fmt)(sheet, style) for fmt in formats}
+    rendered = {fmt: writer_for(fmt)(sheet, style) for fmt in formats if fmt != "pdf" or archive_of is None}
+    if archive_of is not None and "pdf" in formats:
+        from calcsheet.writers.pdf import write_archive
+
+        record = rendered["json"] if "json" in rendered else writer_for("json")(sheet, style)
+        attached = ((archive_of.name, archive_of.read_bytes()), (f"{archive_of.stem}.json", record.encode("utf-8")))
+        rendered = {fmt: write_archive(sheet, style, attached) if fmt == "pdf" else rendered[fmt] for fmt in formats}
+    return rendered
 
 
 def write_outputs(out_dir: Path, stem: str, rendered: dict[str, str | bytes]) -> list[Path]:

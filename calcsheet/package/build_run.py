@@ -31,6 +31,7 @@ class SheetTask:
     # the Python API's sheet_of(path, overrides, package records, since) -> its Sheet, not yet rendered (the
     # command line passes it in: this layer sits below the API)
     make: object = None
+    archive: bool = False  # the PDF as PDF/A-3b carrying the input and the JSON record (build --archive)
 
 
 def build_outputs(task: SheetTask) -> dict:
@@ -41,7 +42,12 @@ def build_outputs(task: SheetTask) -> dict:
         records = {n: InputError(r[1]) if isinstance(r, (list, tuple)) else r for n, r in task.records.items()}
         sheet = task.make(task.path, task.overrides, records if task.package_sheet else None, task.since)
         record = sheet.record
-        sheet = sheet.rendered(task.formats, style=task.style, fallback_style=task.package_style)
+        sheet = sheet.rendered(
+            task.formats,
+            style=task.style,
+            fallback_style=task.package_style,
+            archive_of=task.path if task.archive else None,
+        )
     except CalcsheetError as error:
         return {
             "error": str(error.located(file=str(task.path))),
@@ -83,6 +89,7 @@ class BuildRun:
     since: str | None = None
     force: bool = False
     make: object = None  # the Python API's sheet_of (see SheetTask)
+    archive: bool = False
     say: object = print  # one line per sheet (stdout)
     say_reused: bool = True  # False: no line for a sheet reused from the cache (a watch's later rounds)
     warn: object = print  # errors (stderr)
@@ -151,7 +158,7 @@ class BuildRun:
         basis = {name: package.basis[name].entry for name in entry.basis_used}
         folders = [cache.default_styles_folder(), self.style, package.style, _named_style(job.path)]
         styles = {str(f): self._digest(f) for f in folders if f is not None}
-        settings = {"formats": list(self.formats), "epoch": source_date_epoch()}
+        settings = {"formats": list(self.formats), "epoch": source_date_epoch(), "archive": self.archive}
         return cache.sheet_key(job.path, basis, upstream, styles, settings, self._versions)
 
     def _digest(self, folder: Path) -> str:
@@ -177,6 +184,7 @@ class BuildRun:
             records=upstream,
             since=self.since,
             make=self.make,
+            archive=self.archive,
             package_sheet=job.session is not None and job.whole_package and not self.overrides,
         )
         return ("work", _keyed_build, (task, key))

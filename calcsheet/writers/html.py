@@ -12,6 +12,8 @@ from markupsafe import Markup
 from calcsheet.sheet import document as doc
 from calcsheet.writers.dispatch import block_kind, cell_kind, unhandled
 from calcsheet.writers.mathml import to_mathml
+from calcsheet.writers.page_groups import keep_marks
+from calcsheet.writers.unbroken import unbroken
 from calcsheet.writers.styles import environment, read_css, render_template
 
 
@@ -44,6 +46,8 @@ def render_html(sheet: doc.Sheet, style, writer: str, filters: dict, extra_css: 
         kind=partial(block_kind, writer=writer),
         cell_kind=partial(cell_kind, writer=writer),
         unhandled=partial(unhandled, writer=writer),
+        keep_marks=keep_marks,
+        unbroken=unbroken,
     )
     css = read_css(style, "sheet.css") + ("\n" + read_css(style, "print.css") if medium == "print" else "")
     return render_template(

@@ -35,6 +35,16 @@ EQUATION_WIDTH_PX = EQUATION_WIDTH_MM / 25.4 * 96.0
 
 
 def write(sheet: doc.Sheet, style=None) -> bytes:
+    return _write(sheet, style, ())
+
+
+def write_archive(sheet: doc.Sheet, style, attachments: tuple[tuple[str, bytes], ...]) -> bytes:
+    """The sheet as PDF/A-3b (an archival PDF) carrying ``attachments`` (file name, bytes): the input and the
+    JSON record it was made from, so that the signed file keeps what it was made from."""
+    return _write(sheet, style, attachments)
+
+
+def _write(sheet: doc.Sheet, style, attachments: tuple[tuple[str, bytes], ...]) -> bytes:
     with warnings.catch_warnings():
         # WeasyPrint warns at import when the machine has no fonts; the PDF needs none of them.
         warnings.filterwarnings("ignore", message=".*(FontConfig|Fontconfig).*")
@@ -64,7 +74,11 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
     _refuse_attachments_and_outward_links(document, style)
     with _font_subsets_keep_their_timestamp():
         identifier = hashlib.sha256(html.encode("utf-8")).hexdigest()[:32].encode("ascii")
-        data = document.write_pdf(pdf_identifier=identifier, uncompressed_pdf=False)
+        with warnings.catch_warnings():
+            # For PDF/A WeasyPrint 70 reads its sRGB profile from a file it leaves to the garbage collector.
+            warnings.simplefilter("ignore", ResourceWarning)
+            options = _archival(attachments, sheet)
+            data = document.write_pdf(pdf_identifier=identifier, uncompressed_pdf=False, **options)
     if fetcher.refused or fetcher.missing:
         url = (fetcher.refused or fetcher.missing)[0]
         problem = (
@@ -74,6 +88,24 @@ def write(sheet: doc.Sheet, style=None) -> bytes:
         )
         raise InputError(f"{style_name(style)}: '{visible(url)}' {problem}")
     return data
+
+
+def _archival(attachments: tuple[tuple[str, bytes], ...], sheet: doc.Sheet) -> dict:
+    """WeasyPrint's options for a PDF/A-3b with attached files; none for an ordinary PDF. Each attachment is
+    dated with the sheet's own date (or none), never the clock, so the bytes are the same at every build."""
+    if not attachments:
+        return {}
+    import weasyprint
+
+    date = creation_date(sheet)
+    # WeasyPrint stamps an attachment with the clock unless given a date; without one of the sheet's, the
+    # Unix epoch (the date SOURCE_DATE_EPOCH=0 would give).
+    stamp = dt.datetime.fromisoformat(date or "1970-01-01").replace(tzinfo=dt.timezone.utc)
+    files = [
+        weasyprint.Attachment(string=data, name=name, created=stamp, modified=stamp, relationship="Source")
+        for name, data in attachments
+    ]
+    return {"pdf_variant": "pdf/a-3b", "attachments": files}
 
 
 def _refuse_attachments_and_outward_links(document, style) -> None:

@@ -2,6 +2,10 @@
 
 ziamath typesets with its own math font in pure Python. A displayed equation wider than the
 column is broken at top-level '=' signs, then at top-level '+' and '-', and only then scaled down.
+Glyphs are written as plain paths, not SVG 2 <symbol>/<use> pairs: WeasyPrint 70 draws an image's second
+occurrence on a page (an equation shown twice, the same data URI) with each <use> scaled to zero, a singular
+matrix that poppler reports ("matrix not invertible") and cairo draws as debris; and ziamath's glyph of zero
+width (the thin space in ``p\\,dt``) gave the same singular matrix at its first occurrence.
 """
 
 from __future__ import annotations
@@ -24,8 +28,10 @@ class Rendered:
 
 @functools.lru_cache(maxsize=2048)
 def render(latex: str, size: float = FONT_SIZE) -> Rendered:
+    import ziafont
     import ziamath
 
+    ziafont.config.svg2 = False  # paths, not <symbol>/<use>: see the module's docstring
     from calcsheet.writers.ziamath_rows import measure_once
 
     measure_once()

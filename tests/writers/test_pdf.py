@@ -154,3 +154,23 @@ def test_no_page_ends_with_a_step_heading(pdfs, demo):
             line for line in page.extract_text().splitlines() if line.strip() and "Prepared with calcsheet" not in line
         ]
         assert not re.match(r"^Step \d+\b", body[-1]), f"page {number} ends with '{body[-1]}'"
+
+
+def test_an_equation_drawn_twice_on_a_page_has_no_singular_matrix():
+    # WeasyPrint 70 drew an SVG's second occurrence with every <symbol>/<use> glyph scaled to zero, and
+    # ziamath's zero-width thin space did so at the first: a singular matrix in the PDF (poppler: "matrix not
+    # invertible") that cairo drew as debris. Read back with pypdf: no transform may be singular.
+    import io
+
+    import weasyprint
+    from pypdf import PdfReader
+    from pypdf.generic import ContentStream
+
+    shown = svgmath.render(r"\mu = \exp\left(\int p\,dt\right) = \frac{A}{B}")
+    assert "<use" not in shown.svg and "<symbol" not in shown.svg
+    image = f'<p><img src="{svgmath.data_uri(shown.svg)}" style="width:{shown.width}px;height:{shown.height}px"></p>'
+    reader = PdfReader(io.BytesIO(weasyprint.HTML(string=image * 2).write_pdf()))
+    operations = ContentStream(reader.pages[0].get_contents(), reader).operations
+    matrices = [[float(v) for v in args[:4]] for args, op in operations if op == b"cm"]
+    assert len(matrices) > 4
+    assert [m for m in matrices if abs(m[0] * m[3] - m[1] * m[2]) < 1e-12] == []
