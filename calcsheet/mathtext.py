@@ -11,8 +11,21 @@ from sympy.printing.str import StrPrinter
 _WORD_SUBSCRIPT = re.compile(r"^([A-Za-z]+)_([A-Za-z][A-Za-z0-9]+)$")
 
 
+def _positive_first(terms: list) -> list:
+    """The terms of a sum with the first term that is not negative moved to the front: v_0 - V_s, not
+    -V_s + v_0. A sum of negative terms only keeps its order."""
+    for i, term in enumerate(terms):
+        if not term.could_extract_minus_sign():
+            return [term, *terms[:i], *terms[i + 1 :]]
+    return terms
+
+
 class _PlainPrinter(StrPrinter):
-    """sympy's str form, with integrals written out and dummy variables shown by their names."""
+    """sympy's str form, with integrals written out, dummy variables shown by their names, and a sum
+    started by a positive term."""
+
+    def _as_ordered_terms(self, expr, order=None):
+        return _positive_first(super()._as_ordered_terms(expr, order=order))
 
     def _print_Dummy(self, expr):
         return expr.name
@@ -37,19 +50,30 @@ def plain(expr) -> str:
 
 
 class _SheetLatexPrinter(LatexPrinter):
-    """sympy's LaTeX with two habits of hand-written sheets.
+    """sympy's LaTeX with the habits of hand-written sheets, each for a legible print.
 
-    An exponential whose argument is more than a symbol or number is written exp(...), so the
-    argument is set at full size instead of as a tiny superscript fraction. A word subscript
-    (T_air) is set upright, as descriptive subscripts are (ISO 80000-2; from memory).
+    Every exponential is written exp(...), one notation on a sheet, so its argument is set at full size
+    instead of as a superscript whose fraction and subscripts would print at 4 pt. A fraction inside a
+    fraction keeps the display size (dfrac) for the same reason. A sum starts with a positive term
+    (v_0 - V_s). A word subscript (T_air) is set upright, as descriptive subscripts are (ISO 80000-2;
+    from memory).
     """
 
     def _print_exp(self, expr, exp=None):
-        argument = expr.args[0]
-        if sp.count_ops(argument) <= 2:  # e^{-t/tau} reads well as a superscript
-            return super()._print_ExpBase(expr, exp)
-        body = rf"\exp\left({self._print(argument)}\right)"
+        folded = self._settings["fold_short_frac"]
+        self._settings["fold_short_frac"] = True  # exp(-t/tau): the argument on one line, as written by hand
+        try:
+            argument = self._print(expr.args[0])
+        finally:
+            self._settings["fold_short_frac"] = folded
+        body = rf"\exp\left({argument}\right)"
         return body if exp is None else rf"{body}^{{{exp}}}"
+
+    def _as_ordered_terms(self, expr, order=None):
+        return _positive_first(super()._as_ordered_terms(expr, order=order))
+
+    def doprint(self, expr):
+        return display_inner_fractions(super().doprint(expr))
 
     def _print_Heaviside(self, expr, exp=None):
         body = rf"\operatorname{{step}}\left({self._print(expr.args[0])}\right)"
@@ -59,6 +83,34 @@ class _SheetLatexPrinter(LatexPrinter):
         if expr in self._settings["symbol_names"]:
             return self._settings["symbol_names"][expr]
         return symbol_latex(expr.name) if _WORD_SUBSCRIPT.match(expr.name) else super()._print_Symbol(expr, style)
+
+
+def display_inner_fractions(tex: str) -> str:
+    r"""Every \frac inside another fraction's numerator or denominator becomes \dfrac, so it is not set at
+    script size."""
+    out, open_parts, depth, i = [], [], 0, 0  # open_parts: (brace depth, "num" or "den") of each fraction
+    while i < len(tex):
+        if tex.startswith(r"\frac{", i):
+            out.append(r"\dfrac{" if open_parts else r"\frac{")
+            depth += 1
+            open_parts.append((depth, "num"))
+            i += len(r"\frac{")
+            continue
+        char = tex[i]
+        if char == "{":
+            depth += 1
+        elif char == "}":
+            if open_parts and open_parts[-1][0] == depth:
+                _, part = open_parts.pop()
+                if part == "num":  # the denominator's brace follows at once
+                    out.append("}{")
+                    open_parts.append((depth, "den"))
+                    i += 2
+                    continue
+            depth -= 1
+        out.append(char)
+        i += 1
+    return "".join(out)
 
 
 def latex(expr, names: dict | None = None) -> str:

@@ -8,7 +8,7 @@ sympy orders terms and factors its own way.
 
 from __future__ import annotations
 
-from calcsheet.mathtext import derivative_latex, symbol_latex
+from calcsheet.mathtext import derivative_latex, display_inner_fractions, symbol_latex
 from calcsheet.source import expressions as ex
 
 _LEVEL = {"+": 1, "-": 1, "*": 2, "/": 2, "^": 4}
@@ -35,7 +35,7 @@ _CALLS = {
 
 
 def equation_latex(equation: ex.Equation) -> str:
-    return f"{node_latex(equation.left)} = {node_latex(equation.right)}"
+    return display_inner_fractions(f"{node_latex(equation.left)} = {node_latex(equation.right)}")
 
 
 def node_latex(node: ex.Node, inline: bool = False) -> str:
