@@ -5,6 +5,7 @@ from __future__ import annotations
 import re
 
 import sympy as sp
+from sympy.core.function import AppliedUndef
 from sympy.printing.latex import LatexPrinter
 from sympy.printing.str import StrPrinter
 
@@ -66,14 +67,30 @@ class _SheetLatexPrinter(LatexPrinter):
             argument = self._print(expr.args[0])
         finally:
             self._settings["fold_short_frac"] = folded
-        body = rf"\exp\left({argument}\right)"
+        body = rf"\exp{{\left({argument}\right)}}"  # braced: ziamath sets no space before the bracket
         return body if exp is None else rf"{body}^{{{exp}}}"
 
     def _as_ordered_terms(self, expr, order=None):
         return _positive_first(super()._as_ordered_terms(expr, order=order))
 
+    def _print_Pow(self, expr, exp=None):
+        # a named function of the variable to a power reads V(t)^n, not sympy's V^n(t)
+        if _named_power(expr) and expr.exp != -1 and exp is None:
+            return rf"{self._print(expr.base)}^{{{self._print(expr.exp)}}}"
+        return super()._print_Pow(expr)
+
+    def _print_Mul(self, expr):
+        # V(t)^(-n) is a division by V(t)^n: sympy splits a fraction only where it knows the sign of a power
+        below = [f for f in expr.args if _named_power(f) and f.exp.could_extract_minus_sign()]
+        if not below:
+            return super()._print_Mul(expr)
+        above = sp.Mul(*[f for f in expr.args if f not in below])
+        under = sp.Mul(*[sp.Pow(f.base, -f.exp, evaluate=False) for f in below], evaluate=False)
+        return rf"\frac{{{self._print(above)}}}{{{self._print(under)}}}"
+
     def doprint(self, expr):
-        return display_inner_fractions(super().doprint(expr))
+        # a sign just inside a bracket is unary: {-} keeps ziamath from spacing it as a binary minus
+        return display_inner_fractions(super().doprint(expr)).replace(r"\left(- ", r"\left({-}")
 
     def _print_Heaviside(self, expr, exp=None):
         body = rf"\operatorname{{step}}\left({self._print(expr.args[0])}\right)"
@@ -113,11 +130,16 @@ def display_inner_fractions(tex: str) -> str:
     return "".join(out)
 
 
+def _named_power(e) -> bool:
+    return isinstance(e, sp.Pow) and isinstance(e.base, AppliedUndef)
+
+
 def latex(expr, names: dict | None = None) -> str:
     """LaTeX for the sheet, with the derivative symbol and similar shown as engineers write them."""
     if isinstance(expr, str):
         return expr
-    printer = _SheetLatexPrinter({"symbol_names": names or {}, "mul_symbol": None, "ln_notation": True})
+    # a thin space between factors: ziamath sets none for a plain one, and c_in q_in would run together
+    printer = _SheetLatexPrinter({"symbol_names": names or {}, "mul_symbol": r"\,", "ln_notation": True})
     return printer.doprint(expr)
 
 

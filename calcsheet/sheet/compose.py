@@ -496,7 +496,7 @@ def _integrating_factor(d: Derivation, n: _Notation) -> Section:
         n.eq(
             latex(mu),
             "mu",
-            (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
+            (rf"\exp{{\left(\int p\,d{latex(x)}\right)}}", f"exp(integral of p d{x})"),
             *_distinct(n.show(sp.exp(s.P, evaluate=False)), n.show(s.mu)),
         ),
         *_where_blocks(d, n),
@@ -525,11 +525,27 @@ def _kept_tau(n: _Notation, values: dict) -> dict:
     return {_NUMBER_TAU: float(value)} if value.is_Number and value > 0 else {}
 
 
+def _line_form(line, n: _Notation) -> tuple[str, str]:
+    """A line in the variable written as the kinds write their volume law: V_0 + (q_in - q_out) (t - t_V)."""
+    g = n.groups
+    rest = sp.expand(line - g.line_start) if g.line_start is not None else line
+    slope = sp.factor(rest.diff(n.x))
+    clock = sp.factor(rest / slope)
+    start = (n.tex(g.line_start) + " + ", plain(g.line_start) + " + ") if g.line_start is not None else ("", "")
+    slope_tex, slope_text = (
+        (rf"\left({n.tex(slope)}\right)", f"({plain(slope)})") if slope.is_Add else (n.tex(slope), plain(slope))
+    )
+    clock_tex, clock_text = (
+        (rf"\left({n.tex(clock)}\right)", f"({plain(clock)})") if clock.is_Add else (n.tex(clock), plain(clock))
+    )
+    return f"{start[0]}{slope_tex}\\,{clock_tex}", f"{start[1]}{slope_text}*{clock_text}"
+
+
 def _where_blocks(d: Derivation, n: _Notation) -> list:
     """The "where" lines that introduce the names the solution steps use: where tau = 1/p = L/R = 40 ms."""
     m, blocks = d.model, []
     for what, name, expr in n.groups.where():
-        rights = [sp.collect(expr, n.x) if expr.has(n.x) else expr]
+        rights = [_line_form(expr, n) if expr.has(n.x) else expr]
         if what == "time constant":
             rights.insert(0, (r"\frac{1}{p}", "1/p"))
             if d.numbers.time_constant is not None:

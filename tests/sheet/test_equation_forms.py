@@ -44,8 +44,8 @@ def test_a_sum_starts_with_a_positive_term_and_means_the_same():
 def test_every_exponential_is_written_exp_with_its_argument_on_the_line():
     for expr in (sp.exp(-t / (C * R)), sp.exp(t), V_s * sp.exp(R * t / L) / L):
         tex = latex(expr)
-        assert "e^" not in tex and r"\exp\left(" in tex, tex
-        inside = tex.split(r"\exp\left(", 1)[1]
+        assert "e^" not in tex and r"\exp{\left(" in tex, tex
+        inside = tex.split(r"\exp{\left(", 1)[1]
         assert not inside.startswith(r"\frac"), tex
 
 
@@ -72,6 +72,9 @@ def test_a_filling_tank_names_its_volume_and_exponent():
     power = c_in * (V_0 + q_in * t - q_out * t) ** (q_in / (q_in - q_out))
     assert plain(groups.show(mu)) == "V(t)^n"
     assert plain(groups.show(power)) == "c_in*V(t)^(n + 1)"
+    assert latex(groups.show(mu)) == r"V{\left(t \right)}^{n}"  # V(t)^n, not sympy's V^n(t)
+    general = groups.show((m_0 + power) / mu)
+    assert latex(general).endswith(r"}{V{\left(t \right)}^{n}}"), latex(general)  # divided by V(t)^n
     back = groups.show(power).subs(sp.Function("V")(t), V_0 + (q_in - q_out) * t).subs(groups.n, groups.n_value)
     assert sp.simplify(back - power) == 0
 
