@@ -75,7 +75,9 @@ class _Notation:
         self.yx_text = f"{m.unknown.name}({m.variable.name})"
         self.step_numbers: dict[str, int] = {}  # section key -> step number, set by compose before any step is built
         taken = {p.name for p in m.parameters} | {m.unknown.name, m.variable.name}
-        self.groups = groups_for(d.solution.p, self.x, taken)
+        p = d.solution.p
+        decays = p is not None and (p.has(self.x) or d.numbers.time_constant is not None)  # no tau for p <= 0
+        self.groups = groups_for(p if decays else None, self.x, taken)
 
     def show(self, expr):
         """An expression of the solution steps with its named groups (tau, n, V(t))."""
