@@ -61,12 +61,7 @@ class _SheetLatexPrinter(LatexPrinter):
     """
 
     def _print_exp(self, expr, exp=None):
-        folded = self._settings["fold_short_frac"]
-        self._settings["fold_short_frac"] = True  # exp(-t/tau): the argument on one line, as written by hand
-        try:
-            argument = self._print(expr.args[0])
-        finally:
-            self._settings["fold_short_frac"] = folded
+        argument = self._on_the_line(expr.args[0])
         body = rf"\exp{{\left({argument}\right)}}"  # braced: ziamath sets no space before the bracket
         return body if exp is None else rf"{body}^{{{exp}}}"
 
@@ -90,7 +85,42 @@ class _SheetLatexPrinter(LatexPrinter):
 
     def doprint(self, expr):
         # a sign just inside a bracket is unary: {-} keeps ziamath from spacing it as a binary minus
-        return display_inner_fractions(super().doprint(expr)).replace(r"\left(- ", r"\left({-}")
+        tex = display_inner_fractions(super().doprint(expr))
+        return tex.replace(r"\left(- ", r"\left(-").replace(r"\left(-", r"\left({-}")
+
+    def _on_the_line(self, argument) -> str:
+        """A product or quotient as a/b on one line, its denominator bracketed when it is more than one
+        factor: A h t/(V c_p rho), -(t - t_0)/tau. Anything else as usual, with short fractions folded."""
+        factors = _flat_factors(argument)
+        if len(factors) < 2 and not (factors and _is_division(factors[0])):
+            folded = self._settings["fold_short_frac"]
+            self._settings["fold_short_frac"] = True
+            try:
+                return self._print(argument)
+            finally:
+                self._settings["fold_short_frac"] = folded
+        sign = ""
+        up, down = [], []
+        for f in factors:
+            if f == -1:
+                sign = "" if sign else "-"
+            elif _is_division(f):
+                down.append(sp.Pow(f.base, -f.exp, evaluate=False) if f.exp != -1 else f.base)
+            else:
+                up.append(f)
+        times = self._settings["mul_symbol_latex"]
+        several = len(up) + len(down) > 1
+
+        def part(f):
+            return rf"\left({self._print(f)}\right)" if f.is_Add and several else self._print(f)
+
+        top = times.join(part(f) for f in up) or "1"
+        if not down:
+            return sign + top
+        bottom = times.join(part(f) for f in down)
+        if len(down) > 1 or down[0].is_Add:
+            bottom = rf"\left({bottom}\right)"
+        return f"{sign}{top}/{bottom}"
 
     def _print_Heaviside(self, expr, exp=None):
         body = rf"\operatorname{{step}}\left({self._print(expr.args[0])}\right)"
@@ -128,6 +158,17 @@ def display_inner_fractions(tex: str) -> str:
         out.append(char)
         i += 1
     return "".join(out)
+
+
+def _flat_factors(e) -> list:
+    """The factors of a product, nested products (unevaluated ones too) opened."""
+    if not isinstance(e, sp.Mul):
+        return [e]
+    return [f for arg in e.args for f in _flat_factors(arg)]
+
+
+def _is_division(f) -> bool:
+    return isinstance(f, sp.Pow) and f.exp.is_number and f.exp < 0
 
 
 def _named_power(e) -> bool:

@@ -49,6 +49,12 @@ def test_every_exponential_is_written_exp_with_its_argument_on_the_line():
         assert not inside.startswith(r"\frac"), tex
 
 
+def test_an_exponent_on_the_line_brackets_a_denominator_of_several_factors():
+    A, h, V, c_p, rho = sp.symbols("A h V c_p rho", positive=True)
+    assert latex(sp.exp(A * h * t / (V * c_p * rho))) == r"\exp{\left(A\,h\,t/\left(V\,c_{p}\,\rho\right)\right)}"
+    assert latex(sp.exp(-t / C)) == r"\exp{\left({-}t/C\right)}"
+
+
 def test_a_fraction_inside_a_fraction_keeps_the_display_size():
     tex = r"\frac{t}{R \ln{\left(\frac{a}{b} \right)}} + \frac{c}{d}"
     assert display_inner_fractions(tex) == r"\frac{t}{R \ln{\left(\dfrac{a}{b} \right)}} + \frac{c}{d}"
