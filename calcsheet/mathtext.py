@@ -164,7 +164,7 @@ def _flat_factors(e) -> list:
     """The factors of a product, nested products (unevaluated ones too) opened."""
     if not isinstance(e, sp.Mul):
         return [e]
-    return [f for arg in e.args for f in _flat_factors(arg)]
+    return [f for arg in e.as_ordered_factors() for f in _flat_factors(arg)]
 
 
 def _is_division(f) -> bool:
