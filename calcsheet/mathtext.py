@@ -5,14 +5,28 @@ from __future__ import annotations
 import re
 
 import sympy as sp
+from sympy.core.function import AppliedUndef
 from sympy.printing.latex import LatexPrinter
 from sympy.printing.str import StrPrinter
 
 _WORD_SUBSCRIPT = re.compile(r"^([A-Za-z]+)_([A-Za-z][A-Za-z0-9]+)$")
 
 
+def _positive_first(terms: list) -> list:
+    """The terms of a sum with the first term that is not negative moved to the front: v_0 - V_s, not
+    -V_s + v_0. A sum of negative terms only keeps its order."""
+    for i, term in enumerate(terms):
+        if not term.could_extract_minus_sign():
+            return [term, *terms[:i], *terms[i + 1 :]]
+    return terms
+
+
 class _PlainPrinter(StrPrinter):
-    """sympy's str form, with integrals written out and dummy variables shown by their names."""
+    """sympy's str form, with integrals written out, dummy variables shown by their names, and a sum
+    started by a positive term."""
+
+    def _as_ordered_terms(self, expr, order=None):
+        return _positive_first(super()._as_ordered_terms(expr, order=order))
 
     def _print_Dummy(self, expr):
         return expr.name
@@ -37,19 +51,76 @@ def plain(expr) -> str:
 
 
 class _SheetLatexPrinter(LatexPrinter):
-    """sympy's LaTeX with two habits of hand-written sheets.
+    """sympy's LaTeX with the habits of hand-written sheets, each for a legible print.
 
-    An exponential whose argument is more than a symbol or number is written exp(...), so the
-    argument is set at full size instead of as a tiny superscript fraction. A word subscript
-    (T_air) is set upright, as descriptive subscripts are (ISO 80000-2; from memory).
+    Every exponential is written exp(...), one notation on a sheet, so its argument is set at full size
+    instead of as a superscript whose fraction and subscripts would print at 4 pt. A fraction inside a
+    fraction keeps the display size (dfrac) for the same reason. A sum starts with a positive term
+    (v_0 - V_s). A word subscript (T_air) is set upright, as descriptive subscripts are (ISO 80000-2;
+    from memory).
     """
 
     def _print_exp(self, expr, exp=None):
-        argument = expr.args[0]
-        if sp.count_ops(argument) <= 2:  # e^{-t/tau} reads well as a superscript
-            return super()._print_ExpBase(expr, exp)
-        body = rf"\exp\left({self._print(argument)}\right)"
+        argument = self._on_the_line(expr.args[0])
+        body = rf"\exp{{\left({argument}\right)}}"  # braced: ziamath sets no space before the bracket
         return body if exp is None else rf"{body}^{{{exp}}}"
+
+    def _as_ordered_terms(self, expr, order=None):
+        return _positive_first(super()._as_ordered_terms(expr, order=order))
+
+    def _print_Pow(self, expr, exp=None):
+        # a named function of the variable to a power reads V(t)^n, not sympy's V^n(t)
+        if _named_power(expr) and expr.exp != -1 and exp is None:
+            return rf"{self._print(expr.base)}^{{{self._print(expr.exp)}}}"
+        return super()._print_Pow(expr)
+
+    def _print_Mul(self, expr):
+        # V(t)^(-n) is a division by V(t)^n: sympy splits a fraction only where it knows the sign of a power
+        below = [f for f in expr.args if _named_power(f) and f.exp.could_extract_minus_sign()]
+        if not below:
+            return super()._print_Mul(expr)
+        above = sp.Mul(*[f for f in expr.args if f not in below])
+        under = sp.Mul(*[sp.Pow(f.base, -f.exp, evaluate=False) for f in below], evaluate=False)
+        return rf"\frac{{{self._print(above)}}}{{{self._print(under)}}}"
+
+    def doprint(self, expr):
+        # a sign just inside a bracket is unary: {-} keeps ziamath from spacing it as a binary minus
+        tex = display_inner_fractions(super().doprint(expr))
+        return tex.replace(r"\left(- ", r"\left(-").replace(r"\left(-", r"\left({-}")
+
+    def _on_the_line(self, argument) -> str:
+        """A product or quotient as a/b on one line, its denominator bracketed when it is more than one
+        factor: A h t/(V c_p rho), -(t - t_0)/tau. Anything else as usual, with short fractions folded."""
+        factors = _flat_factors(argument)
+        if len(factors) < 2 and not (factors and _is_division(factors[0])):
+            folded = self._settings["fold_short_frac"]
+            self._settings["fold_short_frac"] = True
+            try:
+                return self._print(argument)
+            finally:
+                self._settings["fold_short_frac"] = folded
+        sign = ""
+        up, down = [], []
+        for f in factors:
+            if f == -1:
+                sign = "" if sign else "-"
+            elif _is_division(f):
+                down.append(sp.Pow(f.base, -f.exp, evaluate=False) if f.exp != -1 else f.base)
+            else:
+                up.append(f)
+        times = self._settings["mul_symbol_latex"]
+        several = len(up) + len(down) > 1
+
+        def part(f):
+            return rf"\left({self._print(f)}\right)" if f.is_Add and several else self._print(f)
+
+        top = times.join(part(f) for f in up) or "1"
+        if not down:
+            return sign + top
+        bottom = times.join(part(f) for f in down)
+        if len(down) > 1 or down[0].is_Add:
+            bottom = rf"\left({bottom}\right)"
+        return f"{sign}{top}/{bottom}"
 
     def _print_Heaviside(self, expr, exp=None):
         body = rf"\operatorname{{step}}\left({self._print(expr.args[0])}\right)"
@@ -61,11 +132,55 @@ class _SheetLatexPrinter(LatexPrinter):
         return symbol_latex(expr.name) if _WORD_SUBSCRIPT.match(expr.name) else super()._print_Symbol(expr, style)
 
 
+def display_inner_fractions(tex: str) -> str:
+    r"""Every \frac inside another fraction's numerator or denominator becomes \dfrac, so it is not set at
+    script size."""
+    out, open_parts, depth, i = [], [], 0, 0  # open_parts: (brace depth, "num" or "den") of each fraction
+    while i < len(tex):
+        if tex.startswith(r"\frac{", i):
+            out.append(r"\dfrac{" if open_parts else r"\frac{")
+            depth += 1
+            open_parts.append((depth, "num"))
+            i += len(r"\frac{")
+            continue
+        char = tex[i]
+        if char == "{":
+            depth += 1
+        elif char == "}":
+            if open_parts and open_parts[-1][0] == depth:
+                _, part = open_parts.pop()
+                if part == "num":  # the denominator's brace follows at once
+                    out.append("}{")
+                    open_parts.append((depth, "den"))
+                    i += 2
+                    continue
+            depth -= 1
+        out.append(char)
+        i += 1
+    return "".join(out)
+
+
+def _flat_factors(e) -> list:
+    """The factors of a product, nested products (unevaluated ones too) opened."""
+    if not isinstance(e, sp.Mul):
+        return [e]
+    return [f for arg in e.as_ordered_factors() for f in _flat_factors(arg)]
+
+
+def _is_division(f) -> bool:
+    return isinstance(f, sp.Pow) and f.exp.is_number and f.exp < 0
+
+
+def _named_power(e) -> bool:
+    return isinstance(e, sp.Pow) and isinstance(e.base, AppliedUndef)
+
+
 def latex(expr, names: dict | None = None) -> str:
     """LaTeX for the sheet, with the derivative symbol and similar shown as engineers write them."""
     if isinstance(expr, str):
         return expr
-    printer = _SheetLatexPrinter({"symbol_names": names or {}, "mul_symbol": None, "ln_notation": True})
+    # a thin space between factors: ziamath sets none for a plain one, and c_in q_in would run together
+    printer = _SheetLatexPrinter({"symbol_names": names or {}, "mul_symbol": r"\,", "ln_notation": True})
     return printer.doprint(expr)
 
 

@@ -8,7 +8,7 @@ sympy orders terms and factors its own way.
 
 from __future__ import annotations
 
-from calcsheet.mathtext import derivative_latex, symbol_latex
+from calcsheet.mathtext import derivative_latex, display_inner_fractions, symbol_latex
 from calcsheet.source import expressions as ex
 
 _LEVEL = {"+": 1, "-": 1, "*": 2, "/": 2, "^": 4}
@@ -35,7 +35,8 @@ _CALLS = {
 
 
 def equation_latex(equation: ex.Equation) -> str:
-    return f"{node_latex(equation.left)} = {node_latex(equation.right)}"
+    tex = display_inner_fractions(f"{node_latex(equation.left)} = {node_latex(equation.right)}")
+    return tex.replace(r"\left(-", r"\left({-}")  # a sign just inside a bracket is unary
 
 
 def node_latex(node: ex.Node, inline: bool = False) -> str:
@@ -87,7 +88,9 @@ def _call(node: ex.Call, inline: bool = False) -> str:
         return rf"\sqrt{{{inner}}}"
     if node.function == "abs":
         return rf"\left|{inner}\right|"
-    return rf"{_CALLS[node.function]}\left({inner}\right)"
+    if node.function == "exp":  # exp(-t/tau): the argument on the line, as everywhere on the sheet
+        inner = node_latex(node.argument, True)
+    return rf"{_CALLS[node.function]}{{\left({inner}\right)}}"  # braced: no gap before the bracket
 
 
 def _number(text: str) -> str:

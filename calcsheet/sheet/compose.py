@@ -58,6 +58,7 @@ from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_wor
 from calcsheet.sheet.derived_words import derived_section, has_derived
 from calcsheet.sheet.linearise_words import accuracy_blocks, linearisation_section
 from calcsheet.sheet.record import build_record
+from calcsheet.sheet.named_groups import groups_for
 from calcsheet.sheet.worked_values import check_cell, hand_check_blocks, parameter_source, source_cell
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
 from calcsheet.subjects import INTEGRAL, SUBJECTS, UNKNOWN
@@ -74,6 +75,14 @@ class _Notation:
         self.yx_latex = rf"{latex(self.y)}\left({latex(self.x)}\right)"
         self.yx_text = f"{m.unknown.name}({m.variable.name})"
         self.step_numbers: dict[str, int] = {}  # section key -> step number, set by compose before any step is built
+        taken = {p.name for p in m.parameters} | {m.unknown.name, m.variable.name}
+        p = d.solution.p
+        decays = p is not None and (p.has(self.x) or d.numbers.time_constant is not None)  # no tau for p <= 0
+        self.groups = groups_for(p if decays else None, self.x, taken)
+
+    def show(self, expr):
+        """An expression of the solution steps with its named groups (tau, n, V(t))."""
+        return self.groups.show(expr)
 
     def tex(self, expr) -> str:
         return latex(expr, self.names)
@@ -500,9 +509,10 @@ def _integrating_factor(d: Derivation, n: _Notation) -> Section:
         n.eq(
             latex(mu),
             "mu",
-            (rf"\exp\left(\int p\,d{latex(x)}\right)", f"exp(integral of p d{x})"),
-            *_distinct(sp.exp(s.P, evaluate=False), s.mu),
+            (rf"\exp{{\left(\int p\,d{latex(x)}\right)}}", f"exp(integral of p d{x})"),
+            *_distinct(n.show(sp.exp(s.P, evaluate=False)), n.show(s.mu)),
         ),
+        *_where_blocks(d, n),
         Paragraph(
             f"Since dμ/d{x} = p μ, multiplying the standard form by μ turns its left side into an exact derivative:"
         ),
@@ -510,10 +520,57 @@ def _integrating_factor(d: Derivation, n: _Notation) -> Section:
             rf"\frac{{d}}{{d{latex(x)}}}\left(\mu\,{latex(n.y)}\right)",
             f"d(mu*{n.y})/d{x}",
             (r"\mu\,r", "mu*r"),
-            s.mu_r,
+            n.show(s.mu_r),
         ),
     ]
     return Section("integrating_factor", "Integrating factor", tuple(blocks))
+
+
+_NUMBER_TAU = sp.Symbol("tau_number")  # the time constant inside the numeric equation's exponentials
+
+
+def _kept_tau(n: _Notation, values: dict) -> dict:
+    """tau with its value in SI, kept as a number in the numeric equation (exp(-t/0.04), not exp(-25 t))."""
+    g = n.groups
+    if g.tau is None:
+        return {}
+    value = sp.N((1 / g.p).subs(values), 15)
+    return {_NUMBER_TAU: float(value)} if value.is_Number and value > 0 else {}
+
+
+def _line_form(line, n: _Notation) -> tuple[str, str]:
+    """A line in the variable written as the kinds write their volume law: V_0 + (q_in - q_out) (t - t_V)."""
+    g = n.groups
+    rest = sp.expand(line - g.line_start) if g.line_start is not None else line
+    slope = sp.factor(rest.diff(n.x))
+    clock = sp.factor(rest / slope)
+    start = (n.tex(g.line_start) + " + ", plain(g.line_start) + " + ") if g.line_start is not None else ("", "")
+    slope_tex, slope_text = (
+        (rf"\left({n.tex(slope)}\right)", f"({plain(slope)})") if slope.is_Add else (n.tex(slope), plain(slope))
+    )
+    clock_tex, clock_text = (
+        (rf"\left({n.tex(clock)}\right)", f"({plain(clock)})") if clock.is_Add else (n.tex(clock), plain(clock))
+    )
+    return f"{start[0]}{slope_tex}\\,{clock_tex}", f"{start[1]}{slope_text}*{clock_text}"
+
+
+def _where_blocks(d: Derivation, n: _Notation) -> list:
+    """The "where" lines that introduce the names the solution steps use: where tau = 1/p = L/R = 40 ms."""
+    m, blocks = d.model, []
+    for what, name, expr in n.groups.where():
+        rights = [_line_form(expr, n) if expr.has(n.x) else expr]
+        if what == "time constant":
+            rights.insert(0, (r"\frac{1}{p}", "1/p"))
+            if d.numbers.time_constant is not None:
+                shown = in_units(d.numbers.time_constant, m.variable)
+                rights.append((_quantity_latex(shown), shown))
+        elif not expr.has(n.x):
+            value = sp.N(expr.subs(m.numeric_values()), 15)
+            if value.is_Number:
+                rights.append((number(float(value)), number(float(value))))
+        word = "and" if blocks else "where"
+        blocks.append(n.eq(rf"\text{{{word}}}\quad {n.tex(name)}", f"{word} {plain(name)}", *rights, label=what))
+    return blocks
 
 
 def _integration(d: Derivation, n: _Notation) -> Section:
@@ -524,10 +581,10 @@ def _integration(d: Derivation, n: _Notation) -> Section:
             rf"\mu\,{latex(n.y)}",
             f"mu*{n.y}",
             (rf"\int \mu\,r\,d{latex(x)} + {latex(s.constant)}", f"integral of mu*r d{x} + {s.constant}"),
-            s.antiderivative + s.constant,
+            n.show(s.antiderivative + s.constant),
         ),
         Paragraph("Divide by μ for the general solution:"),
-        n.eq(n.yx_latex, n.yx_text, s.general, label="general solution"),
+        n.eq(n.yx_latex, n.yx_text, n.show(s.general), label="general solution"),
     ]
     if not s.closed_form:
         reasons = "; ".join(_FALLBACK_WORDS[code] for code in s.fallback_codes)
@@ -560,9 +617,9 @@ def _initial_condition(d: Derivation, n: _Notation) -> Section:
             + f" and solve the general solution there for {s.constant}:"
         ),
         n.eq(rf"{latex(n.y)}\left({latex(s.x0)}\right)", f"{m.unknown.name}({s.x0})", y0),
-        n.eq(latex(s.constant), s.constant.name, s.constant_value),
+        n.eq(latex(s.constant), s.constant.name, n.show(s.constant_value)),
         Paragraph("The particular solution:"),
-        n.eq(n.yx_latex, n.yx_text, s.particular, label="particular solution"),
+        n.eq(n.yx_latex, n.yx_text, n.show(s.particular), label="particular solution"),
     ]
     return Section("initial_condition", "Initial condition and particular solution", tuple(blocks))
 
@@ -575,8 +632,8 @@ def _split(d: Derivation, n: _Notation) -> Section:
             f"Natural response: the part of the form {s.constant}/μ, fixed by the initial condition, that the "
             "system produces on its own. Forced response: the part sustained by the forcing r."
         ),
-        n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", s.natural, label="natural"),
-        n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", s.forced, label="forced"),
+        n.eq(rf"{latex(n.y)}_{{n}}\left({latex(n.x)}\right)", f"{name}_n({n.x})", n.show(s.natural), label="natural"),
+        n.eq(rf"{latex(n.y)}_{{f}}\left({latex(n.x)}\right)", f"{name}_f({n.x})", n.show(s.forced), label="forced"),
     ]
     how = _FINAL_WORDS[num.final_value_note].format(x=m.variable.name)
     if num.final_value is None and num.valid_until is not None:  # not "grows without bound": the model ends first
@@ -605,7 +662,12 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
             n.yx_latex,
             n.yx_text,
             reproducing_expression(
-                s.particular, values, n.x, [(v.at.si, in_units(v.y, m.unknown)) for v in num.values], m.unknown
+                n.groups.show_clock(s.particular, _NUMBER_TAU),
+                values,
+                n.x,
+                [(v.at.si, in_units(v.y, m.unknown)) for v in num.values],
+                m.unknown,
+                _kept_tau(n, values),
             ),
         ),
     ]

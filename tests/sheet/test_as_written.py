@@ -31,7 +31,7 @@ def test_terms_and_factors_keep_the_order_written(text, pieces):
 @pytest.mark.parametrize(
     "text, expected",
     [
-        ("dy/dt = a - -y", r"\frac{dy}{dt} = a - \left(-y\right)"),
+        ("dy/dt = a - -y", r"\frac{dy}{dt} = a - \left({-}y\right)"),  # {-}: a unary sign in ziamath
         ("dy/dt = (a + b)*y", r"\frac{dy}{dt} = \left(a + b\right)\,y"),
         ("dy/dt = 2^(-t/T)", r"\frac{dy}{dt} = 2^{-t/T}"),  # no stacked fraction inside an exponent
         ("dy/dt = 2.5e-3*y", r"\frac{dy}{dt} = 2.5 \times 10^{-3}\,y"),

@@ -1,0 +1,99 @@
+"""Every equation the PDF prints, of every demo and every starter, is legible at print size.
+
+The PDF writer sets each equation as an SVG from ziamath at ``svgmath.FONT_SIZE`` (13.5 px, the 10 pt
+body text), a displayed equation shrunk by the scale ``svgmath.lines_for`` gives it to fit
+``pdf.EQUATION_WIDTH_PX`` (140 mm). Each glyph is a ``<use>`` of a ``<symbol>``, so its printed size is
+the ratio of the two heights times the equation's size and scale. The cap height of that size is read
+from the font itself (the ink height of an "H").
+
+The limit, a cap height of 4.4 pt at print, admits a first-level script of the 10 pt body (a power v^2
+or a subscript, set at 70 % by ziamath: cap height about 4.7 pt) and refuses a second-level script (a
+fraction or a subscript inside a superscript, 60 %: about 4.0 pt) and a first-level script in a line
+shrunk below about 95 %. Body, script and second-level sizes of 10/7/5 pt are the habit of printed
+mathematics, and type below about 6 pt (cap height near 4 pt) is what checkers send back as unreadable:
+common practice, no source; the 6 pt figure is from memory.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import re
+from pathlib import Path
+
+from calcsheet.kinds import KIND_MODULES
+from calcsheet.kinds.catalogue import starter_text
+from calcsheet.pipeline import build_sheet
+from calcsheet.sheet.document import Equation, Math
+from calcsheet.writers import pdf, svgmath
+from tests.end_to_end.demo_verdicts import DEMOS
+
+SMALLEST_CAP_HEIGHT_PT = 4.4
+PT_PER_PX = 0.75  # CSS px are 1/96 in, as WeasyPrint lays them out
+
+_SYMBOL = re.compile(r'<symbol id="([^"]+)" viewBox="([^"]+)"')
+_PATH = re.compile(r'<path d="([^"]*)"')
+_USE = re.compile(r'<use href="#([^"]+)"[^>]*height="([^"]+)"')
+
+
+def glyph_scales(svg: str) -> list[float]:
+    """Each glyph's drawn size as a fraction of the equation's font size."""
+    heights = {name: float(box.split()[3]) for name, box in _SYMBOL.findall(svg)}
+    return [float(height) / heights[name] for name, height in _USE.findall(svg)]
+
+
+def cap_height_per_em() -> float:
+    """The font's cap height over its em, measured on the ink of an "H" set at 100 px."""
+    svg = svgmath.render("H", 100.0).svg
+    path, scale = _PATH.findall(svg)[0], glyph_scales(svg)[0]
+    ys = [float(y) for y in re.findall(r"[-\d.]+ ([-\d.]+)", path)]
+    return (max(ys) - min(ys)) * scale / 100.0
+
+
+def smallest_cap_height_pt(latex: str, display: bool) -> float:
+    """The smallest cap height at print, in pt, of any glyph of one equation as the PDF writer sets it."""
+    lines, scale = svgmath.lines_for(latex, pdf.EQUATION_WIDTH_PX) if display else ([latex], 1.0)
+    smallest = min(min(glyph_scales(svgmath.render(line).svg), default=1.0) for line in lines)
+    return smallest * scale * svgmath.FONT_SIZE * PT_PER_PX * cap_height_per_em()
+
+
+def every_math(node, display: bool = False):
+    """(latex, displayed?) for every piece of mathematics in a Sheet, wherever it sits."""
+    if isinstance(node, Equation):
+        yield node.math.latex, True
+    elif isinstance(node, Math):
+        yield node.latex, display
+    elif dataclasses.is_dataclass(node):
+        for field in dataclasses.fields(node):
+            yield from every_math(getattr(node, field.name))
+    elif isinstance(node, (tuple, list)):
+        for item in node:
+            yield from every_math(item)
+
+
+def _sheets(tmp_path) -> list[Path]:
+    paths = list(DEMOS)
+    for name in KIND_MODULES:
+        path = tmp_path / f"{name}.toml"
+        path.write_text(starter_text(name), encoding="utf-8")
+        paths.append(path)
+    return paths
+
+
+def test_the_measure_sees_a_second_level_script():
+    """The measure itself: a fraction in a superscript is refused, a plain power is not."""
+    assert smallest_cap_height_pt(r"e^{\frac{t}{R C}}", True) < SMALLEST_CAP_HEIGHT_PT
+    assert smallest_cap_height_pt(r"P = v^{2} R", True) >= SMALLEST_CAP_HEIGHT_PT
+    assert smallest_cap_height_pt(r"x_{\mathrm{in}}", True) >= SMALLEST_CAP_HEIGHT_PT
+
+
+def test_every_equation_of_every_demo_and_starter_is_legible_at_print_size(tmp_path):
+    too_small, seen = [], 0
+    for path in _sheets(tmp_path):
+        sheet = build_sheet(path).sheet
+        for latex, display in sorted(set(every_math(sheet))):
+            seen += 1
+            size = smallest_cap_height_pt(latex, display)
+            if size < SMALLEST_CAP_HEIGHT_PT:
+                too_small.append(f"{path.name}: {size:.2f} pt in {latex}")
+    assert seen > 100
+    assert not too_small, "\n".join(too_small)
