@@ -91,6 +91,13 @@ class _SheetLatexPrinter(LatexPrinter):
     def _on_the_line(self, argument) -> str:
         """A product or quotient as a/b on one line, its denominator bracketed when it is more than one
         factor: A h t/(V c_p rho), -(t - t_0)/tau. Anything else as usual, with short fractions folded."""
+        if argument.is_Add:  # each term on the line: A h t/(c_p m) + ..., never sympy's folded t / c_p m
+            text = ""
+            for term in self._as_ordered_terms(argument):
+                negative = term.could_extract_minus_sign()
+                shown = self._on_the_line(-term if negative else term)
+                text += ("-" if negative else "") + shown if not text else (" - " if negative else " + ") + shown
+            return text
         factors = _flat_factors(argument)
         if len(factors) < 2 and not (factors and _is_division(factors[0])):
             folded = self._settings["fold_short_frac"]

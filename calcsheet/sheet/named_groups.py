@@ -56,7 +56,7 @@ class Groups:
 
     def _exp_in_tau(self, e, tau: sp.Symbol | None = None):
         tau = self.tau if tau is None else tau
-        ratio = sp.expand(e.args[0] / self.p)
+        ratio = sp.expand(sp.cancel(sp.together(e.args[0] / self.p)))  # p a sum over a product cancels too
         if ratio.free_symbols & self.p.free_symbols or ratio == 0:
             return e
         lead = ratio.coeff(self.x) if ratio.has(self.x) else ratio

@@ -2,8 +2,9 @@
 
 The PDF writer sets each equation as an SVG from ziamath at ``svgmath.FONT_SIZE`` (13.5 px, the 10 pt
 body text), a displayed equation shrunk by the scale ``svgmath.lines_for`` gives it to fit
-``pdf.EQUATION_WIDTH_PX`` (140 mm). Each glyph is a ``<use>`` of a ``<symbol>``, so its printed size is
-the ratio of the two heights times the equation's size and scale. The cap height of that size is read
+``pdf.EQUATION_WIDTH_PX`` (140 mm). The PDF writes each glyph as a plain path; the measure lays the same
+equation out with ziafont's SVG 2 form, where each glyph is a ``<use>`` of a ``<symbol>``, so that its printed
+size is the ratio of the two heights times the equation's size and scale. The cap height of that size is read
 from the font itself (the ink height of an "H").
 
 The limit, a cap height of 4.4 pt at print, admits a first-level script of the 10 pt body (a power v^2
@@ -35,6 +36,20 @@ _PATH = re.compile(r'<path d="([^"]*)"')
 _USE = re.compile(r'<use href="#([^"]+)"[^>]*height="([^"]+)"')
 
 
+def measured_svg(latex: str, size: float = svgmath.FONT_SIZE) -> str:
+    """The equation laid out as the PDF writer lays it out (its settings and ziamath_rows' patch in force), with
+    glyphs as <symbol>/<use> pairs, whose scale can be read; only the form of the glyphs differs."""
+    import ziafont
+    import ziamath
+
+    svgmath.render(latex, size)
+    ziafont.config.svg2 = True
+    try:
+        return ziamath.Latex(latex, size=size).svg()
+    finally:
+        ziafont.config.svg2 = False
+
+
 def glyph_scales(svg: str) -> list[float]:
     """Each glyph's drawn size as a fraction of the equation's font size."""
     heights = {name: float(box.split()[3]) for name, box in _SYMBOL.findall(svg)}
@@ -43,7 +58,7 @@ def glyph_scales(svg: str) -> list[float]:
 
 def cap_height_per_em() -> float:
     """The font's cap height over its em, measured on the ink of an "H" set at 100 px."""
-    svg = svgmath.render("H", 100.0).svg
+    svg = measured_svg("H", 100.0)
     path, scale = _PATH.findall(svg)[0], glyph_scales(svg)[0]
     ys = [float(y) for y in re.findall(r"[-\d.]+ ([-\d.]+)", path)]
     return (max(ys) - min(ys)) * scale / 100.0
@@ -52,7 +67,7 @@ def cap_height_per_em() -> float:
 def smallest_cap_height_pt(latex: str, display: bool) -> float:
     """The smallest cap height at print, in pt, of any glyph of one equation as the PDF writer sets it."""
     lines, scale = svgmath.lines_for(latex, pdf.EQUATION_WIDTH_PX) if display else ([latex], 1.0)
-    smallest = min(min(glyph_scales(svgmath.render(line).svg), default=1.0) for line in lines)
+    smallest = min(min(glyph_scales(measured_svg(line)), default=1.0) for line in lines)
     return smallest * scale * svgmath.FONT_SIZE * PT_PER_PX * cap_height_per_em()
 
 
