@@ -70,18 +70,25 @@ def time_budget(seconds: float):
     if threading.current_thread() is not threading.main_thread() or _SIGNAL is None:
         raise BudgetUnavailable("symbolic steps need a time budget, which needs the main thread and SIGPROF")
     token = object()
+    if signal.getsignal(_SIGNAL) is not _expire:
+        # installed once and left in place: a tick that arrives after the last budget closed finds no budget
+        # open and is ignored, where the default action of SIGPROF would end the process
+        signal.signal(_SIGNAL, _expire)
     _open.append((token, _cpu() + seconds * SCALE))
-    previous = signal.signal(_SIGNAL, _expire) if len(_open) == 1 else None
     try:
         _arm()
         yield token
     finally:
-        _open.remove(next(entry for entry in _open if entry[0] is token))
-        if _open:
-            _arm()
-        else:
-            signal.setitimer(_TIMER, 0)
-            signal.signal(_SIGNAL, previous)
+        # no tick may interrupt the bookkeeping: one that lands before the entry is removed would leave it open
+        signal.pthread_sigmask(signal.SIG_BLOCK, {_SIGNAL})
+        try:
+            _open.remove(next(entry for entry in _open if entry[0] is token))
+            if _open:
+                _arm()
+            else:
+                signal.setitimer(_TIMER, 0)
+        finally:
+            signal.pthread_sigmask(signal.SIG_UNBLOCK, {_SIGNAL})
 
 
 def _arm() -> None:
@@ -91,6 +98,8 @@ def _arm() -> None:
 
 
 def _expire(signum, frame):
+    if not _open:  # a tick that was already on its way when the last budget closed
+        return
     now = _cpu()
     expired = min(_open, key=lambda entry: entry[1])
     if expired[1] <= now + 1e-3:

@@ -69,9 +69,10 @@ def page_texts(pdf: bytes) -> list[str]:
 
 
 def squeeze(text: str) -> str:
-    """Text without white space and in compatibility form, so that line wrapping and ligatures do not
-    decide whether a block's words are found."""
-    return "".join(unicodedata.normalize("NFKC", text).replace("\u2060", "").split())
+    """Text without white space and hyphens, in compatibility form, so that line wrapping (pdftotext joins a
+    word broken after its hyphen, "sharp-" "edged" as "sharpedged") and ligatures do not decide whether a
+    block's words are found."""
+    return "".join(unicodedata.normalize("NFKC", text).replace("\u2060", "").replace("-", "").split())
 
 
 def locate(block, pages: list[str], cursor: int) -> tuple[int, int]:
