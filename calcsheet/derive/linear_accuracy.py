@@ -18,7 +18,7 @@ import numpy as np
 import sympy as sp
 from scipy.integrate import solve_ivp
 
-from calcsheet.derive.verify import ODE, Check
+from calcsheet.derive.verify import ODE, Check, CountedSlope, TooMuchWork
 from calcsheet.derive.numbers import OPERATORS
 from calcsheet.model import Model
 
@@ -27,7 +27,6 @@ RTOL = 1e-10
 ATOL_SHARE = 1e-3  # atol = RTOL × ATOL_SHARE × the largest |y| of the linearised response
 METHOD, STIFF = "DOP853", "Radau"
 FLOOR_SHARE = 1e-6  # a response that hardly changes is measured against this share of its size
-MAX_STEPS_CALLS = 2_000_000
 # Why the non-linear integration could not be completed (Accuracy.failure).
 STOPPED, NOT_FINITE = "stopped", "not_finite"
 
@@ -168,7 +167,7 @@ def _integrate(slope, x0: float, y0: float, grid: list[float], size: float):
                     rtol=RTOL,
                     atol=RTOL * ATOL_SHARE * max(size, 1e-300),
                 )
-            except (_TooMuchWork, ValueError, ArithmeticError):
+            except (TooMuchWork, ValueError, ArithmeticError):
                 continue
         values = [float(v) for v in result.y[0]] if result.y.size else []
         if result.success and len(values) == len(grid) and all(math.isfinite(v) for v in values):
@@ -177,21 +176,12 @@ def _integrate(slope, x0: float, y0: float, grid: list[float], size: float):
     return STIFF, [], failed_at
 
 
-class _TooMuchWork(Exception):
-    pass
-
-
-class _Counted:
-    """Work, not time, ends a run that does not finish."""
-
-    def __init__(self, slope):
-        self.slope, self.calls = slope, 0
+class _Counted(CountedSlope):
+    """verify.py's bounded slope (work, not time, ends a run that does not finish), refusing a value that is
+    not finite so that the integrator stops where the non-linear model leaves the real numbers."""
 
     def __call__(self, x, state):
-        self.calls += 1
-        if self.calls > MAX_STEPS_CALLS:
-            raise _TooMuchWork()
-        value = self.slope(x, state)
+        value = super().__call__(x, state)
         if not math.isfinite(value[0]):
             raise ValueError("slope not finite")
         return value

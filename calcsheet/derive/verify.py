@@ -243,7 +243,7 @@ def integrate_pieces(
     size = abs(y0) or overall or 1.0  # a response that starts at 0 takes its overall size until it moves
     found = [(x0, y0, size)] if x0 in wanted else []
     state = y0
-    counted = _Counted(slope)
+    counted = CountedSlope(slope)
     for a, b in zip(edges[:-1], edges[1:]):
         size = max(size, abs(state))
         with warnings.catch_warnings(record=True) as caught, np.errstate(all="ignore"):
@@ -252,7 +252,7 @@ def integrate_pieces(
                 result = solve_ivp(
                     counted, (a, b), [state], method=method, t_eval=[b], rtol=RTOL, atol=RTOL * ATOL_SHARE * size
                 )
-            except _TooMuchWork:
+            except TooMuchWork:
                 raise IntegrationFailed(TOO_MUCH_WORK, calls=MAX_SLOPE_CALLS) from None
             except (ValueError, ArithmeticError):  # an implicit method met a slope that is not finite
                 raise IntegrationFailed(SLOPE_NOT_FINITE) from None
@@ -267,11 +267,11 @@ def integrate_pieces(
     return found
 
 
-class _TooMuchWork(Exception):
+class TooMuchWork(Exception):
     pass
 
 
-class _Counted:
+class CountedSlope:
     """The slope with a bound on how often the integrator may call it: work, not time, ends a run."""
 
     def __init__(self, slope):
@@ -280,7 +280,7 @@ class _Counted:
     def __call__(self, x, state):
         self.calls += 1
         if self.calls > MAX_SLOPE_CALLS:
-            raise _TooMuchWork()
+            raise TooMuchWork()
         return self.slope(x, state)
 
 
