@@ -12,8 +12,10 @@ hash of everything bound, and the same objects written in the same order.
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import io
+import json
 import logging
 import warnings
 
@@ -34,12 +36,14 @@ _CAUTION = (
 
 def bound_key(package: Package, rows: list[Row], sheet_pdfs: dict[int, bytes]) -> str:
     """A digest of everything the bound PDF is made from: the package file, the register rows, each sheet's
-    PDF and calcsheet's version. Equal digests, equal bound PDF, so it need not be made again."""
+    PDF and calcsheet's version. Equal digests, equal bound PDF, so it need not be made again. The rows are
+    hashed as sorted JSON: a row read back from the build cache holds the same values in another key order."""
     from importlib.metadata import version
 
     digest = hashlib.sha256()
     digest.update(package.file.read_bytes())
-    digest.update(repr(rows).encode("utf-8"))
+    rows_json = json.dumps([dataclasses.asdict(row) for row in rows], sort_keys=True, ensure_ascii=False)
+    digest.update(rows_json.encode("utf-8"))
     for index, data in sorted(sheet_pdfs.items()):
         digest.update(f"{index}:{len(data)}:".encode("ascii"))
         digest.update(hashlib.sha256(data).digest())

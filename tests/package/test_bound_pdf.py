@@ -10,6 +10,7 @@ The package is built once, by the command line in a fresh interpreter, and the t
 from __future__ import annotations
 
 import os
+import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -166,6 +167,30 @@ def test_two_builds_in_fresh_processes_give_the_same_bytes(built):
     again = _build(folder.resolve(), elsewhere / "out", elsewhere)
     assert again.returncode == 2, again.stderr
     assert (elsewhere / "out" / "BT-01.pdf").read_bytes() == (out / "BT-01.pdf").read_bytes()
+
+
+def test_a_no_op_rebuild_right_after_the_first_build_binds_nothing_and_imports_no_heavy_library(built):
+    """The first rebuild reads each sheet's register row back from the build cache; the bound PDF's key must
+    come out equal to the one the fresh build wrote, or every first rebuild would bind again with WeasyPrint."""
+    base, folder, out = built
+    copy = base / "again-out"
+    shutil.copytree(out, copy)
+    before = {p.name: p.read_bytes() for p in copy.iterdir() if p.is_file()}
+    probe = (
+        "import sys, atexit\n"
+        "atexit.register(lambda: print('MODULES', ' '.join(sorted(sys.modules)), file=sys.stderr))\n"
+        "from calcsheet.cli import main\n"
+        f"main(['build', {str(folder.resolve())!r}, '--out', {str(copy)!r}, '--format', 'pdf'])\n"
+    )
+    env = {**{k: v for k, v in os.environ.items() if k != "SOURCE_DATE_EPOCH"}, "PYTHONPATH": str(ROOT)}
+    done = subprocess.run([sys.executable, "-c", probe], cwd=base, env=env, capture_output=True, text=True)
+    assert done.returncode == 2, done.stderr  # the broken sheet still does not build
+    assert "bound PDF -> " in done.stdout and done.stdout.count("(unchanged)") == 3, done.stdout  # 2 sheets, PDF
+    modules = next(line for line in done.stderr.splitlines() if line.startswith("MODULES")).split()
+    # not sympy: the broken sheet is not in the cache, so it is read again, and reading a sheet builds its model
+    heavy = {"scipy", "matplotlib", "weasyprint", "pypdf"}
+    assert not {m.split(".")[0] for m in modules} & heavy
+    assert {p.name: p.read_bytes() for p in copy.iterdir() if p.is_file()} == before
 
 
 def test_a_bad_package_signoff_is_one_line_naming_file_and_key(tmp_path):
