@@ -24,6 +24,7 @@ from markupsafe import escape
 from calcsheet.errors import visible
 from calcsheet.load.package_file import Package
 from calcsheet.package.register import ROLES, Row
+from calcsheet.writers.css_text import css_string
 from calcsheet.writers.fonts import FACES
 
 # Contents rows link to this made-up address, numbered by sheet; pypdf turns each into a jump to the sheet.
@@ -89,7 +90,9 @@ def bind(package: Package, rows: list[Row], sheet_pdfs: dict[int, bytes]) -> byt
         }
     )
     digest = hashlib.sha256(front + b"".join(sheet_pdfs[i] for i in sorted(sheet_pdfs))).digest()[:16]
-    writer._ID = ArrayObject((ByteStringObject(digest), ByteStringObject(digest)))  # pypdf has no setter
+    writer._ID = ArrayObject(
+        (ByteStringObject(digest), ByteStringObject(digest))
+    )  # pypdf documents the attribute, with no setter
     out = io.BytesIO()
     writer.write(out)
     return out.getvalue()
@@ -204,8 +207,8 @@ def _front_html(package: Package, rows: list[Row], counts: dict[int, int], start
         if basis
         else '<h2 id="basis">Design basis</h2><p>This package states no design-basis values.</p>'
     )
-    head = _css_string(visible(package.title))
-    right = _css_string(visible(f"{package.number}{_rev(package.revision)}"))
+    head = css_string(visible(package.title))
+    right = css_string(visible(f"{package.number}{_rev(package.revision)}"))
     return f"""<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>{e(package.title)}</title>
 <style>
@@ -252,7 +255,7 @@ def _range_text(entry: dict) -> str:
 
 
 def _stamp_html(package: Package, total: int) -> str:
-    label = _css_string(visible(f"{package.number}{_rev(package.revision)}, package page "))
+    label = css_string(visible(f"{package.number}{_rev(package.revision)}, package page "))
     return f"""<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>stamp</title><style>
 {_FONT_FACES}
@@ -292,15 +295,9 @@ def _layout(html: str):
 
 def _write(laid_out) -> bytes:
     """WeasyPrint's PDF with its identifier a hash of the HTML, as a sheet's is."""
-    from calcsheet.writers.pdf import _font_subsets_keep_their_timestamp
+    from calcsheet.writers.pdf import font_subsets_keep_their_timestamp
 
     document, html = laid_out
-    with _font_subsets_keep_their_timestamp():
+    with font_subsets_keep_their_timestamp():
         identifier = hashlib.sha256(html.encode("utf-8")).hexdigest()[:32].encode("ascii")
         return document.write_pdf(pdf_identifier=identifier, uncompressed_pdf=False)
-
-
-def _css_string(text: str) -> str:
-    from calcsheet.writers.pdf import _css_string as quoted
-
-    return quoted(text)

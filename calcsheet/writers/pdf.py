@@ -25,6 +25,7 @@ from markupsafe import Markup, escape
 from calcsheet.errors import InputError
 from calcsheet.sheet import document as doc
 from calcsheet.writers import build_date, svgmath
+from calcsheet.writers.css_text import css_string
 from calcsheet.writers.html import render_html
 from calcsheet.writers.styles import default_style_dir, style_name
 from calcsheet.writers.visible_text import visible
@@ -72,7 +73,7 @@ def _write(sheet: doc.Sheet, style, attachments: tuple[tuple[str, bytes], ...]) 
     fetcher = ConfinedFetcher(Path(style) if style is not None else default_style_dir(), default_style_dir())
     document = weasyprint.HTML(string=html, base_url=STYLE_ROOT, url_fetcher=fetcher).render()
     _refuse_attachments_and_outward_links(document, style)
-    with _font_subsets_keep_their_timestamp():
+    with font_subsets_keep_their_timestamp():
         identifier = hashlib.sha256(html.encode("utf-8")).hexdigest()[:32].encode("ascii")
         with warnings.catch_warnings():
             # For PDF/A WeasyPrint 70 reads its sRGB profile from a file it leaves to the garbage collector.
@@ -127,7 +128,7 @@ _FONT_LOCK = threading.Lock()
 
 
 @contextlib.contextmanager
-def _font_subsets_keep_their_timestamp():
+def font_subsets_keep_their_timestamp():
     """Font subsets made with fontTools keep the font's own ``head.modified``.
 
     WeasyPrint subsets with HarfBuzz where it can, which keeps the font's timestamp. Where it falls
@@ -177,37 +178,26 @@ def _page_css(sheet: doc.Sheet) -> str:
     """Running heads and foot from the title block's named entries and the Sheet's labels, as escaped
     CSS strings (print.css sets only their look)."""
     block, words = sheet.title_block, sheet.labels
-    left = _css_string(visible(block.title)) + r' "\A " ' + _css_string(visible(block.project.value))
+    left = css_string(visible(block.title)) + r' "\A " ' + css_string(visible(block.project.value))
     number, revision = (f"{f.label} {visible(f.value) or '-'}" for f in (block.number, block.revision))
     status = f"  {block.status.label} {visible(block.status.value)}" if block.status.value else ""
     right = (
-        _css_string(f"{number}  {revision}{status}")
+        css_string(f"{number}  {revision}{status}")
         + " "
-        + _css_string(f"\n{words.page} ")
+        + css_string(f"\n{words.page} ")
         + " counter(page) "
-        + _css_string(f" {words.of} ")
+        + css_string(f" {words.of} ")
         + " counter(pages)"
     )
     foot = (
-        f"@bottom-right {{ content: {_css_string(f'{words.fingerprint} {sheet.review.shown}')}; }} "
+        f"@bottom-right {{ content: {css_string(f'{words.fingerprint} {sheet.review.shown}')}; }} "
         if sheet.review.shown
         else ""
     )
     return (
         f"\n@page {{ @top-left {{ content: {left}; }} @top-right {{ content: {right}; }} "
-        f"@bottom-left {{ content: {_css_string(words.footer)}; }} {foot}}}\n"
+        f"@bottom-left {{ content: {css_string(words.footer)}; }} {foot}}}\n"
     )
-
-
-def _css_string(text: str) -> str:
-    """Text as a CSS string literal: quotes, backslashes, newlines and '<' escaped."""
-    out = []
-    for char in text:
-        if char in '"\\<>' or ord(char) < 32:
-            out.append(f"\\{ord(char):x} ")
-        else:
-            out.append(char)
-    return '"' + "".join(out) + '"'
 
 
 def creation_date(sheet: doc.Sheet) -> str:
