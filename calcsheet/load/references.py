@@ -28,6 +28,7 @@ class SheetEntry:
     number: str  # the sheet's [sheet] number ("" if it has none: then no other sheet can use it)
     revision: str
     references: tuple[Reference, ...]
+    style: str = ""  # the [sheet] style as written, read here so a build's cache key need not read the file again
 
     @property
     def upstream(self) -> tuple[str, ...]:
@@ -89,7 +90,8 @@ def sheet_entries(package: Package) -> tuple[SheetEntry, ...]:
             references = references_in(raw)
         except InputError as error:
             raise error.located(file=str(path))
-        entries.append(SheetEntry(path, number.strip(), revision.strip(), references))
+        style = head.get("style", "") if isinstance(head.get("style", ""), str) else ""
+        entries.append(SheetEntry(path, number.strip(), revision.strip(), references, style.strip()))
     _refuse_repeated_numbers(entries)
     numbers = {e.number for e in entries if e.number}
     for entry in entries:

@@ -156,7 +156,7 @@ class BuildRun:
         package = job.session.package
         entry = self._entry(job)
         basis = {name: package.basis[name].entry for name in entry.basis_used}
-        folders = [cache.default_styles_folder(), self.style, package.style, _named_style(job.path)]
+        folders = [cache.default_styles_folder(), self.style, package.style, _named_style(entry)]
         styles = {str(f): self._digest(f) for f in folders if f is not None}
         settings = {"formats": list(self.formats), "epoch": source_date_epoch(), "archive": self.archive}
         return cache.sheet_key(job.path, basis, upstream, styles, settings, self._versions)
@@ -259,13 +259,8 @@ def _keyed_build(argument) -> dict:
     return outcome
 
 
-def _named_style(path: Path) -> Path | None:
-    """The style folder a sheet's [sheet] style names (read without loading the sheet), for the cache key."""
-    from calcsheet.load.toml_file import read_toml
-
-    try:
-        head = read_toml(path).get("sheet", {})
-    except Exception:  # the build reports a broken input itself
-        return None
-    text = head.get("style") if isinstance(head, dict) else None
-    return path.parent / text if isinstance(text, str) and text.strip() and (path.parent / text).is_dir() else None
+def _named_style(entry) -> Path | None:
+    """The style folder a sheet's [sheet] style names (as the package read it, without loading the sheet), for
+    the cache key."""
+    folder = entry.path.parent / entry.style
+    return folder if entry.style and folder.is_dir() else None

@@ -100,6 +100,19 @@ def test_a_style_file_rebuilds_every_sheet(built, tmp_path):
     assert again(folder, out, "--style", style) == {"heat", "cool", "plain"}
 
 
+def test_a_sheets_own_style_file_rebuilds_that_sheet_only(built):
+    folder, out = built
+    style = folder / "plain-house"
+    style.mkdir()
+    (style / "screen.css").write_text("body { color: #111; }\n", encoding="utf-8")
+    plain = folder / "plain.toml"
+    plain.write_text(plain.read_text(encoding="utf-8").replace("[sheet]\n", '[sheet]\nstyle = "plain-house"\n', 1))
+    assert again(folder, out) == {"plain"}
+    (style / "screen.css").write_text("body { color: #222; }\n", encoding="utf-8")
+    assert again(folder, out) == {"plain"}
+    assert again(folder, out) == set()
+
+
 def test_a_library_version_rebuilds_every_sheet(built, monkeypatch):
     folder, out = built
     real = cache.library_versions()
