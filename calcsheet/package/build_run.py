@@ -205,7 +205,8 @@ class BuildRun:
             return
         stem = self._stem(job)
         if outcome.get("cached"):
-            names = sorted(outcome["outputs"])
+            # in the formats' order, as a fresh build lists them
+            names = [f"{stem}.{fmt}" for fmt in self.formats if f"{stem}.{fmt}" in outcome["outputs"]]
             written = [self.out_dir / n for n in names]
         else:
             from calcsheet.pipeline import write_outputs

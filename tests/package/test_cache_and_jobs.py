@@ -59,6 +59,19 @@ def test_a_no_op_rebuild_reuses_every_sheet_and_writes_the_same_bytes(built):
     assert files(out) == before
 
 
+def test_a_reused_sheets_line_lists_its_files_as_the_build_did(tmp_path):
+    folder = tmp_path / "pkg"
+    folder.mkdir()
+    write_package(folder)
+    out = tmp_path / "out"
+    lines = []
+    for _ in range(2):
+        code, stdout, stderr = run("build", folder, "--out", out, "--format", "txt,json", "--jobs", "1")
+        assert code == 0, stderr
+        lines.append([line.removesuffix(" (unchanged)") for line in stdout.splitlines() if "register" not in line])
+    assert lines[0] == lines[1] and ".txt, " in lines[0][0]  # txt first, as asked, not in name order
+
+
 def test_force_rebuilds_everything(built):
     folder, out = built
     assert again(folder, out, "--force") == {"heat", "cool", "plain"}
