@@ -191,9 +191,10 @@ def _front_html(package: Package, rows: list[Row], counts: dict[int, int], start
         else:
             link, page, pages = e, "", ""
             verdict = "NOT BUILT" + (f": {row.problem}" if row.problem else "")
+        status = row.status or ("" if row.problem else "not stated")  # as the register page says it
         contents.append(
             f"<tr><td>{link(row.number or '-')}</td><td>{link(row.title or row.file)}</td><td>{e(row.revision)}</td>"
-            f"<td>{e(row.status)}</td><td>{e(verdict)}</td><td>{e(row.criteria)}</td><td>{pages}</td>"
+            f"<td>{e(status)}</td><td>{e(verdict)}</td><td>{e(row.criteria)}</td><td>{pages}</td>"
             f"<td>{page}</td></tr>"
         )
     basis = "".join(
