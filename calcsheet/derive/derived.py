@@ -18,6 +18,7 @@ import numpy as np
 import sympy as sp
 from scipy import integrate
 
+from calcsheet.derive import by_shape
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, LIMIT_SECONDS, NO_CLOSED_FORM, within
 from calcsheet.derive.extremes import NOISE, Extreme, ExtremeSearch, Piece, precise_at
 from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, has_infinity, real_float
@@ -85,6 +86,7 @@ class DerivedCurve:
         self.piece = _DerivedPiece(self, piece)
         self._search = None
         self._antiderivative: tuple[sp.Expr | None, str] | None = None
+        self._final: tuple[float | None] | None = None
 
     def __call__(self, at: float) -> float:
         try:
@@ -111,14 +113,19 @@ class DerivedCurve:
     # ------------------------------------------------------------------ extremes
     def search(self) -> ExtremeSearch:
         if self._search is None:
-            self._search = ExtremeSearch([self.piece], self, self.analysed, self.final())
+            self._search = ExtremeSearch([self.piece], self, self.analysed, self.final)
         return self._search
 
     def extreme(self, kind: str, window: Window | None, text: str = "") -> Extreme:
         return replace(self.search().find(kind, window, text), of=self.quantity.name)
 
     def final(self) -> float | None:
-        """g as the variable grows without bound, from its closed form; None where there is none."""
+        """g as the variable grows without bound, from its closed form; None where there is none. Found once."""
+        if self._final is None:
+            self._final = (self._limit(),)
+        return self._final[0]
+
+    def _limit(self) -> float | None:
         if self.closed is None:
             return None
         settled = self.closed.replace(sp.Heaviside, lambda *args: _settled_step(args[0], self.x))
@@ -149,7 +156,7 @@ class DerivedCurve:
             if self.closed is None:
                 self._antiderivative = (None, "")
             else:
-                found, done = within(INTEGRATE_SECONDS, lambda: sp.integrate(self.closed, self.x), None)
+                found, done = by_shape.integrate(self.closed, self.x, INTEGRATE_SECONDS)
                 if not done:
                     self._antiderivative = (None, BUDGET_EXCEEDED)
                 elif found is None or found.has(sp.Integral) or has_infinity(found):

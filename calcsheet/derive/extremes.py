@@ -12,6 +12,7 @@ every candidate. Facts only: numbers in SI and codes; the sheet words them.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import mpmath
@@ -133,12 +134,20 @@ class ExtremeSearch:
         pieces: list[Piece],
         y,
         analysed: tuple[float, float],
-        final: float | None,
+        final: float | None | Callable[[], float | None],
         switches: tuple[float, ...] = (),
     ):
-        self.pieces, self.y, self.analysed, self.final = pieces, y, analysed, final
+        """``final``: the value the response approaches as the variable grows without bound, or a function
+        that finds it (a symbolic limit, costly), called only when an open-ended window asks for it."""
+        self.pieces, self.y, self.analysed, self._final = pieces, y, analysed, final
         self.switches = switches
         self._all: tuple[list[Stationary], bool] | None = None  # every stationary point of the analysed range
+
+    @property
+    def final(self) -> float | None:
+        if callable(self._final):
+            self._final = self._final()
+        return self._final
 
     def find(self, kind: str, window: Window | None, text: str = "") -> Extreme:
         start = window.start.si if window and window.start else self.analysed[0]

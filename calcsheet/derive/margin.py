@@ -28,6 +28,10 @@ from calcsheet.source.value_expressions import si_value, sympy_form
 MAX_CORNERS_PARAMETERS = 10  # 2^10 corners; beyond that the box is searched instead
 INTERIOR_POINTS = 16  # interior points of the box compared with its corners (a Halton sequence: no randomness)
 DIFFERENCE_STEP = 1e-5  # central differences: the step as a fraction of the parameter's value
+# The relative precision of one numeric evaluation of a quantity, at its coarsest (a derived quantity's
+# integral by QUADPACK, asked for 1e-10 in derived.py). Two evaluations closer than this differ by rounding
+# and quadrature error alone, which vary with the machine's libraries: their difference is no slope.
+EVALUATION_PRECISION = 1e-10
 SEARCH_EVALUATIONS = 200  # bound on the numeric search of the box where an extreme may lie inside it
 BRACKET_DOUBLINGS = 8  # a limiting value is bracketed by steps of the range's width doubling this often
 ROOT_ITERATIONS = 100
@@ -36,6 +40,7 @@ DIGITS = 30
 
 # Methods (Sensitivity.method, LimitingValue.method, WorstCase.method); the sheet words each.
 SYMBOLIC, IMPLICIT, AT_EXTREME, DIFFERENCE = "symbolic", "implicit", "symbolic_at_extreme", "central_difference"
+FLAT = "central_difference_flat"  # the two evaluations agree to within their precision: no slope to report
 SOLVED, BRACKETED, NOT_IN_REACH, HOLDS_THROUGHOUT, FAILS_THROUGHOUT = (
     "solved",
     "bracketed",
@@ -286,7 +291,8 @@ class _Study:
         for j, t in enumerate(self.toleranced):
             found = self.symbolic(q, t)
             if found is None:
-                found = (self.difference(q, j), DIFFERENCE, None)
+                slope = self.difference(q, j)
+                found = (slope, FLAT if slope == 0.0 else DIFFERENCE, None)
             derivative, method, expression = found
             if derivative is None:
                 continue
@@ -301,7 +307,11 @@ class _Study:
         up[j] += h
         down[j] -= h
         a, b = self.quantity(up, q), self.quantity(down, q)
-        return None if a is None or b is None else (a - b) / (2 * h)
+        if a is None or b is None:
+            return None
+        if abs(a - b) <= 2 * EVALUATION_PRECISION * max(abs(a), abs(b)):
+            return 0.0
+        return (a - b) / (2 * h)
 
     def symbolic(self, q: int, t: Toleranced):
         """(dy/dp, method, expression) from the closed form, or None where there is none to differentiate."""

@@ -51,7 +51,7 @@ class JoinedDerived:
     def search(self) -> ExtremeSearch:
         if self._search is None:
             self._search = ExtremeSearch(
-                [c.piece for c in self.curves], self, self.analysed, self.curves[-1].final(), switches=self.switches
+                [c.piece for c in self.curves], self, self.analysed, self.curves[-1].final, switches=self.switches
             )
         return self._search
 

@@ -14,6 +14,7 @@ from calcsheet.derive.margin import (
     CORNERS,
     DIFFERENCE,
     FAILS_THROUGHOUT,
+    FLAT,
     HOLDS_THROUGHOUT,
     IMPLICIT,
     MAX,
@@ -35,6 +36,7 @@ SENSITIVITY_WORDS = {
     IMPLICIT: "symbolic, implicit: -(∂y/∂p)/(∂y/∂t) at the crossing",
     AT_EXTREME: "symbolic: ∂y/∂p at the point that gives the extreme",
     DIFFERENCE: "central difference of the numeric evaluation",
+    FLAT: "central difference: no change beyond the evaluations' precision (1e-10 relative), so 0",
 }
 LIMIT_WORDS = {
     SOLVED: "solved in symbols (sympy), root checked numerically",

@@ -16,12 +16,24 @@ import itertools
 import math
 from pathlib import Path
 
+import mpmath
 import numpy as np
 import pytest
 from scipy import integrate, optimize
 
 from calcsheet.derive.derivation import derive
-from calcsheet.derive.margin import BRACKETED, CORNERS, DIFFERENCE, IMPLICIT, SOLVED, SYMBOLIC, find_margin
+from calcsheet.derive.margin import (
+    BRACKETED,
+    CORNERS,
+    DIFFERENCE,
+    DIFFERENCE_STEP,
+    EVALUATION_PRECISION,
+    FLAT,
+    IMPLICIT,
+    SOLVED,
+    SYMBOLIC,
+    find_margin,
+)
 from calcsheet.derive.piecewise import derive_piecewise
 from calcsheet.load.loader import load_model
 
@@ -282,3 +294,51 @@ def test_switched_worst_case_against_brute_force_sampling(valve):
     assert margin.worst[0].value is None and not margin.worst[0].passed
     assert margin.worst[1].value == pytest.approx(worst_hold, rel=1e-9) and margin.worst[1].passed
     assert not margin.passed
+
+
+RESISTOR_ENERGY = """
+[sheet]
+title = "Energy into a bleed resistor, with tolerances (test)"
+[model]
+equation = "R*C*dv/dt + v = 0"
+unknown = "v [V]"
+variable = "t [s]"
+[parameters]
+R = { value = "2.2 kohm", tolerance = "5 %" }
+C = { value = "1100 uF" }
+[initial]
+value = "400 V"
+[[derived]]
+name = "P_R"
+expression = "v^2/R"
+unit = "W"
+[[criteria]]
+text = "energy of the whole discharge"
+check = "integral(P_R, 0 s, 30 s) <= 500 J"
+[[criteria]]
+text = "energy of the first two seconds"
+check = "integral(P_R, 0 s, 2 s) <= 500 J"
+"""
+
+
+def _normalised_energy_slope(T: float, R: float = 2200.0, C: float = 1100e-6) -> float:
+    """(dE/dR) R / E for E = C v0^2/2 (1 - exp(-2T/(RC))), the energy into R over [0, T] (from memory of the
+    standard result: P = v^2/R with v = v0 exp(-t/(RC)), integrated by hand), with mpmath at 30 digits."""
+    mpmath.mp.dps = 30
+    a = 2 * mpmath.mpf(T) / (mpmath.mpf(R) * mpmath.mpf(C))
+    return float(-a * mpmath.exp(-a) / (1 - mpmath.exp(-a)))
+
+
+def test_a_central_difference_below_the_evaluations_precision_is_reported_as_flat(tmp_path):
+    """Over 30 s the energy hardly depends on R (normalised slope about -4e-10): the two evaluations differ in
+    their 15th digit, where rounding and quadrature error differ from machine to machine. Over 2 s the slope
+    is real (about -0.39) and is measured as a central difference of relative error near 1e-10 / 1e-5."""
+    path = tmp_path / "energy.toml"
+    path.write_text(RESISTOR_ENERGY)
+    d = derive(load_model(path))
+    margin = find_margin(d)
+    whole, first = (next(s for s in margin.sensitivities if s.quantity == q and s.parameter == "R") for q in (0, 1))
+    assert abs(_normalised_energy_slope(30.0)) < EVALUATION_PRECISION / DIFFERENCE_STEP  # negligible in truth
+    assert (whole.method, whole.derivative, whole.normalised) == (FLAT, 0.0, 0.0)
+    assert first.method == DIFFERENCE
+    assert first.normalised == pytest.approx(_normalised_energy_slope(2.0), rel=1e-4)

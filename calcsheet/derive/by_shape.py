@@ -1,0 +1,45 @@
+"""Symbolic work done once per shape of an expression, not once per set of numbers in it.
+
+The margin study evaluates one sheet at many parameter sets; each gives a derived quantity's closed form with
+other numbers in the same places (680.0*exp(-0.0967*t) beside 701.2*exp(-0.0921*t)). sympy's antiderivative
+of such a form costs a few tenths of a second each time. Here every number becomes a positive symbol (its sign
+kept outside), the shape is integrated once per process, and the numbers are put back.
+
+The result is the same function: the symbols stand for the magnitudes of the numbers, so declaring them
+positive (which keeps sympy from splitting into cases such as c = 0) is true by construction. Whether sympy
+finished within its budget is kept with the shape, so every set of numbers of one shape is treated alike.
+"""
+
+from __future__ import annotations
+
+import sympy as sp
+
+from calcsheet.derive.budget import within
+
+_NUMBER = "_by_shape_c"  # input names start with a letter (source/expressions.py NAME_PATTERN)
+_integrals: dict[tuple[str, str, float], tuple[sp.Expr | None, bool]] = {}
+
+
+def as_shape(expr: sp.Expr) -> tuple[sp.Expr, dict[sp.Symbol, sp.Float]]:
+    """``expr`` with each distinct non-zero Float magnitude replaced by a positive symbol, numbered in the
+    order a preorder walk meets them, and the symbols' values."""
+    magnitudes: dict[sp.Float, sp.Symbol] = {}
+    for node in sp.preorder_traversal(expr):
+        if isinstance(node, sp.Float) and node != 0 and abs(node) not in magnitudes:
+            magnitudes[abs(node)] = sp.Symbol(f"{_NUMBER}{len(magnitudes)}", positive=True)
+    floats = {f for f in expr.atoms(sp.Float) if f != 0}
+    shape = expr.xreplace({f: (magnitudes[abs(f)] if f > 0 else -magnitudes[abs(f)]) for f in floats})
+    return shape, {symbol: magnitude for magnitude, symbol in magnitudes.items()}
+
+
+def integrate(expr: sp.Expr, x: sp.Symbol, seconds: float) -> tuple[sp.Expr | None, bool]:
+    """sympy's antiderivative of ``expr`` in ``x`` under a budget of ``seconds``, as ``budget.within`` gives
+    it: (antiderivative, True), or (None, False) when the budget ran out. Found once per shape."""
+    if expr.free_symbols - {x}:  # only numbers besides x can be made symbols safely
+        return within(seconds, lambda: sp.integrate(expr, x), None)
+    shape, numbers = as_shape(expr)
+    key = (sp.srepr(shape), sp.srepr(x), seconds)
+    if key not in _integrals:
+        _integrals[key] = within(seconds, lambda: sp.integrate(shape, x), None)
+    found, done = _integrals[key]
+    return (found.xreplace(numbers) if found is not None else None), done
