@@ -75,7 +75,7 @@ class DerivedCurve:
         numeric = self.of_response.subs(values)
         total = sp.diff(numeric, x) + sp.diff(numeric, ys) * slope.subs(values)
         self._g = SafeFunction(numeric, (x, ys), scale=scale)
-        self._g_grid = sp.lambdify((x, ys), numeric, modules=["scipy", "numpy"])
+        self._g_grid = sp.lambdify((x, ys), numeric, modules=["scipy", "numpy"], docstring_limit=0)
         self._slope = SafeFunction(total, (x, ys), scale=scale)
         self.closed = None
         if solution.closed_form:
@@ -187,7 +187,7 @@ class _DerivedPiece:
             derivative = sp.diff(curve.closed, curve.x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
             if not has_infinity(derivative):
                 self.derivative = derivative
-                self._precise = sp.lambdify(curve.x, derivative, modules="mpmath")
+                self._precise = sp.lambdify(curve.x, derivative, modules="mpmath", docstring_limit=0)
 
     def slope(self, at: float) -> float:
         if self.derivative is not None:
@@ -218,7 +218,7 @@ def derived_values(model: Model, curves: dict[str, DerivedCurve], applies) -> tu
 
 def _difference(antiderivative: sp.Expr, x: sp.Symbol, a: float, b: float) -> float:
     """F(b) - F(a) in 30 digits; NaN where F has no finite value at an end."""
-    f = sp.lambdify(x, antiderivative, modules="mpmath")
+    f = sp.lambdify(x, antiderivative, modules="mpmath", docstring_limit=0)
     with mpmath.workdps(DIGITS):
         try:
             return real_float(f(mpmath.mpf(b)) - f(mpmath.mpf(a)))

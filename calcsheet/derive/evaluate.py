@@ -140,8 +140,8 @@ def make_evaluator(model: Model, solution: Solution, scale: float = 1.0) -> Resp
     closed_expr = (solution.natural + solution.forced_closed).subs(values)
     if has_infinity(closed_expr):
         closed_expr = _constant_as_limit(model, solution, values, scale)
-    closed = sp.lambdify(x, closed_expr, modules="mpmath")
-    closed_vector = sp.lambdify(x, closed_expr, modules=["scipy", "numpy"])
+    closed = sp.lambdify(x, closed_expr, modules="mpmath", docstring_limit=0)
+    closed_vector = sp.lambdify(x, closed_expr, modules=["scipy", "numpy"], docstring_limit=0)
     P = SafeFunction(solution.P.subs(values), x, scale=scale)
     open_parts = [(P, SafeFunction(term.subs(values), x, scale=scale)) for term in solution.open_terms]
     return ResponseEvaluator(

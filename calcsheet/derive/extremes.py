@@ -102,7 +102,7 @@ class Piece:
             expr = sp.diff(solution.particular.subs(values), x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
             if not expr.has(sp.oo, -sp.oo, sp.zoo, sp.nan):
                 self.derivative = expr
-                self._precise = sp.lambdify(x, expr, modules="mpmath")
+                self._precise = sp.lambdify(x, expr, modules="mpmath", docstring_limit=0)
 
     def slope(self, at: float) -> float:
         """dy/dx at a point: the closed form's derivative in 30 digits, else r - p*y from the equation."""

@@ -135,8 +135,8 @@ def _slope(model: Model):
     linearisation's own refusal), as plain-float functions of the Model's checked expressions."""
     x, y, dy = model.variable.symbol, model.unknown.symbol, model.derivative
     residual = model.residual.subs(model.numeric_values())
-    a = sp.lambdify((x, y), sp.diff(residual, dy), modules="math")
-    g = sp.lambdify((x, y), residual.subs(dy, 0), modules="math")
+    a = sp.lambdify((x, y), sp.diff(residual, dy), modules="math", docstring_limit=0)
+    g = sp.lambdify((x, y), residual.subs(dy, 0), modules="math", docstring_limit=0)
 
     def slope(at, state):
         value = float(state[0])

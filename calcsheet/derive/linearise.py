@@ -298,7 +298,7 @@ def _symbolic_roots(steady: sp.Expr, y: sp.Symbol, values: dict) -> list[tuple[s
 
 def _numeric_roots(steady: sp.Expr, y: sp.Symbol, model: Model) -> list[float]:
     """Every sign change on a scan over twelve decades either side of zero, refined by brentq."""
-    f = sp.lambdify(y, steady, modules="math")
+    f = sp.lambdify(y, steady, modules="math", docstring_limit=0)
 
     def value(v: float) -> float:
         try:

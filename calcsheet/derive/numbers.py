@@ -356,7 +356,7 @@ def _singular_point(cls: Classification, values, x: sp.Symbol, grid: np.ndarray)
     _, denominator = sp.fraction(sp.together(cls.p.subs(values)))
     if x not in denominator.free_symbols:
         return None
-    f = safe_function(sp.lambdify(x, denominator, modules="math"))
+    f = safe_function(sp.lambdify(x, denominator, modules="math", docstring_limit=0))
     previous = f(float(grid[0]))
     for a, b in zip(grid[:-1], grid[1:]):
         current = f(float(b))

@@ -57,8 +57,10 @@ class SafeFunction:
     def __init__(self, expr: sp.Expr, symbols, position: int = 0, scale: float = 1.0, side: int = 0):
         symbols = tuple(symbols) if isinstance(symbols, (tuple, list)) else (symbols,)
         self.expr = expr
-        self.fast = sp.lambdify(symbols, expr, modules=["math", "mpmath"])
-        self.precise = sp.lambdify(symbols, expr, modules="mpmath")
+        # docstring_limit=0 everywhere in derive/: sympy otherwise prints the whole expression into each
+        # function's docstring, about half of lambdify's time, and the margin study lambdifies thousands.
+        self.fast = sp.lambdify(symbols, expr, modules=["math", "mpmath"], docstring_limit=0)
+        self.precise = sp.lambdify(symbols, expr, modules="mpmath", docstring_limit=0)
         self.position, self.side = position, side
         self.scale = abs(scale) if scale and math.isfinite(scale) else 1.0
 

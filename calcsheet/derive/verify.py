@@ -374,7 +374,7 @@ def bounded_integral(
     (sympy.N would raise its precision until satisfied, without any bound on the time taken.)
     """
     ((variable, low, high),) = integral.limits
-    f = sp.lambdify(variable, integral.function, modules="mpmath")
+    f = sp.lambdify(variable, integral.function, modules="mpmath", docstring_limit=0)
     with mpmath.workdps(digits):
         a, b = mpmath.mpf(real_float(sp.N(low, digits))), mpmath.mpf(real_float(sp.N(high, digits)))
         if not (mpmath.isfinite(a) and mpmath.isfinite(b)):
