@@ -37,7 +37,7 @@ TABLE_OF = {
 }
 # The sections whose tables hold the results over the whole response: an ordinary sheet's steps, or a
 # switched sheet's results across the switches (its intervals' own tables are not compared).
-RESULT_SECTIONS = ("numbers", "extremes", "margin", "across", "across_margin")
+RESULT_SECTIONS = ("numbers", "extremes", "criteria", "margin", "across", "across_margin")
 COUNTED = {
     VERDICT: ("verdict flips", "verdict flip"),
     INPUT: ("inputs changed", "input changed"),

@@ -718,9 +718,23 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
                 f"{in_units(num.domain_end, m.variable)} (a coefficient becomes singular).",
             )
         )
-    if num.verdicts:
-        blocks.append(criteria_table(m, num.verdicts))
     return Section("numbers", "Numbers", tuple(blocks))
+
+
+# the steps whose results a criterion may be answered from, in sheet order; the criteria step comes after all
+_ANSWERED_FROM = (("numbers", "Numbers"), ("extremes", "Extremes"), ("derived", "Derived quantities"))
+
+
+def _criteria(d: Derivation, n: _Notation) -> Section:
+    """The criteria in a step of their own, after every step that works out a value they are answered from
+    (values and levels, extremes, derived quantities), so a checker never meets a value before its step."""
+    steps = [f"step {n.step_numbers[key]} ({title})" for key, title in _ANSWERED_FROM if key in n.step_numbers]
+    lead = (
+        "Each criterion of the input, answered from the results of "
+        + (", ".join(steps[:-1]) + " and " + steps[-1] if len(steps) > 1 else steps[0])
+        + ":"
+    )
+    return Section("criteria", "Acceptance criteria", (Paragraph(lead), criteria_table(d.model, d.numbers.verdicts)))
 
 
 PAST_LIMIT = "past the validity limit: does not apply"
@@ -1142,13 +1156,16 @@ STEPS = (
     ("numbers", _numbers),
     ("extremes", _extremes),
     ("derived", derived_section),
+    ("criteria", _criteria),
     ("margin", lambda d, n: margin_section(d)),
     ("verification", _verification),
 )
-# shown only when the input asks for them (extremes, derived quantities), or gives parameters ranges (margin)
+# shown only when the input asks for them (extremes, derived quantities, criteria), or gives parameters ranges
+# (margin)
 OPTIONAL_STEPS = {
     "linearisation": lambda d: getattr(d, "linearisation", None) is not None,
     "extremes": lambda d: any(not e.of for e in d.numbers.extremes),
     "derived": has_derived,
+    "criteria": lambda d: bool(d.numbers.verdicts),
     "margin": has_margin,
 }

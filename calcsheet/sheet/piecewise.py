@@ -95,12 +95,12 @@ def _across(pd) -> Section:
         blocks.append(values_table(m, num.values))
     if num.reach:
         blocks.append(reach_table(m, num.reach))
-    if num.verdicts:
-        blocks.append(criteria_table(m, num.verdicts))
     own = tuple(e for e in num.extremes if not e.of)  # a derived quantity's are with its values below
     if own:
         blocks += extremes_blocks(m, own)
     if m.derived:
         blocks += switched_derived_blocks(pd)
+    if num.verdicts:  # after every value a criterion is answered from, as on an ordinary sheet
+        blocks.append(criteria_table(m, num.verdicts))
     blocks.append(checks_table(pd.verification.checks, "Verification across the switches"))
     return Section("across", "Results across the switches", tuple(blocks))

@@ -332,15 +332,21 @@ def _obstacles(ax, renderer, figure, curve, levels, limits, extremes, point_limi
 
 
 class _Labels:
-    """Each label drawn once, then moved by plot_labels.place_label among spots in the order preferred."""
+    """Each label drawn once, then moved by plot_labels.place_label among spots in the order preferred; a label
+    that ends up away from what it names gets a leader to it. Label n has the gid ``calcsheet-label-KIND-n``
+    (KIND: level, limit or point) and its leader, when it has one, ``calcsheet-leader-n``."""
 
     FONT_SIZE = 7.0
     GAP = 2.5  # pt between a label and its line or point
+    AWAY = (12.0, 22.0)  # pt from a line, for a label that finds no free spot beside it
+    LEADER_WIDTH = 0.5  # pt
 
     def __init__(self, ax, obstacles):
         self.ax, self.obstacles = ax, obstacles
+        self.count = 0
 
-    def _draw(self, text, colour, xycoords, rotated=False):
+    def _draw(self, text, colour, xycoords, kind, rotated=False):
+        self.count += 1
         return self.ax.annotate(
             text,
             (0.0, 0.0),
@@ -355,46 +361,75 @@ class _Labels:
             annotation_clip=False,
             bbox=_LABEL_BOX,
             in_layout=False,
+            gid=f"calcsheet-label-{kind}-{self.count}",
+        )
+
+    def _place(self, artist, candidates, target, end, colour):
+        """Place the label; draw its leader in data coordinates (so the SVG, saved at another dpi, has it where
+        the label is), ending exactly at ``end``, the named point, or None for (x, y) on the named line."""
+        from calcsheet.writers.plot_labels import place_label
+
+        leader = place_label(artist, self.obstacles, candidates, target)
+        if leader is None:
+            return
+        to_data = self.ax.transData.inverted().transform
+        (xa, ya), (xb, yb) = to_data(leader[0]), to_data(leader[1])
+        kind = target[0]
+        if kind == "hline":
+            yb = end
+        elif kind == "vline":
+            xb = end
+        else:
+            xb, yb = end
+        self.ax.plot(
+            [xa, xb],
+            [ya, yb],
+            color=colour,
+            linewidth=self.LEADER_WIDTH,
+            solid_capstyle="butt",
+            zorder=3.5,  # over the curve, under the markers it ends on and the label it starts from
+            gid=f"calcsheet-leader-{self.count}",
         )
 
     def level(self, guide):
-        from calcsheet.writers.plot_labels import place_label
-
-        if not guide.label:
-            return
-        artist = self._draw(
-            guide.label, GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0], self.ax.get_yaxis_transform()
-        )
-        g, y = self.GAP, guide.value
-        candidates = []
-        for fx, ha in ((0.01, "left"), (0.99, "right"), (0.25, "left"), (0.5, "left"), (0.75, "right")):
-            candidates += [((fx, y), (0, g), ha, "bottom"), ((fx, y), (0, -g), ha, "top")]
-        place_label(artist, self.obstacles, candidates)
-
-    def limit(self, guide):
-        from calcsheet.writers.plot_labels import place_label
-
         if not guide.label:
             return
         colour = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0]
-        artist = self._draw(guide.label, colour, self.ax.get_xaxis_transform(), rotated=True)
-        g, x = self.GAP, guide.value
+        artist = self._draw(guide.label, colour, self.ax.get_yaxis_transform(), "level")
+        g, y = self.GAP, guide.value
+        spots = ((0.01, "left"), (0.99, "right"), (0.25, "left"), (0.5, "left"), (0.75, "right"))
         candidates = []
-        for fy, va in ((0.98, "top"), (0.02, "bottom"), (0.5, "center"), (0.75, "center"), (0.25, "center")):
+        for d in (g, *self.AWAY):  # beside the line first; farther out (with a leader) only when it is crowded
+            for fx, ha in spots:
+                candidates += [((fx, y), (0, d), ha, "bottom"), ((fx, y), (0, -d), ha, "top")]
+        target = ("hline", self.ax.get_yaxis_transform().transform((0.0, y))[1])
+        self._place(artist, candidates, target, y, colour)
+
+    def limit(self, guide):
+        if not guide.label:
+            return
+        colour = GUIDE_STYLE.get(guide.status, GUIDE_STYLE[""])[0]
+        artist = self._draw(guide.label, colour, self.ax.get_xaxis_transform(), "limit", rotated=True)
+        g, x = self.GAP, guide.value
+        spots = ((0.98, "top"), (0.02, "bottom"), (0.5, "center"), (0.75, "center"), (0.25, "center"))
+        candidates = []
+        for fy, va in spots:
             candidates += [((x, fy), (-g, 0), "right", va, 90), ((x, fy), (g, 0), "left", va, 90)]
         # written across where no upright spot is free: a long label does not fit between close levels
-        for fy, va in ((0.98, "top"), (0.02, "bottom"), (0.5, "center"), (0.75, "center"), (0.25, "center")):
+        for fy, va in spots:
             candidates += [((x, fy), (g, 0), "left", va, 0), ((x, fy), (-g, 0), "right", va, 0)]
-        place_label(artist, self.obstacles, candidates)
+        for d in self.AWAY:  # farther out, with a leader, only when every spot beside the line is taken
+            for fy, va in spots:
+                candidates += [((x, fy), (-d, 0), "right", va, 90), ((x, fy), (d, 0), "left", va, 90)]
+        target = ("vline", self.ax.get_xaxis_transform().transform((x, 0.0))[0])
+        self._place(artist, candidates, target, x, colour)
 
     def point(self, x, y, label, curve):
-        from calcsheet.writers.plot_labels import place_label
-
         if not label or not _finite(x, y):
             return
-        artist = self._draw(label, INK, "data")
+        artist = self._draw(label, INK, "data", "point")
         spots = {}
-        for d in (self.GAP + 2.5, self.GAP + 9.0, self.GAP + 18.0):  # clear of the dot, then farther out
+        for d in (self.GAP + 2.5, self.GAP + 9.0, self.GAP + 18.0, self.GAP + 30.0):  # clear of the dot, then farther
             spots[d] = {
                 "below right": ((d, -d), "left", "top"),
                 "above left": ((-d, d), "right", "bottom"),
@@ -414,7 +449,8 @@ class _Labels:
             else ["above right", "below left", "below right", "above left"]
         ) + ["above", "below", "right", "left"]
         candidates = [((x, y), *spots[d][k]) for d in spots for k in order]
-        place_label(artist, self.obstacles, candidates)
+        target = ("point", tuple(self.ax.transData.transform((x, y))))
+        self._place(artist, candidates, target, (x, y), INK)
 
 
 def _legend(figure, mark: str) -> str:

@@ -7,6 +7,7 @@ so the test sees what a reader sees, not the placer's estimate of it.
 
 from __future__ import annotations
 
+import math
 from pathlib import Path
 
 import pytest
@@ -128,3 +129,134 @@ def test_no_label_is_struck_through_by_a_guide_line(drawn):
             if y0 == y1 and box.y0 < y0 < box.y1 and min(x0, x1) < box.x1 and box.x0 < max(x0, x1):
                 struck.append((t.get_text(), line.get_gid()))
     assert not struck, struck
+
+
+LEADER_ENDS_PX = 0.75  # a leader's end lies on its target, its start on its label's box, within this
+
+
+def _label_box(label, renderer):
+    """The drawn box of a label: its text with the white backing behind it."""
+    box = label.get_window_extent(renderer)
+    patch = label.get_bbox_patch()
+    if patch is not None:
+        label.update_bbox_position_size(renderer)
+        box = box.union([box, patch.get_window_extent(renderer)])
+    return box
+
+
+def _target(label, ax):
+    """What a label names, in display pixels, read from its kind (in its gid) and its anchor: a point, or the
+    height of a level's line, or the abscissa of a limit's line."""
+    kind = label.get_gid().split("-")[2]
+    if kind == "level":
+        return kind, ax.get_yaxis_transform().transform(label.xy)[1]
+    if kind == "limit":
+        return kind, ax.get_xaxis_transform().transform(label.xy)[0]
+    return kind, tuple(ax.transData.transform(label.xy))
+
+
+def _distance_to_target(box, kind, where) -> float:
+    def gap(v, lo, hi):
+        return max(lo - v, 0.0, v - hi)
+
+    if kind == "level":
+        return gap(where, box.y0, box.y1)
+    if kind == "limit":
+        return gap(where, box.x0, box.x1)
+    return math.hypot(gap(where[0], box.x0, box.x1), gap(where[1], box.y0, box.y1))
+
+
+def _on_box_edge(p, box) -> bool:
+    inside = box.x0 - LEADER_ENDS_PX <= p[0] <= box.x1 + LEADER_ENDS_PX and (
+        box.y0 - LEADER_ENDS_PX <= p[1] <= box.y1 + LEADER_ENDS_PX
+    )
+    near_edge = min(abs(p[0] - box.x0), abs(p[0] - box.x1), abs(p[1] - box.y0), abs(p[1] - box.y1))
+    return inside and near_edge <= LEADER_ENDS_PX
+
+
+def _crosses(p, q, box) -> bool:
+    """Whether the segment p-q enters the inside of the box, by dense sampling (kept apart from the placer's
+    clipping arithmetic on purpose)."""
+    steps = 2000
+    for i in range(steps + 1):
+        t = i / steps
+        x, y = p[0] + t * (q[0] - p[0]), p[1] + t * (q[1] - p[1])
+        if box.x0 + 0.5 < x < box.x1 - 0.5 and box.y0 + 0.5 < y < box.y1 - 0.5:
+            return True
+    return False
+
+
+def _labels_and_leaders(fig):
+    ax = fig.axes[0]
+    labels = {
+        t.get_gid().rsplit("-", 1)[1]: t
+        for t in ax.texts
+        if (t.get_gid() or "").startswith("calcsheet-label-") and t.get_visible() and t.get_text().strip()
+    }
+    leaders = {
+        line.get_gid().rsplit("-", 1)[1]: line
+        for line in ax.get_lines()
+        if (line.get_gid() or "").startswith("calcsheet-leader-")
+    }
+    return labels, leaders
+
+
+def test_a_label_away_from_what_it_names_has_a_leader_ending_on_it_and_one_at_its_place_has_none(drawn):
+    from calcsheet.writers.plot_labels import HOME_PT
+
+    ax = drawn.axes[0]
+    renderer = drawn.canvas.get_renderer()
+    home = HOME_PT * drawn.dpi / 72
+    labels, leaders = _labels_and_leaders(drawn)
+    assert set(leaders) <= set(labels), "a leader without its label"
+    wrong = []
+    for n, label in labels.items():
+        box = _label_box(label, renderer)
+        kind, where = _target(label, ax)
+        away = _distance_to_target(box, kind, where) > home
+        if not away:
+            if n in leaders:
+                wrong.append((label.get_text(), "a leader, though at its place"))
+            continue
+        if n not in leaders:
+            wrong.append((label.get_text(), "displaced without a leader"))
+            continue
+        start, end = leaders[n].get_transform().transform(leaders[n].get_xydata())
+        if not _on_box_edge(start, box):
+            wrong.append((label.get_text(), "leader does not start on its box", tuple(start)))
+        on_target = {
+            "level": lambda: abs(end[1] - where) <= LEADER_ENDS_PX,
+            "limit": lambda: abs(end[0] - where) <= LEADER_ENDS_PX,
+            "point": lambda: math.dist(end, where) <= LEADER_ENDS_PX,
+        }[kind]()
+        if not on_target:
+            wrong.append((label.get_text(), "leader does not end on its target", tuple(end), where))
+    assert not wrong, wrong
+
+
+def test_no_leader_crosses_another_label_or_piece_of_text(drawn):
+    labels, leaders = _labels_and_leaders(drawn)
+    own = {n: labels[n].get_text() for n in leaders}
+    crossed = []
+    for n, line in leaders.items():
+        p, q = line.get_transform().transform(line.get_xydata())
+        for what, box in _text_boxes(drawn):
+            if what == own[n]:
+                continue
+            if _crosses(p, q, box):
+                crossed.append((own[n], what))
+    assert not crossed, crossed
+
+
+def test_a_crowded_plot_draws_leaders_that_end_on_their_targets():
+    """The bus-capacitor demo puts point labels away from their dots (the limit line and its label take the
+    nearest spots), so the checks above see leaders there; without them they would pass on no leader at all."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    from calcsheet.writers.plot import build_figure
+
+    fig = build_figure(figure_of("demo:bus-capacitor-bleed-down.toml", ROOT))
+    FigureCanvasAgg(fig)
+    fig.draw_without_rendering()
+    labels, leaders = _labels_and_leaders(fig)
+    assert {labels[n].get_text() for n in leaders} >= {"v(60 s)", "v(2 min)"}
