@@ -21,7 +21,6 @@ from calcsheet.source.units import coherent_si, parse_unit, registry, same_dimen
 # nothing stated matches). SI Brochure, 9th edition, table 4 (from memory).
 NAMED = ("V", "A", "W", "N", "Pa", "C", "J", "ohm", "F", "H", "Wb", "T", "S")
 _TOKEN = re.compile(r"[^\W\d_]+|\^-?\d+(?:\.\d+)?|[*/()]|\d+")
-_LATEX_SYMBOL = {"Ω": r"\Omega", "µ": r"\mu "}
 WHAT = {
     "argument": "argument of {function}",
     "exponent": "exponent",
@@ -45,7 +44,8 @@ class UnitNames:
         rate = (ureg.Quantity(1, unknown) / ureg.Quantity(1, variable)).units
         self.rate = rate
         stated = [unknown, rate, *self.of_name.values(), variable]
-        self.candidates = stated + [ureg.Unit(name) for name in NAMED]
+        named = [ureg.Unit(name) for name in NAMED]
+        self.candidates = stated + named + [unit / variable for unit in named]  # W/m along a pipe
 
     def of_node(self, node: ex.Node, si) -> str:
         """The unit of one factor or term: ``si`` is its unit as the check saw it (SI base units)."""
@@ -68,9 +68,23 @@ class UnitNames:
         return unit_label(si)
 
 
+BASE = (("[mass]", "kg"), ("[length]", "m"), ("[time]", "s"), ("[current]", "A"), ("[temperature]", "K"))
+BASE += (("[substance]", "mol"), ("[luminosity]", "cd"))
+
+
 def base_units(si) -> str:
-    """A unit in SI base units, as the last column writes it ('1' for a pure number)."""
-    return unit_label(registry().Quantity(1, si).to_base_units().units) or "1"
+    """A unit's dimension in SI base units, as the last column writes it: kg*m^2/(s^3*A), '1' for a pure
+    number. Written from pint's dimensionality, so a radian (a pure number in SI) never tells two terms apart."""
+    dimensionality = registry().Quantity(1, si).dimensionality
+    up, down = [], []
+    for dimension, symbol in BASE:
+        exponent = dimensionality.get(dimension, 0)
+        power = f"{symbol}^{abs(exponent):g}" if abs(exponent) != 1 else symbol
+        (up if exponent > 0 else down if exponent < 0 else []).append(power)
+    text = "*".join(up) or "1"
+    if down:
+        text += "/" + (down[0] if len(down) == 1 else "(" + "*".join(down) + ")")
+    return text
 
 
 def unit_math(label: str) -> Math:
@@ -84,7 +98,7 @@ def unit_math(label: str) -> Math:
         elif token in "/()" or token.isdigit():
             parts.append(token)
         else:
-            parts.append(r"\mathrm{" + "".join(_LATEX_SYMBOL.get(c, c) for c in token) + "}")
+            parts.append(r"\text{" + token + "}")  # upright in MathML too, where a lone letter in \mathrm is not
     return Math("".join(parts), label)
 
 
