@@ -138,6 +138,7 @@ def test_each_term_has_the_dimension_pint_finds(source, tmp_path):
             assert UREG.Quantity(1, row["unit"].replace("Ω", "ohm")).dimensionality == expected.dimensionality
         first = UREG.Quantity(1, rows[0]["base_units"] if rows[0]["base_units"] != "1" else "")
         assert all(UREG.Quantity(1, r["base_units"]).dimensionality == first.dimensionality for r in rows[1:])
+        assert len({r["base_units"] for r in rows}) == 1, "the agreement line says each term reads the same"
 
 
 def _as_model(model, law):
