@@ -14,6 +14,7 @@ import sympy as sp
 from calcsheet.formatting import number
 from calcsheet.kinds.base import KindUse
 from calcsheet.source import expressions as ex
+from calcsheet.source.dimensions import EquationUnits
 
 
 @dataclass(frozen=True)
@@ -220,6 +221,7 @@ class IntervalLaw:
     parameters: tuple["Parameter", ...]
     kind: KindUse | None = None  # when the input named a model kind
     unused_parameters: tuple[str, ...] = ()
+    units_check: EquationUnits | None = None  # what the unit check of the equation found, term by term
 
     def fields(self) -> dict:
         """The Model fields this law sets, by name (for dataclasses.replace)."""
@@ -278,6 +280,7 @@ class Model:
     unused_parameters: tuple[str, ...] = field(default=())
     overrides: tuple[Override, ...] = ()  # --set: a what-if, not the issued design
     linearise: LineariseRequest | None = None  # [linearise]: a non-linear equation, linearised before it is solved
+    units_check: EquationUnits | None = None  # what the loader's unit check found, term by term (source/dimensions)
 
     @property
     def residual(self) -> sp.Expr:

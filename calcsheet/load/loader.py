@@ -297,7 +297,7 @@ class _Builder:
         errors.raise_any()
         if symbolic is None:  # every part above reports its own error; this is a guard only
             raise InputError("the model could not be read", "model")
-        lhs, rhs, unused = symbolic
+        lhs, rhs, unused, units_check = symbolic
         in_limits = set().union(*(ex.names_in(c.limit_node) for c in criteria if c.limit_node is not None))
         unused = tuple(name for name in unused if name not in in_limits)
         model = Model(
@@ -323,6 +323,7 @@ class _Builder:
             plot_to=plot_to,
             kind=kind,
             linearise=linearise,
+            units_check=units_check,
         )
         return replace(model, switches=self.switches(model)) if self.original.get("switch") else model
 
@@ -1113,7 +1114,9 @@ def _symbolic_equation(
     si[unknown.name] = units.si_unit(unknown.unit)
     si[variable.name] = units.si_unit(variable.unit)
     rate = (units.registry().Quantity(1, si[unknown.name]) / units.registry().Quantity(1, si[variable.name])).units
-    check_equation(equation, lambda n: si[n] if n in si else units.registry().dimensionless, lambda d: rate)
+    units_check = check_equation(
+        equation, lambda n: si[n] if n in si else units.registry().dimensionless, lambda d: rate
+    )
     absolute = {p.name: p.text for p in parameters if units.is_offset(p.quantity.units)}
     if units.is_offset(unknown.unit):
         absolute[unknown.name] = f"the unknown, in {unknown.unit_text}"
@@ -1134,7 +1137,7 @@ def _symbolic_equation(
     lhs = to_sympy(equation.left, symbols, lambda d: derivative)
     rhs = to_sympy(equation.right, symbols, lambda d: derivative)
     unused = tuple(sorted(set(known) - used))
-    return lhs, rhs, unused
+    return lhs, rhs, unused, units_check
 
 
 def _refuse_wrong_derivatives(equation: ex.Equation, unknown: Declared, variable: Declared) -> None:
@@ -1177,6 +1180,7 @@ def _law_of(model: Model) -> IntervalLaw:
         parameters=model.parameters,
         kind=model.kind,
         unused_parameters=model.unused_parameters,
+        units_check=model.units_check,
     )
 
 

@@ -34,6 +34,7 @@ from calcsheet.kinds.base import INVALID, START_SLOT, WARNING, Note as KindNote
 from calcsheet.mathtext import derivative_latex, latex, plain
 from calcsheet.sheet import cautions
 from calcsheet.sheet.as_written import equation_latex
+from calcsheet.sheet.dimensions_table import dimension_blocks
 from calcsheet.sheet.criterion_numbers import criterion_numbers, found_text, margin_text, utilisation_text
 from calcsheet.sheet.check_words import check_row, checks_lead, quadrature_words
 from calcsheet.sheet.document import (
@@ -348,10 +349,7 @@ def _governing(d: Derivation, n: _Notation) -> Section:
             ),
             "Initial condition",
         ),
-        Paragraph(
-            "Units were checked on every additive term of the equation and on every function argument; "
-            "all terms share one dimension."
-        ),
+        *dimension_blocks(m),
     ]
     unused = [name for name in m.unused_parameters if not (m.kind and name in m.kind.slot_names)]
     if unused:

@@ -12,6 +12,7 @@ from calcsheet.sheet.criterion_numbers import criterion_numbers
 from calcsheet.sheet.check_words import check_row, quadrature_words
 from calcsheet.sheet.quantities import record_value, rounded
 from calcsheet.sheet.derived_words import derived_record, switched_derived_record
+from calcsheet.sheet.dimensions_table import units_check_record
 
 RECORD_FORMAT = "calcsheet-record"
 RECORD_VERSION = 2
@@ -55,6 +56,7 @@ def build_record(d, n) -> dict:
                 "at": record_value(m.initial_at.si, m.variable),
                 "value": record_value(m.initial_value.si, m.unknown),
             },
+            "units_check": units_check_record(m),
         },
         "kind": None
         if m.kind is None
@@ -253,6 +255,7 @@ def _interval_record(interval, record: dict, previous) -> dict:
         "equation": record["model"]["equation"],
         "initial": record["model"]["initial"]["value"],
         "parameters": _parameters_in_force(interval, record["model"]["parameters"], previous),
+        "units_check": record["model"]["units_check"],
         **{key: record[key] for key in INTERVAL_KEYS},
         **({"derived": record["derived"]} if record["derived"] else {}),
     }

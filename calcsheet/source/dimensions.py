@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Callable
 
 from calcsheet.source.pint_import import pint
@@ -13,12 +14,69 @@ from calcsheet.source.units import dimension_text, parse_unit, registry, same_di
 UnitOf = Callable[[str], pint.Unit]
 
 
+@dataclass(frozen=True)
+class Factor:
+    """One factor of a term as written, with its unit as the check saw it (SI base units); ``power`` is 1
+    for a factor multiplied, -1 for one divided by."""
+
+    node: ex.Node
+    unit: pint.Unit
+    power: int
+
+
+@dataclass(frozen=True)
+class TermUnits:
+    """One additive term of an equation as written: its side ('left' or 'right'), its sign, its factors and
+    the unit of the whole term (SI base units)."""
+
+    side: str
+    sign: int
+    node: ex.Node
+    factors: tuple[Factor, ...]
+    unit: pint.Unit
+
+
+@dataclass(frozen=True)
+class InnerCheck:
+    """A check made inside a term: the argument of a function, or an exponent, which must be dimensionless
+    (``what`` 'argument' or 'exponent', ``function`` its name), a sum inside a term ('sum'), whose terms
+    must share a unit, or the argument of a square root ('root'), of any unit. ``unit`` is the argument's,
+    exponent's or sum's unit in SI base units."""
+
+    what: str
+    function: str
+    node: ex.Node
+    parts: tuple[Factor, ...]  # an argument's or exponent's factors; a sum's terms (power 1, signs in ``node``)
+    unit: pint.Unit
+
+
+@dataclass(frozen=True)
+class EquationUnits:
+    """What the unit check of an equation found: every term with its unit, every check inside the terms in
+    the order met, and the unit all terms share (SI base units)."""
+
+    terms: tuple[TermUnits, ...]
+    inner: tuple[InnerCheck, ...]
+    unit: pint.Unit
+
+
 def check_equation(
     equation: ex.Equation, unit_of: UnitOf, derivative_unit: Callable[[ex.Derivative], pint.Unit]
-) -> pint.Unit:
-    """Check that every additive term on both sides has one dimension; return it."""
-    terms = ex.additive_terms(equation.left) + ex.additive_terms(equation.right)
-    return _common_dimension([node for _, node in terms], _Analyser(unit_of, derivative_unit))
+) -> EquationUnits:
+    """Check that every additive term on both sides has one dimension, and every function argument and
+    exponent none; return what was found, term by term, so a sheet can show the check as it was made."""
+    analyser = _Analyser(unit_of, derivative_unit)
+    sides = [("left", sign, node) for sign, node in ex.additive_terms(equation.left)]
+    sides += [("right", sign, node) for sign, node in ex.additive_terms(equation.right)]
+    unit = _common_dimension([node for _, _, node in sides], analyser)
+    terms = []
+    for side, sign, node in sides:
+        if _is_zero(node):
+            continue  # a literal 0 fits any dimension, and is no term to check
+        if isinstance(node, ex.Unary) and node.op == "-":
+            sign, node = -sign, node.operand
+        terms.append(TermUnits(side, sign, node, analyser.factors(node), analyser.unit(node)))
+    return EquationUnits(tuple(terms), analyser.inner_checks(), unit)
 
 
 def check_expression(
@@ -41,6 +99,30 @@ class _Analyser:
     def __init__(self, unit_of: UnitOf, derivative_unit):
         self.unit_of = unit_of
         self.derivative_unit = derivative_unit
+        self.seen: dict[tuple[str, str, str], InnerCheck] = {}  # each check inside a term once, in order met
+
+    def inner_checks(self) -> tuple[InnerCheck, ...]:
+        return tuple(self.seen.values())
+
+    def note(self, what: str, function: str, node: ex.Node, unit: pint.Unit) -> None:
+        key = (what, function, ex.render(node))
+        if key in self.seen:
+            return
+        if what == "sum":
+            terms = [n for _, n in ex.additive_terms(node) if not _is_zero(n)]
+            parts = tuple(Factor(n.operand if _negated(n) else n, self.unit(n), 1) for n in terms)
+        else:
+            parts = self.factors(node)
+        self.seen[key] = InnerCheck(what, function, node, parts, unit)
+
+    def factors(self, node: ex.Node, power: int = 1) -> tuple[Factor, ...]:
+        """The factors of a product or quotient as written, each with its unit; a pure number is left out."""
+        if isinstance(node, ex.Binary) and node.op in "*/":
+            right_power = power if node.op == "*" else -power
+            return self.factors(node.left, power) + self.factors(node.right, right_power)
+        if isinstance(node, ex.Number):
+            return ()
+        return (Factor(node, self.unit(node), power),)
 
     def unit(self, node: ex.Node) -> pint.Unit:
         ureg = registry()
@@ -59,7 +141,9 @@ class _Analyser:
         if isinstance(node, ex.Call):
             return self.call(node)
         if node.op in "+-":
-            return _common_dimension([n for _, n in ex.additive_terms(node)], self)
+            unit = _common_dimension([n for _, n in ex.additive_terms(node)], self)
+            self.note("sum", "", node, unit)
+            return unit
         if node.op == "*":
             return _product(self.unit(node.left), self.unit(node.right))
         if node.op == "/":
@@ -68,8 +152,11 @@ class _Analyser:
 
     def call(self, node: ex.Call) -> pint.Unit:
         inner = self.unit(node.argument)
-        if node.function in ("sqrt", "abs"):
-            return inner**0.5 if node.function == "sqrt" else inner
+        if node.function == "sqrt":
+            self.note("root", "sqrt", node.argument, inner)  # any dimension: its root is the factor's unit
+            return inner**0.5
+        if node.function == "abs":
+            return inner
         if node.function == "step":  # step(t - t_1): any dimension in, a pure number out
             return registry().dimensionless
         if not _dimensionless(inner):
@@ -77,6 +164,7 @@ class _Analyser:
                 f"the argument of {node.function}() must be dimensionless, but "
                 f"'{ex.render(node.argument)}' has dimension {dimension_text(inner)}"
             )
+        self.note("argument", node.function, node.argument, inner)
         return registry().dimensionless
 
     def power(self, node: ex.Binary) -> pint.Unit:
@@ -87,6 +175,8 @@ class _Analyser:
                 f"the exponent '{ex.render(node.right)}' must be dimensionless, "
                 f"but has dimension {dimension_text(exponent_unit)}"
             )
+        if constant_value(node.right) is None:  # a fixed number needs no check
+            self.note("exponent", "", node.right, exponent_unit)
         if _dimensionless(base):
             return registry().dimensionless
         exponent = constant_value(node.right)
@@ -136,6 +226,10 @@ def _product(a: pint.Unit, b: pint.Unit) -> pint.Unit:
 
 def _dimensionless(unit: pint.Unit) -> bool:
     return not registry().Quantity(1, unit).dimensionality
+
+
+def _negated(node: ex.Node) -> bool:
+    return isinstance(node, ex.Unary) and node.op == "-"
 
 
 def _is_zero(node: ex.Node) -> bool:
