@@ -188,19 +188,26 @@ def reach_blocks(d, switched: bool = False) -> list:
     blocks = []
     closed = [(label, c) for label, c in labelled if c.line is not None]
     if closed:
-        y, x = m.unknown.name, m.variable.name
-        blocks.append(
-            Paragraph(
-                f"By hand: where the response is one exponential approach, {y}({x}) = {y}_inf + "
-                f"({y}_k - {y}_inf)*exp(-({x} - {x}_k)/tau), from {y}_k at {x}_k towards {y}_inf, a level {y} "
-                f"is reached at {x} = {x}_k + tau*ln(({y}_k - {y}_inf)/({y} - {y}_inf)):"
-            )
-        )
-        blocks += [Equation(c.line, label) for label, c in closed]
+        blocks += [Paragraph(_LEAD), _general_line(m)] + [Equation(c.line, label) for label, c in closed]
     scanned = [c for c in checks if c.line is None]
     if scanned:
         blocks.append(Note("method", _method_words(m, scanned, switched)))
     return blocks
+
+
+_LEAD = (
+    "By hand: where the response is one exponential approach, from its value at the interval's start "
+    "towards its final value with time constant tau, a level is first reached at:"
+)
+
+
+def _general_line(m) -> Equation:
+    y, x = m.unknown.name, m.variable.name
+    yk, yi, yl, xk, xl = (sp.latex(sp.Symbol(n)) for n in (f"{y}_k", f"{y}_inf", y, f"{x}_k", x))
+    yi = yi.replace(" inf}", r" \infty}").replace("{inf}", r"{\infty}")
+    tex = rf"{xl} = {xk} + \tau \ln\left(\frac{{{yk} - {yi}}}{{{yl} - {yi}}}\right)"
+    text = f"{x} = {x}_k + tau*ln(({y}_k - {y}_inf)/({y} - {y}_inf))"
+    return Equation(Math(tex, text), "closed form")
 
 
 def _method_words(m, scanned: list[ReachCheck], switched: bool) -> str:
