@@ -13,6 +13,7 @@ import math
 from dataclasses import dataclass
 from decimal import Decimal
 
+import mpmath
 import sympy as sp
 
 from calcsheet.derive.numbers import AT_LEVEL, INTERPOLATED, ROOT_RTOL, ROOT_XTOL, SEARCH_POINTS
@@ -146,11 +147,11 @@ def _digits(value: float, digits: int) -> str:
 
 
 def evaluate_line(parts: dict[str, str]) -> float:
-    """t_k + tau ln((y_k - y_inf)/(y - y_inf)) from the printed numbers."""
-    y_inf = float(parts["y_inf"])
-    return float(parts["t_k"]) + float(parts["tau"]) * math.log(
-        (float(parts["y_k"]) - y_inf) / (float(parts["y"]) - y_inf)
-    )
+    """t_k + tau ln((y_k - y_inf)/(y - y_inf)) from the printed numbers, in 30 digits (mpmath), so that the
+    choice of digits does not hang on the last bit of one platform's logarithm."""
+    with mpmath.workdps(30):
+        n = {k: mpmath.mpf(v) for k, v in parts.items()}
+        return float(n["t_k"] + n["tau"] * mpmath.log((n["y_k"] - n["y_inf"]) / (n["y"] - n["y_inf"])))
 
 
 def _line_math(m, parts: dict[str, str], x_unit: str, y_unit: str, table: str) -> Math:
@@ -189,7 +190,7 @@ def reach_blocks(d, switched: bool = False) -> list:
     closed = [(label, c) for label, c in labelled if c.line is not None]
     if closed:
         blocks += [Paragraph(_LEAD), _general_line(m)] + [Equation(c.line, label) for label, c in closed]
-    scanned = [c for c in checks if c.line is None]
+    scanned = list({c.level.si: c for c in reversed(checks) if c.line is None}.values())[::-1]  # a level once
     if scanned:
         blocks.append(Note("method", _method_words(m, scanned, switched)))
     return blocks
