@@ -121,7 +121,10 @@ def _closed_form_line(m, law: Approach, level, x: float, scale: _Scale, table: s
     """The line with the fewest digits (4 or more) whose numbers give the tabulated value, or None when the
     closed form and the table disagree (then the response is not the approach this module assumes)."""
     y = m.unknown
-    exact = law.start + law.tau * math.log((law.y_start - law.y_inf) / (level.si - law.y_inf))
+    ratio = (law.y_start - law.y_inf) / (level.si - law.y_inf) if level.si != law.y_inf else 0.0
+    if not ratio > 0:  # the level is not between the start and the final value: not this approach's
+        return None
+    exact = law.start + law.tau * math.log(ratio)
     if not math.isclose(exact, x, rel_tol=1e-9, abs_tol=1e-9 * law.tau):
         return None
     target = table.partition(" ")[0]
@@ -133,7 +136,7 @@ def _closed_form_line(m, law: Approach, level, x: float, scale: _Scale, table: s
             "y_inf": _digits(y.shown(law.y_inf), digits),
             "y": _digits(y.shown(level.si), digits),
         }
-        if number(evaluate_line(parts)) == target:
+        if number(_evaluated_or_none(parts)) == target:
             return _line_math(m, parts, scale.unit, y.unit_text, table)
     return None
 
@@ -144,6 +147,14 @@ def _digits(value: float, digits: int) -> str:
         return "0"
     text = f"{value:.{digits}g}"
     return format(Decimal(text).normalize(), "f") if 1e-4 <= abs(value) < 1e7 else text
+
+
+def _evaluated_or_none(parts: dict[str, str]) -> float | None:
+    """None where the rounded numbers leave no logarithm to take (the level rounds onto the final value)."""
+    try:
+        return evaluate_line(parts)
+    except (ZeroDivisionError, TypeError, ValueError):
+        return None
 
 
 def evaluate_line(parts: dict[str, str]) -> float:
