@@ -76,7 +76,7 @@ def _linearised(model: Model) -> Derivation:
 def _numeric(model: Model, cls: Classification, solution: Solution) -> Derivation:
     reach = [abs(p.si) for p in model.evaluate_at] + [abs(model.initial_at.si)]
     y = make_evaluator(model, solution, scale=max(reach + [1.0]))
-    numbers = compute_numbers(model, cls, solution, y)
+    numbers = compute_numbers(model, cls, solution, y, bound_integrals=True)
     start, end = numbers.span
     xs = np.linspace(start, end, CURVE_POINTS)
     curve = tuple((float(x), float(v)) for x, v in zip(xs, y.on_grid(xs)))

@@ -45,6 +45,7 @@ class WindowIntegral:
     antiderivative: sp.Expr | None = None  # with numbers, in the variable
     text: str = ""  # the request as written
     pieces: tuple[WindowIntegral, ...] = ()  # across switches: the integral over each interval, summed
+    bounds: object = None  # IntegralBounds (integral_bounds.py) for the integrals a sheet shows; None elsewhere
 
     @property
     def key(self) -> tuple:

@@ -15,6 +15,7 @@ from calcsheet.derive.classify import Classification
 from calcsheet.derive.evaluate import ResponseEvaluator
 from calcsheet.derive.derived import DerivedCurve, DerivedValues, WindowIntegral, derived_values
 from calcsheet.derive.extremes import Extreme, ExtremeSearch, Piece
+from calcsheet.derive.integral_bounds import bounded
 from calcsheet.derive.integrating_factor import Solution
 from calcsheet.derive.readable import compact
 from calcsheet.errors import ModelRefused
@@ -56,6 +57,15 @@ class Reach:
     x: float | None  # SI; None when not reached
     code: str = REACHED  # why it is not reached, when it is not (see the codes above)
     stop: float | None = None  # SI: where the search stopped, for model_stops and solution_ends
+    bracket: tuple[float, float] | None = None  # SI: the scan's samples either side of the crossing
+    refined: str = ""  # how the crossing was located in its bracket: BRENT or INTERPOLATED
+
+
+# How a crossing is located between the two scanned samples that bracket it (Reach.refined).
+BRENT, INTERPOLATED = "brent", "interpolated"
+# Brent's method stops when the bracket is narrower than ROOT_XTOL times its first width plus ROOT_RTOL
+# times the root (scipy.optimize.brentq's xtol and rtol).
+ROOT_XTOL, ROOT_RTOL = 1e-13, 1e-14
 
 
 @dataclass(frozen=True)
@@ -117,9 +127,11 @@ def compute_numbers(
     solution: Solution,
     y: ResponseEvaluator,
     final: tuple[float | None, str] | None = None,
+    bound_integrals: bool = False,
 ) -> Numbers:
     """``final``: the final value and its code when the caller already has them (derive/margin.py evaluates one
-    symbolic limit for every set of parameter values)."""
+    symbolic limit for every set of parameter values). ``bound_integrals``: give each integral shown its bounds
+    (integral_bounds.py), which only the sheet's own derivation needs."""
     x = model.variable.symbol
     values = model.numeric_values()
     cls = _as_solved(cls, solution, model)
@@ -197,7 +209,9 @@ def compute_numbers(
         not_valid=not_valid,
         extremes=extremes_shown(asked, verdicts),
         derived=derived_values(model, curves, lambda pt: limit is None or pt.si <= limit[0]),
-        integrals=integrals_shown(integrals, verdicts),
+        integrals=bounded(integrals_shown(integrals, verdicts), curves)
+        if bound_integrals
+        else integrals_shown(integrals, verdicts),
     )
 
 
@@ -442,9 +456,10 @@ def reach_for(level: Point, y, grid, samples, final, stop: tuple[str, float] | N
     answer: a response that starts on the level reaches it only if it leaves it and comes back across
     it; a level the response only approaches (its final value) is not reached.
     """
-    x = first_crossing(level.si, y, grid, samples)
-    if x is not None:
-        return Reach(level, x)
+    found = crossing(level.si, y, grid, samples)
+    if found is not None:
+        x, bracket, refined = found
+        return Reach(level, x, bracket=bracket, refined=refined)
     if stop is not None:
         return Reach(level, None, stop[0], stop[1])
     size = max([abs(level.si)] + [abs(float(v)) for v in samples[:1]] + ([abs(final)] if final is not None else []))
@@ -460,6 +475,12 @@ def reach_for(level: Point, y, grid, samples, final, stop: tuple[str, float] | N
 
 def first_crossing(level: float, y, grid, samples) -> float | None:
     """The first crossing of ``level`` on the scanned grid, located with y itself (see reach_for)."""
+    found = crossing(level, y, grid, samples)
+    return None if found is None else found[0]
+
+
+def crossing(level: float, y, grid, samples) -> tuple[float, tuple[float, float], str] | None:
+    """The first crossing, the two scanned points that bracket it, and how it was located between them."""
     samples = np.asarray(samples, dtype=float)
     if len(samples) < 2:
         return None
@@ -477,10 +498,12 @@ def first_crossing(level: float, y, grid, samples) -> float | None:
         return None
     j = int(across[0])
     i = int(clear[clear < j][-1])
-    return _root(lambda s: y(s) - level, float(grid[i]), float(grid[j]), float(gap[i]), float(gap[j]))
+    a, b = float(grid[i]), float(grid[j])
+    root, refined = _root(lambda s: y(s) - level, a, b, float(gap[i]), float(gap[j]))
+    return root, (a, b), refined
 
 
-def _root(g, a: float, b: float, ga_scan: float, gb_scan: float) -> float:
+def _root(g, a: float, b: float, ga_scan: float, gb_scan: float) -> tuple[float, str]:
     """The root of g in [a, b], where the scan saw a clear sign change; Brent's method, bounded in steps.
 
     Should the precise evaluation disagree with the scan at an end (it cannot by more than round-off,
@@ -489,10 +512,17 @@ def _root(g, a: float, b: float, ga_scan: float, gb_scan: float) -> float:
     ga, gb = g(a), g(b)
     if math.isfinite(ga) and math.isfinite(gb) and ga * gb < 0:
         root, info = optimize.brentq(
-            g, a, b, xtol=1e-13 * max(b - a, 1e-300), rtol=1e-14, maxiter=ROOT_ITERATIONS, full_output=True, disp=False
+            g,
+            a,
+            b,
+            xtol=ROOT_XTOL * max(b - a, 1e-300),
+            rtol=ROOT_RTOL,
+            maxiter=ROOT_ITERATIONS,
+            full_output=True,
+            disp=False,
         )
-        return float(root)
-    return a + (b - a) * ga_scan / (ga_scan - gb_scan)
+        return float(root), BRENT
+    return a + (b - a) * ga_scan / (ga_scan - gb_scan), INTERPOLATED
 
 
 def verdict_for(

@@ -14,6 +14,7 @@ import numpy as np
 
 from calcsheet.derive.derivation import Derivation, derive
 from calcsheet.derive.extremes import ExtremeSearch, Piece
+from calcsheet.derive.integral_bounds import bounded
 from calcsheet.derive.numbers import (
     SEARCH_SCALES,
     Numbers,
@@ -79,7 +80,7 @@ def derive_piecewise(model: Model) -> SwitchedDerivation:
         sine=None,
         extremes=extremes_shown(asked, verdicts),
         derived=across_values(model, curves),
-        integrals=integrals_shown(integrals, verdicts),
+        integrals=bounded(integrals_shown(integrals, verdicts), curves),
     )
     checked = sorted({v.at.si for v in values} | {x for x, _ in curve[:: max(len(curve) // 16, 1)]})
     verification = verify_switched(model, intervals, y, checked)

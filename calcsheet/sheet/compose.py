@@ -55,6 +55,7 @@ from calcsheet.sheet.document import (
 )
 from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression, reproducing_expression
 from calcsheet.sheet.figure import response_figure
+from calcsheet.sheet.hand_checks import reach_blocks
 from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_words, whatif_words
 from calcsheet.sheet.derived_words import derived_section, has_derived
 from calcsheet.sheet.linearise_words import accuracy_blocks, linearisation_section
@@ -696,6 +697,7 @@ def _numbers(d: Derivation, n: _Notation) -> Section:
         blocks.append(values_table(m, num.values))
     if num.reach:
         blocks.append(reach_table(m, num.reach))
+    blocks += reach_blocks(d)
     if num.valid_until is not None:
         at, why = num.valid_until
         what = limit_words(m.kind, why)

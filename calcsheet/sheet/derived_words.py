@@ -13,6 +13,7 @@ from calcsheet.derive.derived import CLOSED_FORM, QUAD_RTOL, QUAD_SUBINTERVALS, 
 from calcsheet.derive.verify import bound
 from calcsheet.mathtext import latex, plain
 from calcsheet.sheet.document import Paragraph, Section, Table
+from calcsheet.sheet.hand_checks import integral_bound_blocks, integral_bounds_record
 from calcsheet.sheet.quantities import in_units, numeric_expression, record_value
 
 INTEGRAL_METHOD_WORDS = {
@@ -80,6 +81,7 @@ def derived_section(d, n) -> Section:
             )
     if num.integrals:
         blocks.append(_integrals_table(m, num.integrals))
+        blocks += integral_bound_blocks(m, num.integrals)
     return Section("derived", "Derived quantities", tuple(blocks))
 
 
@@ -127,6 +129,7 @@ def switched_derived_blocks(sd) -> list:
         blocks.append(_extremes_table(m, extremes))
     if num.integrals:
         blocks.append(_integrals_table(m, num.integrals))
+        blocks += integral_bound_blocks(m, num.integrals)
     return blocks
 
 
@@ -217,6 +220,7 @@ def derived_record(d) -> dict:
                 "method": i.method,
                 "error_estimate": None if i.method == CLOSED_FORM else bound(i.error),
                 "text": i.text,
+                "bounds": integral_bounds_record(i, m),
                 **({"pieces": [_piece_record(m, p) for p in i.pieces]} if i.pieces else {}),
             }
             for i in num.integrals

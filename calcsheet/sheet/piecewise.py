@@ -17,6 +17,7 @@ from calcsheet.sheet.compose import (
 from calcsheet.sheet.derived_words import switched_derived_blocks
 from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
+from calcsheet.sheet.hand_checks import reach_blocks
 from calcsheet.sheet.margin_words import has_margin, margin_section
 from calcsheet.sheet.quantities import in_units
 from calcsheet.sheet.record import build_switched_record
@@ -95,6 +96,7 @@ def _across(pd) -> Section:
         blocks.append(values_table(m, num.values))
     if num.reach:
         blocks.append(reach_table(m, num.reach))
+    blocks += reach_blocks(pd, switched=True)
     own = tuple(e for e in num.extremes if not e.of)  # a derived quantity's are with its values below
     if own:
         blocks += extremes_blocks(m, own)

@@ -10,6 +10,7 @@ from calcsheet.derive.verify import bound
 from calcsheet.mathtext import plain
 from calcsheet.sheet.criterion_numbers import criterion_numbers
 from calcsheet.sheet.check_words import check_row, quadrature_words
+from calcsheet.sheet.hand_checks import reach_checks, reach_record
 from calcsheet.sheet.quantities import record_value, rounded
 from calcsheet.sheet.derived_words import derived_record, switched_derived_record
 from calcsheet.sheet.dimensions_table import units_check_record
@@ -102,7 +103,7 @@ def build_record(d, n) -> dict:
             "phase_lag": {"value": rounded(num.sine.phase_lag_deg), "unit": "deg"},
             "transient_below_1_percent_after": record_value(num.sine.settled_after, m.variable),
         },
-        **results_record(m, num),
+        **with_hand_checks(d, results_record(m, num)),
         **derived_record(d),
         "verification": verification_record(d.verification),
         **_linearisation(d),
@@ -165,6 +166,20 @@ def results_record(m, num) -> dict:
         ],
         "extremes": [_extreme(e, m) for e in getattr(num, "extremes", ())],
     }
+
+
+def with_hand_checks(d, results: dict) -> dict:
+    """Each level reached and each reach criterion with its ``hand_check`` (hand_checks.py): the closed-form
+    line with its numbers, or the scan's bracket; both null where the level is not reached."""
+    levels, criteria = reach_checks(d)
+    found = iter(levels)
+    for entry, r in zip(results["reach"], d.numbers.reach):
+        entry["hand_check"] = reach_record(next(found) if r.x is not None else None, d.model.variable)
+    by_place = dict(criteria)
+    for k, entry in enumerate(results["criteria"]):
+        if d.numbers.verdicts[k].criterion.subject == "reach":
+            entry["hand_check"] = reach_record(by_place.get(k), d.model.variable)
+    return results
 
 
 def _limit(criterion, m) -> dict:
@@ -237,7 +252,7 @@ def build_switched_record(sd, interval_records: list[dict]) -> dict:
             for interval, record, previous in zip(sd.intervals, interval_records, before)
         ],
         "across": {
-            **results_record(m, sd.numbers),
+            **with_hand_checks(sd, results_record(m, sd.numbers)),
             **(switched_derived_record(sd) if m.derived else {}),
             "verification": verification_record(sd.verification),
         },
