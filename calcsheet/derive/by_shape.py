@@ -36,10 +36,20 @@ def integrate(expr: sp.Expr, x: sp.Symbol, seconds: float) -> tuple[sp.Expr | No
     """sympy's antiderivative of ``expr`` in ``x`` under a budget of ``seconds``, as ``budget.within`` gives
     it: (antiderivative, True), or (None, False) when the budget ran out. Found once per shape."""
     if expr.free_symbols - {x}:  # only numbers besides x can be made symbols safely
-        return within(seconds, lambda: sp.integrate(expr, x), None)
+        return within(seconds, lambda: _antiderivative(expr, x), None)
     shape, numbers = as_shape(expr)
     key = (sp.srepr(shape), sp.srepr(x), seconds)
     if key not in _integrals:
-        _integrals[key] = within(seconds, lambda: sp.integrate(shape, x), None)
+        _integrals[key] = within(seconds, lambda: _antiderivative(shape, x), None)
     found, done = _integrals[key]
     return (found.xreplace(numbers) if found is not None else None), done
+
+
+def _antiderivative(expr: sp.Expr, x: sp.Symbol) -> sp.Expr | None:
+    """sympy's antiderivative, or None where sympy fails with an error of its own (seen: a TypeError between
+    polynomial elements in its Risch code on the square of a sine-forced response): the caller then integrates
+    numerically, as it does where no closed form exists. A budget running out is a BaseException and passes."""
+    try:
+        return sp.integrate(expr, x)
+    except Exception:
+        return None

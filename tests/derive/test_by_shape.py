@@ -55,3 +55,12 @@ def test_a_form_with_other_symbols_is_integrated_as_it_is():
     k = sp.Symbol("k", positive=True)
     found, done = by_shape.integrate(F(2.0) * sp.exp(-k * t), t, 40.0)
     assert done and sp.simplify(sp.diff(found, t) - F(2.0) * sp.exp(-k * t)) == 0
+
+
+def test_an_error_inside_sympy_means_no_antiderivative_not_a_crash(monkeypatch):
+    def broken(*args, **kwargs):
+        raise TypeError("unsupported operand type(s) for *: 'PolyElement' and 'PolyElement'")
+
+    monkeypatch.setattr(by_shape.sp, "integrate", broken)
+    monkeypatch.setattr(by_shape, "_integrals", {})  # what is found here must not stay for other tests
+    assert by_shape.integrate(F(7.5) * sp.sin(F(1.7) * t) ** 3, t, 40.0) == (None, True)
