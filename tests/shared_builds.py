@@ -14,7 +14,9 @@ monkeypatched writers, environment variables, a fresh process) builds its own.
 
 from __future__ import annotations
 
+import atexit
 import functools
+import shutil
 import tempfile
 from pathlib import Path
 
@@ -28,7 +30,8 @@ DEMOS = tuple(sorted(p.stem for p in DEMO_FOLDER.glob("*.toml") if p.name != "pa
 STARTERS = tuple(sorted(KIND_MODULES))
 STYLES = {"default": None, "example_firm": ROOT / "styles" / "example_firm"}
 
-_STARTER_FOLDER = tempfile.TemporaryDirectory(prefix="calcsheet-starters-")  # removed when the process ends
+_STARTER_FOLDER = Path(tempfile.mkdtemp(prefix="calcsheet-starters-"))
+atexit.register(shutil.rmtree, _STARTER_FOLDER, ignore_errors=True)  # removed when the process ends
 
 
 def input_path(source: str) -> Path:
@@ -38,7 +41,7 @@ def input_path(source: str) -> Path:
         return DEMO_FOLDER / f"{source}.toml"
     if source not in KIND_MODULES:
         raise KeyError(f"no demo or starter named {source!r}")
-    path = Path(_STARTER_FOLDER.name) / f"{source}.toml"
+    path = _STARTER_FOLDER / f"{source}.toml"
     text = starter_text(source)
     if not path.exists() or path.read_text(encoding="utf-8") != text:
         path.write_text(text, encoding="utf-8")
