@@ -3,19 +3,15 @@ the voltage across it is L di/dt, which is V_s - R i for a series RL circuit by 
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import pytest
 
-from calcsheet.pipeline import build_sheet
-
-ROOT = Path(__file__).resolve().parents[2]
+from tests import shared_builds
 
 
 def test_a_switched_coil_states_the_voltage_step_at_each_switch():
     # The valve coil demo: 24 V, 20 ohm, 0.8 H, an extra 60 ohm switched in at 120 ms. Just before the switch
     # L di/dt = 24 - 20 i, just after 24 - 80 i, i being the current at the switch (from the record).
-    built = build_sheet(ROOT / "inputs" / "valve-coil-economiser.toml")
+    built = shared_builds.built("valve-coil-economiser")
     record = built.sheet.record
     current = record["intervals"][1]["initial"]["value"]
     assert record["intervals"][1]["initial"]["unit"] == "A"
@@ -27,16 +23,12 @@ def test_a_switched_coil_states_the_voltage_step_at_each_switch():
 
 
 def test_a_capacitor_keeps_the_stored_energy_wording():
-    built = build_sheet(ROOT / "inputs" / "bus-capacitor-bleed-down.toml")
+    built = shared_builds.built("bus-capacitor-bleed-down")
     assert any("Stored electrical energy" in c for c in built.sheet.cautions)
     assert not any("Inductive energy" in c for c in built.sheet.cautions)
 
 
 @pytest.mark.parametrize("kind", ["series_rl"])
-def test_an_unswitched_coil_gets_the_inductive_note_without_numbers(kind, tmp_path):
-    from calcsheet.kinds.catalogue import starter_text
-
-    path = tmp_path / "coil.toml"
-    path.write_text(starter_text(kind), encoding="utf-8")
-    cautions = build_sheet(path).sheet.cautions
+def test_an_unswitched_coil_gets_the_inductive_note_without_numbers(kind):
+    cautions = shared_builds.sheet(kind).cautions
     assert any(c.startswith("Inductive energy") and "steps from" not in c for c in cautions)

@@ -2,16 +2,13 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
-from calcsheet.pipeline import build_sheet, render
+from calcsheet.pipeline import render
 from calcsheet.sheet.document import Table
-
-ROOT = Path(__file__).resolve().parents[2]
+from tests import shared_builds
 
 
 def test_a_source_of_zero_volts_is_forced_as_written_and_homogeneous_with_the_values():
-    built = build_sheet(ROOT / "inputs" / "bus-capacitor-bleed-down.toml")
+    built = shared_builds.built("bus-capacitor-bleed-down")
     section = next(s for s in built.sheet.sections if s.key == "classification")
     table = next(b for b in section.blocks if isinstance(b, Table))
     forcing = next(row for row in table.rows if row[0] == "Forcing")
@@ -22,7 +19,7 @@ def test_a_source_of_zero_volts_is_forced_as_written_and_homogeneous_with_the_va
 
 
 def test_a_tank_that_overflows_does_not_grow_without_bound():
-    built = build_sheet(ROOT / "inputs" / "equalisation-tank-tracer.toml")
+    built = shared_builds.built("equalisation-tank-tracer")
     text = render(built.sheet, ("txt",))["txt"]
     assert "grows without bound" not in text
     assert "Final value: none within the model: the tank overflows at t = 100.0 min" in text

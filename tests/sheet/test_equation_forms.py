@@ -12,16 +12,13 @@ from pathlib import Path
 import pytest
 import sympy as sp
 
-from calcsheet.kinds import KIND_MODULES
-from calcsheet.kinds.catalogue import starter_text
 from calcsheet.mathtext import display_inner_fractions, latex, plain
-from calcsheet.pipeline import build_sheet
 from calcsheet.sheet.document import Equation
 from calcsheet.sheet.named_groups import groups_for
 from calcsheet.sheet.quantities import numeric_expression
 from calcsheet.source.expressions import parse_expression
 from calcsheet.source.symbolic import to_sympy
-from tests.end_to_end.demo_verdicts import DEMOS
+from tests import shared_builds
 
 ROOT = Path(__file__).resolve().parents[2]
 t, t0, R, L, C, V_s, v_0 = sp.symbols("t t_0 R L C V_s v_0", positive=True)
@@ -102,14 +99,8 @@ def test_a_sum_that_is_zero_within_its_round_off_is_printed_as_zero():
 
 
 @pytest.fixture(scope="module")
-def sheets(tmp_path_factory):
-    folder = tmp_path_factory.mktemp("starters")
-    paths = list(DEMOS)
-    for name in KIND_MODULES:
-        path = folder / f"{name}.toml"
-        path.write_text(starter_text(name), encoding="utf-8")
-        paths.append(path)
-    return {path.stem: build_sheet(path).sheet for path in paths}
+def sheets():
+    return {source: shared_builds.sheet(source) for source in shared_builds.every_source()}
 
 
 def _equations(sheet):

@@ -3,20 +3,16 @@ multiply by hand. The product is checked with pint, independently of calcsheet's
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import pint
 import pytest
 
-from calcsheet.pipeline import build_sheet
 from calcsheet.sheet.document import Equation
-
-ROOT = Path(__file__).resolve().parents[2]
+from tests import shared_builds
 
 
 @pytest.mark.parametrize("demo", ["bus-capacitor-bleed-down", "flange-cool-down"])
 def test_the_time_constant_is_written_out_with_the_input_values(demo):
-    built = build_sheet(ROOT / "inputs" / f"{demo}.toml")
+    built = shared_builds.built(demo)
     numbers = next(s for s in built.sheet.sections if s.key == "numbers")
     line = next(b for b in numbers.blocks if isinstance(b, Equation) and b.label == "time constant")
     by_hand = next(part for part in line.math.text.split(" = ") if "×" in part)

@@ -4,35 +4,18 @@ the digits)."""
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import sympy as sp
 
-from calcsheet.kinds import KIND_MODULES
-from calcsheet.kinds.catalogue import starter_text
-from calcsheet.pipeline import build_sheet
 from calcsheet.sheet.document import Equation, Table
 from calcsheet.source.expressions import parse_expression
 from calcsheet.source.symbolic import to_sympy
-from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
-
-ROOT = Path(__file__).resolve().parents[2]
-DEMOS = DEMO_SHEETS
+from tests import shared_builds
 
 
-def _inputs(tmp_path) -> list[Path]:
-    paths = list(DEMOS)
-    for name in KIND_MODULES:
-        path = tmp_path / f"{name}.toml"
-        path.write_text(starter_text(name), encoding="utf-8")
-        paths.append(path)
-    return paths
-
-
-def test_every_numeric_equation_reproduces_its_values_table(tmp_path):
+def test_every_numeric_equation_reproduces_its_values_table():
     checked = 0
-    for path in _inputs(tmp_path):
-        built = build_sheet(path)
+    for source in shared_builds.every_source():
+        built = shared_builds.built(source)
         model = built.derivation.model
         if model.switches or not built.derivation.solution.closed_form:
             continue
@@ -46,6 +29,6 @@ def test_every_numeric_equation_reproduces_its_values_table(tmp_path):
             continue
         for value, row in zip(built.derivation.numbers.values, table.rows):
             evaluated = complex(sp.N(expr.subs(x, sp.Float(value.at.si, 30)), 30)).real
-            assert model.unknown.text_of(evaluated) == row[1], (path.name, shown, row)
+            assert model.unknown.text_of(evaluated) == row[1], (source, shown, row)
             checked += 1
     assert checked >= 10

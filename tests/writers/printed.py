@@ -1,32 +1,29 @@
 """Every sheet the tool can print, printed: each demo and each `calcsheet new` starter, in the default style
-and the example house style, as PDF bytes built once per test process; and where each block of the Sheet
-lands on the pages, read back by poppler's pdftotext (an outside reader), not from our layout.
+and the example house style, as PDF bytes; and where each block of the Sheet lands on the pages, read back by
+poppler's pdftotext (an outside reader), not from our layout.
 
-The page tests share this so that one worker builds each PDF once (pytest runs one file per worker).
+The page tests share this; the PDFs come from tests/shared_builds.py, so that a test process builds each once,
+whichever test files it runs.
 """
 
 from __future__ import annotations
 
-import functools
 import re
 import shutil
 import subprocess
-import tempfile
 import unicodedata
 from dataclasses import dataclass
 from pathlib import Path
 
-from calcsheet.kinds import KIND_MODULES
-from calcsheet.kinds.catalogue import starter_text
-from calcsheet.pipeline import build_sheet, render
 from calcsheet.sheet import document as doc
 from calcsheet.sheet.quantities import trade_units
 from calcsheet.writers.visible_text import visible
+from tests import shared_builds
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMOS = tuple(sorted(p.stem for p in (ROOT / "inputs").glob("*.toml") if p.name != "package.toml"))
-STARTERS = tuple(sorted(KIND_MODULES))
-STYLES = {"default": None, "example_firm": ROOT / "styles" / "example_firm"}
+DEMOS = shared_builds.DEMOS
+STARTERS = shared_builds.STARTERS
+STYLES = shared_builds.STYLES
 POPPLER = all(shutil.which(tool) for tool in ("pdftotext", "pdftoppm", "pdftocairo"))
 
 
@@ -36,17 +33,10 @@ class Printed:
     pdf: bytes
 
 
-@functools.lru_cache(maxsize=None)
 def printed(source: str, style: str) -> Printed:
-    """A demo (by its file's stem) or a starter (by its kind's name) built and printed in a style."""
-    if source in DEMOS:
-        built = build_sheet(ROOT / "inputs" / f"{source}.toml")
-    else:
-        with tempfile.TemporaryDirectory() as folder:
-            path = Path(folder) / f"{source}.toml"
-            path.write_text(starter_text(source), encoding="utf-8")
-            built = build_sheet(path)
-    return Printed(built.sheet, render(built.sheet, ("pdf",), STYLES[style])["pdf"])
+    """A demo (by its file's stem) or a starter (by its kind's name) built and printed in a style, once per
+    test process (tests/shared_builds.py)."""
+    return Printed(shared_builds.sheet(source), shared_builds.rendered(source, "pdf", style))
 
 
 def poppler_warnings(pdf: bytes, folder: Path) -> list[str]:

@@ -18,15 +18,12 @@ common practice, no source; the 6 pt figure is from memory.
 from __future__ import annotations
 
 import dataclasses
+import functools
 import re
-from pathlib import Path
 
-from calcsheet.kinds import KIND_MODULES
-from calcsheet.kinds.catalogue import starter_text
-from calcsheet.pipeline import build_sheet
 from calcsheet.sheet.document import Equation, Math
 from calcsheet.writers import pdf, svgmath
-from tests.end_to_end.demo_verdicts import DEMOS
+from tests import shared_builds
 
 SMALLEST_CAP_HEIGHT_PT = 4.4
 PT_PER_PX = 0.75  # CSS px are 1/96 in, as WeasyPrint lays them out
@@ -36,6 +33,7 @@ _PATH = re.compile(r'<path d="([^"]*)"')
 _USE = re.compile(r'<use href="#([^"]+)"[^>]*height="([^"]+)"')
 
 
+@functools.lru_cache(maxsize=None)
 def measured_svg(latex: str, size: float = svgmath.FONT_SIZE) -> str:
     """The equation laid out as the PDF writer lays it out (its settings and ziamath_rows' patch in force), with
     glyphs as <symbol>/<use> pairs, whose scale can be read; only the form of the glyphs differs."""
@@ -56,6 +54,7 @@ def glyph_scales(svg: str) -> list[float]:
     return [float(height) / heights[name] for name, height in _USE.findall(svg)]
 
 
+@functools.lru_cache(maxsize=None)
 def cap_height_per_em() -> float:
     """The font's cap height over its em, measured on the ink of an "H" set at 100 px."""
     svg = measured_svg("H", 100.0)
@@ -64,6 +63,7 @@ def cap_height_per_em() -> float:
     return (max(ys) - min(ys)) * scale / 100.0
 
 
+@functools.lru_cache(maxsize=None)
 def smallest_cap_height_pt(latex: str, display: bool) -> float:
     """The smallest cap height at print, in pt, of any glyph of one equation as the PDF writer sets it."""
     lines, scale = svgmath.lines_for(latex, pdf.EQUATION_WIDTH_PX) if display else ([latex], 1.0)
@@ -85,15 +85,6 @@ def every_math(node, display: bool = False):
             yield from every_math(item)
 
 
-def _sheets(tmp_path) -> list[Path]:
-    paths = list(DEMOS)
-    for name in KIND_MODULES:
-        path = tmp_path / f"{name}.toml"
-        path.write_text(starter_text(name), encoding="utf-8")
-        paths.append(path)
-    return paths
-
-
 def test_the_measure_sees_a_second_level_script():
     """The measure itself: a fraction in a superscript is refused, a plain power is not."""
     assert smallest_cap_height_pt(r"e^{\frac{t}{R C}}", True) < SMALLEST_CAP_HEIGHT_PT
@@ -101,14 +92,13 @@ def test_the_measure_sees_a_second_level_script():
     assert smallest_cap_height_pt(r"x_{\mathrm{in}}", True) >= SMALLEST_CAP_HEIGHT_PT
 
 
-def test_every_equation_of_every_demo_and_starter_is_legible_at_print_size(tmp_path):
+def test_every_equation_of_every_demo_and_starter_is_legible_at_print_size():
     too_small, seen = [], 0
-    for path in _sheets(tmp_path):
-        sheet = build_sheet(path).sheet
-        for latex, display in sorted(set(every_math(sheet))):
+    for source in shared_builds.every_source():  # an equation two sheets print is measured once (cached above)
+        for latex, display in sorted(set(every_math(shared_builds.sheet(source)))):
             seen += 1
             size = smallest_cap_height_pt(latex, display)
             if size < SMALLEST_CAP_HEIGHT_PT:
-                too_small.append(f"{path.name}: {size:.2f} pt in {latex}")
+                too_small.append(f"{source}.toml: {size:.2f} pt in {latex}")
     assert seen > 100
     assert not too_small, "\n".join(too_small)

@@ -13,6 +13,7 @@ from pypdf import PdfReader
 from calcsheet.pipeline import build_sheet, render
 from calcsheet.sheet.document import Equation
 from calcsheet.writers import pdf, svgmath
+from tests import shared_builds
 from tests.end_to_end.demo_verdicts import DEMOS as DEMO_SHEETS
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -24,12 +25,12 @@ CONTENT_MM = 210 - 2 * 16
 
 @pytest.fixture(scope="module")
 def sheets():
-    return {demo.stem: build_sheet(demo).sheet for demo in DEMOS}
+    return {demo.stem: shared_builds.sheet(demo.stem) for demo in DEMOS}
 
 
 @pytest.fixture(scope="module")
-def pdfs(sheets):
-    return {name: render(sheet, ("pdf",))["pdf"] for name, sheet in sheets.items()}
+def pdfs():
+    return {demo.stem: shared_builds.rendered(demo.stem, "pdf") for demo in DEMOS}
 
 
 def test_equation_column_fits_inside_the_page():
@@ -136,8 +137,7 @@ def test_signoff_and_revisions_from_the_input(tmp_path):
 
 def test_house_style_overrides_and_inherits(tmp_path):
     style = ROOT / "styles" / "example_firm"
-    sheet = build_sheet(DEMOS[0]).sheet
-    html = render(sheet, ("html",), style)["html"]
+    html = render(shared_builds.sheet(DEMOS[0].stem), ("html",), style)["html"]
     assert "Northgate Consulting Engineers" in html  # the firm's title block
     assert "Step 9" in html and "Sign-off" in html  # inherited from the default template
     assert "--ink: #12263a" in html and "--pass: #1d6b35" in html  # firm CSS after the default CSS

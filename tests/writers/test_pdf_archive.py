@@ -13,7 +13,8 @@ from click.testing import CliRunner
 from pypdf import PdfReader
 
 from calcsheet.cli import main
-from calcsheet.pipeline import build_sheet, render
+from calcsheet.pipeline import render
+from tests import shared_builds
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
@@ -21,8 +22,8 @@ DEMO = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
 
 @pytest.fixture(scope="module")
 def archived():
-    built = build_sheet(DEMO)
-    return built.sheet, render(built.sheet, ("pdf", "json"), None, DEMO)
+    sheet = shared_builds.sheet(DEMO.stem)
+    return sheet, render(sheet, ("pdf", "json"), None, DEMO)
 
 
 def test_the_archival_pdf_carries_the_input_and_the_record_byte_for_byte(archived):

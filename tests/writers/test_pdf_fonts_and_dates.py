@@ -16,11 +16,11 @@ import pytest
 from fontTools.ttLib import TTFont
 from pypdf import PdfReader
 
-from calcsheet.pipeline import build_sheet
 from calcsheet.sheet.compose import sheet_labels, title_block
 from calcsheet.sheet.document import Outcome, Sheet
 from calcsheet.writers import fonts, pdf
 from calcsheet.writers.plot import figure_svg
+from tests import shared_builds
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "inputs" / "bus-capacitor-bleed-down.toml"
@@ -36,7 +36,7 @@ FACE_OF_NAME = {
 
 @pytest.fixture(scope="module")
 def sheet():
-    return build_sheet(DEMO).sheet
+    return shared_builds.sheet(DEMO.stem)
 
 
 @pytest.fixture(scope="module")

@@ -4,18 +4,15 @@ text extraction finds them (read back with pypdf, an outside library)."""
 from __future__ import annotations
 
 import io
-from pathlib import Path
 
 from pypdf import PdfReader
 
-from calcsheet.pipeline import build_sheet, render
-
-ROOT = Path(__file__).resolve().parents[2]
+from tests import shared_builds
 
 
 def test_every_displayed_equation_of_a_sheet_can_be_found_in_the_pdf_text():
-    built = build_sheet(ROOT / "inputs" / "bus-capacitor-bleed-down.toml")
-    pdf = render(built.sheet, ("pdf",))["pdf"]
+    built = shared_builds.built("bus-capacitor-bleed-down")
+    pdf = shared_builds.rendered("bus-capacitor-bleed-down", "pdf")
     text = "".join(page.extract_text() for page in PdfReader(io.BytesIO(pdf)).pages)
     flat = " ".join(text.split())
     equations = [b.math.text for s in built.sheet.sections for b in s.blocks if type(b).__name__ == "Equation"]

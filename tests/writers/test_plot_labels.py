@@ -8,45 +8,29 @@ so the test sees what a reader sees, not the placer's estimate of it.
 from __future__ import annotations
 
 import math
-from pathlib import Path
 
 import pytest
 
-from calcsheet.kinds import KIND_MODULES
-from calcsheet.kinds.catalogue import starter_text
+from calcsheet.sheet.document import Figure
+from tests import shared_builds
 
-ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted(p for p in (ROOT / "inputs").glob("*.toml") if p.name != "package.toml")
-CASES = [f"demo:{p.name}" for p in DEMOS] + [f"starter:{k}" for k in KIND_MODULES]
+CASES = list(shared_builds.every_source())
 GAP_PX = 0.0  # boxes may touch, not overlap
 
 
-def figure_of(case: str, tmp: Path):
-    """The response Figure of a demo or a starter: loaded, derived and composed as the pipeline does (the
-    tolerance study is left out: the plot does not show it)."""
-    from calcsheet.derive.derivation import derive
-    from calcsheet.derive.piecewise import derive_piecewise
-    from calcsheet.load.loader import load_model
-    from calcsheet.pipeline import upstream_results
-    from calcsheet.sheet.figure import response_figure
-
-    kind, name = case.split(":", 1)
-    if kind == "demo":
-        path = ROOT / "inputs" / name
-    else:
-        path = tmp / f"{name}.toml"
-        path.write_text(starter_text(name), encoding="utf-8")
-    model = load_model(path, (), upstream_results(path, {}))  # a package's sheet takes its upstream results
-    return response_figure(derive_piecewise(model) if model.switches else derive(model))
+def figure_of(source: str) -> Figure:
+    """The response Figure a demo's or a starter's sheet draws, as the pipeline composed it."""
+    response = next(s for s in shared_builds.sheet(source).sections if s.key == "response")
+    return next(block for block in response.blocks if isinstance(block, Figure))
 
 
 @pytest.fixture(scope="module", params=CASES)
-def drawn(request, tmp_path_factory):
+def drawn(request):
     from matplotlib.backends.backend_agg import FigureCanvasAgg
 
     from calcsheet.writers.plot import build_figure
 
-    fig = build_figure(figure_of(request.param, tmp_path_factory.mktemp("starter")))
+    fig = build_figure(figure_of(request.param))
     FigureCanvasAgg(fig)  # a renderer to measure text with (the same fonts the SVG draws as paths)
     fig.draw_without_rendering()  # the layout the SVG is saved from
     return fig
@@ -255,7 +239,7 @@ def test_a_crowded_plot_draws_leaders_that_end_on_their_targets():
 
     from calcsheet.writers.plot import build_figure
 
-    fig = build_figure(figure_of("demo:bus-capacitor-bleed-down.toml", ROOT))
+    fig = build_figure(figure_of("bus-capacitor-bleed-down"))
     FigureCanvasAgg(fig)
     fig.draw_without_rendering()
     labels, leaders = _labels_and_leaders(fig)

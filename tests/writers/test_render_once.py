@@ -8,14 +8,15 @@ from collections import Counter
 
 import pytest
 
-from calcsheet.pipeline import build_sheet, render
+from calcsheet.pipeline import render
 from calcsheet.writers import mathml, plot, svgmath
+from tests import shared_builds
 from tests.end_to_end.demo_verdicts import DEMOS
 
 
 @pytest.fixture(scope="module")
 def sheet():
-    return build_sheet(DEMOS[0]).sheet
+    return shared_builds.sheet(DEMOS[0].stem)  # the drawing caches are cleared below, not the build
 
 
 def test_the_plot_and_each_equation_are_drawn_once_for_all_four_formats(sheet, monkeypatch):
