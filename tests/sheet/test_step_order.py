@@ -5,39 +5,14 @@ every sheet; on a switched sheet the criteria table closes the results across th
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import pytest
 
-from calcsheet.kinds import KIND_MODULES
-from calcsheet.kinds.catalogue import starter_text
+from tests import shared_builds
 
-ROOT = Path(__file__).resolve().parents[2]
-DEMOS = sorted(p for p in (ROOT / "inputs").glob("*.toml") if p.name != "package.toml")
-CASES = [f"demo:{p.name}" for p in DEMOS] + [f"starter:{k}" for k in KIND_MODULES]
+CASES = list(shared_builds.every_source())
 ANSWERED_FROM = ("numbers", "extremes", "derived")  # the steps that work out what a criterion is answered from
 AFTER_THE_VERDICTS = ("margin", "verification")
 CRITERIA = "Acceptance criteria"
-
-
-def _composed(case: str, tmp: Path):
-    from calcsheet.derive.derivation import derive
-    from calcsheet.derive.piecewise import derive_piecewise
-    from calcsheet.load.loader import load_model
-    from calcsheet.pipeline import upstream_results
-    from calcsheet.sheet.compose import compose
-    from calcsheet.sheet.piecewise import compose_piecewise
-
-    kind, name = case.split(":", 1)
-    path = ROOT / "inputs" / name if kind == "demo" else tmp / f"{name}.toml"
-    if kind == "starter":
-        path.write_text(starter_text(name), encoding="utf-8")
-    model = load_model(path, (), upstream_results(path, {}))
-    if model.switches:
-        d = derive_piecewise(model)
-        return d, compose_piecewise(d)
-    d = derive(model)
-    return d, compose(d)
 
 
 def _holding_criteria(sheet):
@@ -45,8 +20,9 @@ def _holding_criteria(sheet):
 
 
 @pytest.mark.parametrize("case", CASES)
-def test_the_criteria_come_after_every_value_they_are_answered_from(case, tmp_path):
-    d, sheet = _composed(case, tmp_path)
+def test_the_criteria_come_after_every_value_they_are_answered_from(case):
+    built = shared_builds.built(case)  # as the pipeline builds it, the tolerance study included
+    d, sheet = built.derivation, built.sheet
     holding = _holding_criteria(sheet)
     if not d.numbers.verdicts:
         assert not holding
@@ -79,10 +55,9 @@ def test_the_discharge_sheet_defines_its_power_and_energy_before_the_criteria_us
     """The demo where two criteria (the peak power and the energy of one discharge) are answered from the
     derived quantities: in the text record, their step and its numbers come before the criteria's step, and
     the lead-in of the criteria step names the steps by the numbers the headings carry."""
-    from calcsheet.pipeline import build_sheet
     from calcsheet.writers.text_record import write
 
-    sheet = build_sheet(ROOT / "inputs" / "discharge-resistor-rating.toml").sheet
+    sheet = shared_builds.sheet("discharge-resistor-rating")
     record = write(sheet)
     lines = record.splitlines()
     heading = {line.split(". ", 1)[1].rstrip(" ="): line for line in lines if line.startswith("== STEP ")}
