@@ -25,4 +25,4 @@ def test_a_tank_that_overflows_does_not_grow_without_bound():
     built = build_sheet(ROOT / "inputs" / "equalisation-tank-tracer.toml")
     text = render(built.sheet, ("txt",))["txt"]
     assert "grows without bound" not in text
-    assert "Final value: none within the model: the tank overflows at t = 100.0 min" in text
+    assert "Final value: none within the model: the tank overflows at t = 100 min" in text
