@@ -93,7 +93,8 @@ def test_pint_reads_an_equation_unit_back(unit):
         (47.4523, "47.45"),  # computed: 4 significant figures
         (2.50004, "2.500"),  # rounded: the zeros are figures
         (0.99999, "1.000"),
-        (-1.0e-5, "-1.000e-5"),
+        (-1.0e-5, "-1e-5"),  # exact: no padding in scientific form either
+        (-1.00004e-5, "-1.000e-5"),
     ],
 )
 def test_one_number_rule(value, shown):
