@@ -2,14 +2,12 @@
 
 from __future__ import annotations
 
-import re
-
 import sympy as sp
 from sympy.core.function import AppliedUndef
 from sympy.printing.latex import LatexPrinter
 from sympy.printing.str import StrPrinter
 
-_WORD_SUBSCRIPT = re.compile(r"^([A-Za-z]+)_([A-Za-z][A-Za-z0-9]+)$")
+from calcsheet.symbol_spelling import symbol_tex
 
 
 def _positive_first(terms: list) -> list:
@@ -56,9 +54,12 @@ class _SheetLatexPrinter(LatexPrinter):
     Every exponential is written exp(...), one notation on a sheet, so its argument is set at full size
     instead of as a superscript whose fraction and subscripts would print at 4 pt. A fraction inside a
     fraction keeps the display size (dfrac) for the same reason. A sum starts with a positive term
-    (v_0 - V_s). A word subscript (T_air) is set upright, as descriptive subscripts are (ISO 80000-2;
-    from memory).
+    (v_0 - V_s). Every symbol, a function's name too (T_n(t)), is spelled as symbol_spelling.py says: a
+    descriptive subscript upright (T_air, c_p), T_inf with the sign infinity, eps as epsilon.
     """
+
+    def _hprint_Function(self, func: str) -> str:
+        return symbol_tex(func) or super()._hprint_Function(func)
 
     def _print_exp(self, expr, exp=None):
         argument = self._on_the_line(expr.args[0])
@@ -136,7 +137,7 @@ class _SheetLatexPrinter(LatexPrinter):
     def _print_Symbol(self, expr, style="plain"):
         if expr in self._settings["symbol_names"]:
             return self._settings["symbol_names"][expr]
-        return symbol_latex(expr.name) if _WORD_SUBSCRIPT.match(expr.name) else super()._print_Symbol(expr, style)
+        return symbol_tex(expr.name) or super()._print_Symbol(expr, style)
 
 
 def display_inner_fractions(tex: str) -> str:
@@ -196,9 +197,6 @@ def derivative_latex(unknown: str, variable: str) -> str:
 
 
 def symbol_latex(name: str) -> str:
-    """LaTeX of a bare name: sympy's form, with a word subscript set upright (T_air)."""
-    match = _WORD_SUBSCRIPT.match(name)
-    if match:
-        base, subscript = match.groups()
-        return rf"{sp.latex(sp.Symbol(base))}_{{\mathrm{{{subscript}}}}}"
-    return sp.latex(sp.Symbol(name))
+    """LaTeX of a bare name as symbol_spelling.py spells it (T_inf with the sign infinity, c_p with an upright p),
+    or sympy's form for a name it does not spell."""
+    return symbol_tex(name) or sp.latex(sp.Symbol(name))

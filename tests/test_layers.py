@@ -10,6 +10,7 @@ PACKAGE = Path(__file__).resolve().parents[1] / "calcsheet"
 ORDER = [
     "errors",
     "formatting",
+    "symbol_spelling",
     "mathtext",
     "subjects",
     "input_keys",

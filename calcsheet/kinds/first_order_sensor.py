@@ -45,8 +45,8 @@ KIND = Kind(
     equation="tau*dT/dt + T = K*T_m",
     law_steps=(
         (r"\tau \frac{dy}{dt} + y = K\, u", "tau*dy/dt + y = K*u   (first-order lag)"),
-        (r"y = T, \quad u = T_{m}", "y = T, u = T_m   (reading and measured temperature)"),
-        (r"\tau \frac{dT}{dt} + T = K\, T_{m}", "tau*dT/dt + T = K*T_m"),
+        (r"y = T, \quad u = T_{\mathrm{m}}", "y = T, u = T_m   (reading and measured temperature)"),
+        (r"\tau \frac{dT}{dt} + T = K\, T_{\mathrm{m}}", "tau*dT/dt + T = K*T_m"),
     ),
     assumptions=(
         "The probe behaves as a single first-order lag with a constant time constant tau; heat conducted "

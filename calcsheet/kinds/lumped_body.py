@@ -43,13 +43,17 @@ KIND = Kind(
     ),
     equation="rho*c_p*V*dT/dt = Q - h*A*(T - T_inf)",
     law_steps=(
-        (r"\frac{dE}{dt} = \dot{Q}_{in} - \dot{Q}_{conv}", "dE/dt = Q_in - Q_conv   (energy balance on the body)"),
         (
-            r"E = \rho\, c_{p} V\, T, \quad \dot{Q}_{in} = Q, \quad \dot{Q}_{conv} = h A \left(T - T_{\infty}\right)",
+            r"\frac{dE}{dt} = \dot{Q}_{\mathrm{in}} - \dot{Q}_{\mathrm{conv}}",
+            "dE/dt = Q_in - Q_conv   (energy balance on the body)",
+        ),
+        (
+            r"E = \rho\, c_{\mathrm{p}} V\, T, \quad \dot{Q}_{\mathrm{in}} = Q, \quad "
+            r"\dot{Q}_{\mathrm{conv}} = h A \left(T - T_{\infty}\right)",
             "E = rho*c_p*V*T, Q_in = Q, Q_conv = h*A*(T - T_inf)   (stored heat; Newton's law of cooling)",
         ),
         (
-            r"\rho\, c_{p} V \frac{dT}{dt} = Q - h A \left(T - T_{\infty}\right)",
+            r"\rho\, c_{\mathrm{p}} V \frac{dT}{dt} = Q - h A \left(T - T_{\infty}\right)",
             "rho*c_p*V*dT/dt = Q - h*A*(T - T_inf)",
         ),
     ),

@@ -52,10 +52,13 @@ KIND = Kind(
     law_steps=(
         (r"\frac{dV}{dt} = q_{\mathrm{in}} - q_{\mathrm{out}}", "dV/dt = q_in - q_out   (continuity)"),
         (
-            r"V = A\,h, \quad q_{\mathrm{out}} = C_{d}\, a_{o} \sqrt{2 g h}",
+            r"V = A\,h, \quad q_{\mathrm{out}} = C_{\mathrm{d}}\, a_{\mathrm{o}} \sqrt{2 g h}",
             "V = A*h, q_out = C_d*a_o*sqrt(2*g*h)   (constant plan area; Torricelli's law)",
         ),
-        (r"A \frac{dh}{dt} = q_{\mathrm{in}} - C_{d}\, a_{o} \sqrt{2 g h}", "A*dh/dt = q_in - C_d*a_o*sqrt(2*g*h)"),
+        (
+            r"A \frac{dh}{dt} = q_{\mathrm{in}} - C_{\mathrm{d}}\, a_{\mathrm{o}} \sqrt{2 g h}",
+            "A*dh/dt = q_in - C_d*a_o*sqrt(2*g*h)",
+        ),
     ),
     assumptions=(
         "The plan area A is the same at every level; the orifice discharges freely to the air (not submerged).",

@@ -39,14 +39,17 @@ KIND = Kind(
     equation="m_dot*c_p*dT/dx = -U*P*(T - T_s)",
     law_steps=(
         (
-            r"\dot{m}\, c_{p} \left(T(x + dx) - T(x)\right) = -\delta\dot{Q}",
+            r"\dot{m}\, c_{\mathrm{p}} \left(T(x + dx) - T(x)\right) = -\delta\dot{Q}",
             "m_dot*c_p*(T(x + dx) - T(x)) = -dQ   (steady-flow energy balance on the slice dx)",
         ),
         (
-            r"\delta\dot{Q} = U P\, dx \left(T - T_{s}\right)",
+            r"\delta\dot{Q} = U P\, dx \left(T - T_{\mathrm{s}}\right)",
             "dQ = U*P*dx*(T - T_s)   (heat through the wall area P*dx)",
         ),
-        (r"\dot{m}\, c_{p} \frac{dT}{dx} = -U P \left(T - T_{s}\right)", "m_dot*c_p*dT/dx = -U*P*(T - T_s)"),
+        (
+            r"\dot{m}\, c_{\mathrm{p}} \frac{dT}{dx} = -U P \left(T - T_{\mathrm{s}}\right)",
+            "m_dot*c_p*dT/dx = -U*P*(T - T_s)",
+        ),
     ),
     assumptions=(
         "Steady flow; the fluid's temperature is uniform over each cross-section (bulk temperature).",

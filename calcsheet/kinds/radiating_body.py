@@ -49,18 +49,18 @@ KIND = Kind(
     equation="m*c_p*dT/dt = Q - h*A*(T - T_inf) - eps*sigma*A*(T^4 - T_sur^4)",
     law_steps=(
         (
-            r"\frac{dE}{dt} = \dot{Q}_{in} - \dot{Q}_{conv} - \dot{Q}_{rad}",
+            r"\frac{dE}{dt} = \dot{Q}_{\mathrm{in}} - \dot{Q}_{\mathrm{conv}} - \dot{Q}_{\mathrm{rad}}",
             "dE/dt = Q_in - Q_conv - Q_rad   (energy balance on the body)",
         ),
         (
-            r"E = m\, c_{p} T, \quad \dot{Q}_{conv} = h A \left(T - T_{\infty}\right), \quad "
-            r"\dot{Q}_{rad} = \varepsilon \sigma A \left(T^{4} - T_{sur}^{4}\right)",
+            r"E = m\, c_{\mathrm{p}} T, \quad \dot{Q}_{\mathrm{conv}} = h A \left(T - T_{\infty}\right), \quad "
+            r"\dot{Q}_{\mathrm{rad}} = \varepsilon \sigma A \left(T^{4} - T_{\mathrm{sur}}^{4}\right)",
             "E = m*c_p*T, Q_conv = h*A*(T - T_inf), Q_rad = eps*sigma*A*(T^4 - T_sur^4)   "
             "(stored heat; Newton's law of cooling; Stefan–Boltzmann, grey body)",
         ),
         (
-            r"m\, c_{p} \frac{dT}{dt} = Q - h A \left(T - T_{\infty}\right) - \varepsilon \sigma A "
-            r"\left(T^{4} - T_{sur}^{4}\right)",
+            r"m\, c_{\mathrm{p}} \frac{dT}{dt} = Q - h A \left(T - T_{\infty}\right) - \varepsilon \sigma A "
+            r"\left(T^{4} - T_{\mathrm{sur}}^{4}\right)",
             "m*c_p*dT/dt = Q - h*A*(T - T_inf) - eps*sigma*A*(T^4 - T_sur^4)",
         ),
     ),

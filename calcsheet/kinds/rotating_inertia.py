@@ -29,9 +29,12 @@ KIND = Kind(
     ),
     equation="J*domega/dt + b*omega = T_d",
     law_steps=(
-        (r"J \frac{d\omega}{dt} = T_{d} - T_{f}", "J*domega/dt = T_d - T_f   (Newton's second law for rotation)"),
-        (r"T_{f} = b\,\omega", "T_f = b*omega   (viscous friction)"),
-        (r"J \frac{d\omega}{dt} + b\,\omega = T_{d}", "J*domega/dt + b*omega = T_d"),
+        (
+            r"J \frac{d\omega}{dt} = T_{\mathrm{d}} - T_{\mathrm{f}}",
+            "J*domega/dt = T_d - T_f   (Newton's second law for rotation)",
+        ),
+        (r"T_{\mathrm{f}} = b\,\omega", "T_f = b*omega   (viscous friction)"),
+        (r"J \frac{d\omega}{dt} + b\,\omega = T_{\mathrm{d}}", "J*domega/dt + b*omega = T_d"),
     ),
     assumptions=(
         "Rigid body turning about a fixed axis with a constant moment of inertia J.",

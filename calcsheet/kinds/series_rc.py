@@ -16,9 +16,9 @@ KIND = Kind(
     ),
     equation="R*C*dv/dt + v = V_s",
     law_steps=(
-        (r"V_{s} = v_{R} + v", "V_s = v_R + v   (Kirchhoff's voltage law)"),
+        (r"V_{\mathrm{s}} = v_{R} + v", "V_s = v_R + v   (Kirchhoff's voltage law)"),
         (r"v_{R} = R\,i, \quad i = C\,\frac{dv}{dt}", "v_R = R*i, i = C*dv/dt   (Ohm's law; capacitor)"),
-        (r"R C \frac{dv}{dt} + v = V_{s}", "R*C*dv/dt + v = V_s"),
+        (r"R C \frac{dv}{dt} + v = V_{\mathrm{s}}", "R*C*dv/dt + v = V_s"),
     ),
     assumptions=(
         "Ideal lumped resistor and capacitor with constant values; leakage of the capacitor neglected.",

@@ -13,9 +13,9 @@ KIND = Kind(
     slots=VOLTAGE_FORM.slots,
     equation="R*dq/dt + q/C = V_s",
     law_steps=(
-        (r"V_{s} = v_{R} + v", "V_s = v_R + v   (Kirchhoff's voltage law)"),
+        (r"V_{\mathrm{s}} = v_{R} + v", "V_s = v_R + v   (Kirchhoff's voltage law)"),
         (r"v_{R} = R\,\frac{dq}{dt}, \quad v = \frac{q}{C}", "v_R = R*dq/dt, v = q/C   (Ohm's law; capacitor)"),
-        (r"R \frac{dq}{dt} + \frac{q}{C} = V_{s}", "R*dq/dt + q/C = V_s"),
+        (r"R \frac{dq}{dt} + \frac{q}{C} = V_{\mathrm{s}}", "R*dq/dt + q/C = V_s"),
     ),
     assumptions=VOLTAGE_FORM.assumptions,
     source="V_s",

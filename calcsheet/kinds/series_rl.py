@@ -33,9 +33,9 @@ KIND = Kind(
     ),
     equation="L*di/dt + R*i = V_s",
     law_steps=(
-        (r"V_{s} = v_{R} + v_{L}", "V_s = v_R + v_L   (Kirchhoff's voltage law)"),
+        (r"V_{\mathrm{s}} = v_{R} + v_{L}", "V_s = v_R + v_L   (Kirchhoff's voltage law)"),
         (r"v_{R} = R\,i, \quad v_{L} = L\,\frac{di}{dt}", "v_R = R*i, v_L = L*di/dt   (Ohm's law; inductor)"),
-        (r"L \frac{di}{dt} + R\,i = V_{s}", "L*di/dt + R*i = V_s"),
+        (r"L \frac{di}{dt} + R\,i = V_{\mathrm{s}}", "L*di/dt + R*i = V_s"),
     ),
     assumptions=(
         "Ideal lumped inductor with constant inductance: no magnetic saturation, no eddy-current or core losses.",

@@ -9,6 +9,7 @@ sympy orders terms and factors its own way.
 from __future__ import annotations
 
 from calcsheet.mathtext import derivative_latex, display_inner_fractions, symbol_latex
+from calcsheet.sheet.quantities import number_latex, unit_latex
 from calcsheet.source import expressions as ex
 
 _LEVEL = {"+": 1, "-": 1, "*": 2, "/": 2, "^": 4}
@@ -42,13 +43,13 @@ def equation_latex(equation: ex.Equation) -> str:
 def node_latex(node: ex.Node, inline: bool = False) -> str:
     """``inline``: inside an exponent, where a stacked fraction would be set too small to read, a/b."""
     if isinstance(node, ex.Number):
-        return _number(node.text)
+        return number_latex(node.text)
     if isinstance(node, ex.Name):
         return r"\pi" if node.name == "pi" else symbol_latex(node.name)
     if isinstance(node, ex.Derivative):
         return derivative_latex(node.of, node.wrt)
     if isinstance(node, ex.Measured):  # a number with its unit, in a value
-        return rf"{_number(node.number)}\ \mathrm{{{node.unit}}}"
+        return rf"{number_latex(node.number)}\ {unit_latex(node.unit)}"
     if isinstance(node, ex.Unary):
         return f"{node.op}{_wrapped(node.operand, 3, inline=inline)}"
     if isinstance(node, ex.Call):
@@ -91,12 +92,3 @@ def _call(node: ex.Call, inline: bool = False) -> str:
     if node.function == "exp":  # exp(-t/tau): the argument on the line, as everywhere on the sheet
         inner = node_latex(node.argument, True)
     return rf"{_CALLS[node.function]}{{\left({inner}\right)}}"  # braced: no gap before the bracket
-
-
-def _number(text: str) -> str:
-    """2.5e-3 as 2.5 × 10^{-3}; other numbers as written."""
-    mantissa, _, exponent = text.lower().partition("e")
-    if not exponent:
-        return text
-    power = rf"10^{{{int(exponent)}}}"
-    return power if mantissa in ("1", "1.0") else rf"{mantissa} \times {power}"

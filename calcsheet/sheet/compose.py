@@ -53,7 +53,14 @@ from calcsheet.sheet.document import (
     Table,
     TitleBlock,
 )
-from calcsheet.sheet.quantities import duration, in_units, number, numeric_expression, reproducing_expression
+from calcsheet.sheet.quantities import (
+    duration,
+    in_units,
+    number,
+    numeric_expression,
+    quantity_latex,
+    reproducing_expression,
+)
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.hand_checks import reach_blocks
 from calcsheet.sheet.margin_words import has_margin, margin_section, outcome_words, whatif_words
@@ -61,6 +68,7 @@ from calcsheet.sheet.derived_words import derived_section, has_derived
 from calcsheet.sheet.linearise_words import accuracy_blocks, linearisation_section
 from calcsheet.sheet.record import build_record
 from calcsheet.sheet.named_groups import groups_for
+from calcsheet.sheet.printed_symbols import printed_symbols
 from calcsheet.sheet.worked_values import check_cell, hand_check_blocks, parameter_source, source_cell
 from calcsheet.source.units import coherent_si, parse_unit, same_dimension, unit_label
 from calcsheet.subjects import INTEGRAL, SUBJECTS, UNKNOWN
@@ -111,11 +119,12 @@ def compose(d: Derivation) -> Sheet:
         raise AssertionError("a step builder's section key differs from its place in STEPS")
     numbered = tuple(Section(s.key, s.title, s.blocks, n.step_numbers[s.key]) for s in steps)
     response = Section("response", "Response at a glance", (response_figure(d),))
+    sections = (response, _basis(d)) + numbered
     return Sheet(
         title_block=title_block(d.model.sheet),
         labels=sheet_labels(),
         outcome=_outcome(d),
-        sections=(response, _basis(d)) + numbered,
+        sections=sections,
         cautions=(cautions.GENERAL,)
         + cautions.hazard_notes(d.model, _response_and_input(d), numbers=d.numbers)
         + cautions.input_beyond_response(d.model, d.driving),
@@ -125,6 +134,7 @@ def compose(d: Derivation) -> Sheet:
         record=build_record(d, n),
         source_name=d.model.path,
         style=d.model.sheet.style,
+        symbols=printed_symbols(d.model, sections),
     )
 
 
@@ -253,8 +263,10 @@ def sheet_labels() -> Labels:
 def _response_and_input(d) -> tuple[float, ...]:
     """The values the hazard notes look at: the response, and the forcing as a value of the unknown where it
     exists (a probe's reading peaks lower than the gas it sits in; the gas is what is hot)."""
-    driving = d.driving.samples if d.driving is not None else ()
-    return tuple(y for _, y in d.curve) + tuple(v for _, v in driving)
+    if d.driving is None:
+        return tuple(y for _, y in d.curve)
+    peaks = tuple(p.value for p in (d.driving.largest, d.driving.smallest) if p.value is not None)  # found exactly
+    return tuple(y for _, y in d.curve) + tuple(v for _, v in d.driving.samples) + peaks
 
 
 def _outcome(d: Derivation) -> Outcome:
@@ -562,7 +574,7 @@ def _where_blocks(d: Derivation, n: _Notation) -> list:
             rights.insert(0, (r"\frac{1}{p}", "1/p"))
             if d.numbers.time_constant is not None:
                 shown = in_units(d.numbers.time_constant, m.variable)
-                rights.append((_quantity_latex(shown), shown))
+                rights.append((quantity_latex(shown), shown))
         elif not expr.has(n.x):
             value = sp.N(expr.subs(m.numeric_values()), 15)
             if value.is_Number:
@@ -855,7 +867,7 @@ def _time_constant_blocks(d: Derivation, n: _Notation, values) -> list:
             (r"\frac{1}{p}", "1/p"),
             *_distinct(tau, num.time_constant_expr)[1:],
             *([by_hand] if by_hand else []),
-            (_quantity_latex(shown), shown),
+            (quantity_latex(shown), shown),
             label=_constant_word(d),
         )
     ]
@@ -878,9 +890,9 @@ def _by_hand(expr, m):
         return None
     text = " × ".join(up) + ("" if not down else " / " + (down[0] if len(down) == 1 else f"({' × '.join(down)})"))
     times = r" \times "
-    tex = times.join(_quantity_latex(t) for t in up)
+    tex = times.join(quantity_latex(t) for t in up)
     if down:
-        below = times.join(_quantity_latex(t) for t in down)
+        below = times.join(quantity_latex(t) for t in down)
         tex = rf"\frac{{{tex}}}{{{below}}}"
     return tex, text
 
@@ -902,11 +914,6 @@ def _steady_sine_table(d: Derivation) -> Table:
 
 def _constant_word(d: Derivation) -> str:
     return "time constant" if same_dimension(d.model.variable.unit, parse_unit("s")) else "length constant"
-
-
-def _quantity_latex(shown: str) -> str:
-    value, _, unit = shown.partition(" ")
-    return rf"{value}\ \mathrm{{{unit}}}" if unit else value
 
 
 _FALLBACK_WORDS = {

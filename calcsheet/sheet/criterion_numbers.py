@@ -56,4 +56,4 @@ def margin_text(numbers: CriterionNumbers) -> str:
 
 
 def utilisation_text(numbers: CriterionNumbers) -> str:
-    return "" if numbers.utilisation is None else f"{100 * numbers.utilisation:.1f} %"
+    return "" if numbers.utilisation is None else f"{number(100 * numbers.utilisation, 3)} %"

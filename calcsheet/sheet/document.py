@@ -238,3 +238,5 @@ class Sheet:
     record: dict = field(default_factory=dict)  # structured results for the JSON record
     source_name: str = ""
     style: str = ""  # house style folder named by the input, already resolved to a path
+    # names on the sheet printed otherwise than written (T_inf, rho): the writers set them so in prose and cells
+    symbols: tuple[str, ...] = ()

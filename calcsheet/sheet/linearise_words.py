@@ -11,7 +11,8 @@ from calcsheet.derive import linear_accuracy as acc
 from calcsheet.derive import linearise as lin
 from calcsheet.mathtext import latex, plain, symbol_latex
 from calcsheet.sheet.document import Equation, Math, Note, Paragraph, Section, Table
-from calcsheet.sheet.quantities import number, record_value, rounded
+from calcsheet.sheet.quantities import number, quantity_latex, record_value, rounded
+from calcsheet.source.units import coherent_si, registry, si_unit, unit_label
 
 POINT_METHOD_WORDS = {
     lin.STATED: "as stated in the input",
@@ -63,6 +64,36 @@ def _names(d, n) -> dict:
     }
 
 
+def slope_unit(term, m) -> str:
+    """The SI unit of a slope df/dy: the unit of the term over the unit of the unknown, as the record writes
+    units ('m^2/s' for an orifice's outflow over a level)."""
+    units = {p.symbol: p.si_unit for p in m.parameters} | {m.unknown.symbol: si_unit(m.unknown.unit)}
+    found = _unit_of(term, units)
+    return "" if found is None else unit_label(coherent_si(si_unit(found / si_unit(m.unknown.unit))))
+
+
+def _unit_of(expr, units: dict):
+    """The SI unit of a sympy expression of symbols with the given units; None if a symbol's is unknown."""
+    if expr.is_Symbol:
+        return units.get(expr)
+    if expr.is_Number or not expr.free_symbols:
+        return registry().dimensionless
+    if expr.is_Add:
+        return _unit_of(expr.args[0], units)
+    if expr.is_Mul:
+        result = registry().dimensionless
+        for factor in expr.args:
+            unit = _unit_of(factor, units)
+            if unit is None:
+                return None
+            result = result * unit
+        return result
+    if expr.is_Pow and expr.exp.is_number:
+        unit = _unit_of(expr.base, units)
+        return None if unit is None else unit ** float(expr.exp)
+    return registry().dimensionless  # a function of a dimensionless argument (units were checked)
+
+
 def _tex(expr, names) -> str:
     return latex(expr, names)
 
@@ -101,7 +132,7 @@ def linearisation_section(d, n) -> Section:
                 f"steady state, d{y}/d{x} = 0",
             )
         )
-    y0_tex = rf"{number(m.unknown.shown(point.si))}\ \mathrm{{{m.unknown.unit_text}}}"
+    y0_tex = quantity_latex(f"{number(m.unknown.shown(point.si))} {m.unknown.unit_text}")
     rights = (
         [(y0_tex, y0_text)]
         if point.method != lin.SYMBOLIC
@@ -121,7 +152,7 @@ def linearisation_section(d, n) -> Section:
             Math(_tex(t.term, names), plain(t.term)),
             Math(_tex(t.value_at, names), plain(t.value_at)),
             Math(_tex(t.slope_at, names), plain(t.slope_at)),
-            number(t.slope_si),
+            f"{number(t.slope_si)} {slope_unit(t.term, m)}".rstrip(),
         )
         for t in found.terms
     )

@@ -19,6 +19,7 @@ from calcsheet.sheet.document import Paragraph, Section, Sheet, Table
 from calcsheet.sheet.figure import response_figure
 from calcsheet.sheet.hand_checks import reach_blocks
 from calcsheet.sheet.margin_words import has_margin, margin_section
+from calcsheet.sheet.printed_symbols import printed_symbols
 from calcsheet.sheet.quantities import in_units
 from calcsheet.sheet.record import build_switched_record
 
@@ -45,8 +46,14 @@ def compose_piecewise(pd) -> Sheet:
     notes = cautions.hazard_notes(
         pd.model, tuple(y for _, y in pd.curve), cautions.coil_voltage_steps(pd), pd.numbers, pd.derived_at_switches
     )
+    symbols = tuple(sorted({name for part in parts for name in part.symbols}))
     return replace(
-        first, outcome=_outcome(pd), sections=tuple(sections), record=record, cautions=(cautions.GENERAL,) + notes
+        first,
+        outcome=_outcome(pd),
+        sections=tuple(sections),
+        record=record,
+        cautions=(cautions.GENERAL,) + notes,
+        symbols=tuple(sorted(set(symbols) | set(printed_symbols(pd.model, tuple(sections))))),
     )
 
 

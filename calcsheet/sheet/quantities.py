@@ -9,7 +9,8 @@ import sympy as sp
 
 from calcsheet.formatting import SIGNIFICANT, number  # noqa: F401  (the sheet's formatter, re-exported)
 from calcsheet.model import Declared
-from calcsheet.source.units import from_si
+from calcsheet.errors import InputError
+from calcsheet.source.units import from_si, parse_unit
 
 RECORD_DIGITS = 10  # significant digits kept in the JSON record: stable across runs, ample for checks
 
@@ -159,6 +160,60 @@ def _trade_part(part: str) -> str:
     return part
 
 
+def unit_latex(unit: str) -> str:
+    """An ASCII unit as trade_unit prints it, in LaTeX for an equation: 'W/(m^2*K)' -> \\mathrm{W/(m^{2}\\cdot K)}."""
+    if not unit:
+        return ""
+    return r"\mathrm{" + _UNIT_PART.sub(lambda m: _latex_part(m.group(0)), unit) + "}"
+
+
+def _latex_part(part: str) -> str:
+    if part == "*":
+        return r"\cdot "
+    if part.startswith("^"):
+        return f"^{{{part[1:]}}}"
+    return _trade_part(part)
+
+
+def number_latex(text: str) -> str:
+    """A number as written, in LaTeX: 2.5e-3 as 2.5 × 10^{-3}; other numbers as they are."""
+    mantissa, _, exponent = text.lower().partition("e")
+    if not exponent:
+        return text
+    power = rf"10^{{{int(exponent)}}}"
+    return power if mantissa in ("1", "1.0") else rf"{mantissa} \times {power}"
+
+
+def quantity_latex(shown: str) -> str:
+    """'4.7 kohm' (a number, a space, an ASCII unit) in LaTeX as the sheet prints it: 4.7 kΩ."""
+    value, _, unit = shown.partition(" ")
+    return rf"{number_latex(value)}\ {unit_latex(unit)}" if unit else number_latex(value)
+
+
 def trade_units(text: str) -> str:
-    """Every unit written right after a number in ``text`` ('4.7 kohm', '25 degC') in its trade form."""
-    return _UNIT_AFTER_NUMBER.sub(lambda m: m.group(1) + trade_unit(m.group(2)), text)
+    """Every unit written right after a number in ``text`` ('4.7 kohm', '25 degC') in its trade form, and a
+    unit named after "in" ('T in degC', 'V in m^3') when pint reads it as one."""
+    text = _UNIT_AFTER_NUMBER.sub(lambda m: m.group(1) + trade_unit(m.group(2)), text)
+    return _UNIT_AFTER_IN.sub(lambda m: m.group(1) + _named_unit(m.group(2)), text)
+
+
+def _named_unit(word: str) -> str:
+    """A word after "in" in its trade form when it is a unit ('m^3' of '(S in m^3)', its bracket kept)."""
+    closing = ""
+    while word.endswith(")") and word.count(")") > word.count("("):
+        word, closing = word[:-1], closing + ")"
+    return _unit_word(word) + closing
+
+
+_UNIT_AFTER_IN = re.compile(r"(\bin )([A-Za-z][A-Za-z0-9_^*/()\-]*[A-Za-z0-9)])")
+
+
+def _unit_word(word: str) -> str:
+    printed = trade_unit(word)
+    if printed == word or word == "us":  # "in us" is English before it is microseconds
+        return word
+    try:
+        parse_unit(word)
+    except InputError:
+        return word
+    return printed

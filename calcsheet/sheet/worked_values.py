@@ -7,6 +7,7 @@ from __future__ import annotations
 from calcsheet.mathtext import symbol_latex
 from calcsheet.sheet.as_written import node_latex
 from calcsheet.sheet.document import Equation, Math, Paragraph
+from calcsheet.sheet.quantities import quantity_latex
 from calcsheet.source import expressions as ex
 from calcsheet.source.value_expressions import substituted
 
@@ -25,8 +26,7 @@ def hand_check_blocks(parameters) -> list:
         sides = [(node_latex(p.node), ex.render(p.node, " × "))]
         if numbers != p.node:
             sides.append((node_latex(numbers), ex.render(numbers, " × ")))
-        value, _, unit = p.text.partition(" ")
-        sides.append((rf"{value}\ \mathrm{{{unit}}}" if unit else value, p.text))
+        sides.append((quantity_latex(p.text), p.text))
         latex = " = ".join([symbol_latex(p.name)] + [tex for tex, _ in sides])
         text = " = ".join([p.name] + [plain for _, plain in sides])
         blocks.append(Equation(Math(latex, text), "worked out"))

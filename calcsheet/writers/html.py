@@ -47,7 +47,7 @@ def render_html(sheet: doc.Sheet, style, writer: str, filters: dict, extra_css: 
         cell_kind=partial(cell_kind, writer=writer),
         unhandled=partial(unhandled, writer=writer),
         keep_marks=keep_marks,
-        unbroken=unbroken,
+        unbroken=partial(unbroken, symbols=sheet.symbols),
     )
     css = read_css(style, "sheet.css") + ("\n" + read_css(style, "print.css") if medium == "print" else "")
     return render_template(

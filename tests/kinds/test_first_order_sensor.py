@@ -124,7 +124,7 @@ def test_gain_other_than_one_is_warned():
     # A probe that reads its medium has K = 1 (common practice, no source); anything else is worth a look.
     (_, gain) = KIND.checks({"tau": 2.0, "K": 0.98})
     assert gain.severity == WARNING and gain.values == {"K": 0.98}
-    assert worded(KIND.name, (gain,))[0].startswith("K = 0.9800 multiplies the absolute temperature")
+    assert worded(KIND.name, (gain,))[0].startswith("K = 0.98 multiplies the absolute temperature")
     assert [n.severity for n in KIND.checks({"tau": 2.0, "K": 1.0})] == [INFO]
     assert [n.severity for n in KIND.checks({"tau": 0.0, "K": 1.0})] == [INVALID]
 

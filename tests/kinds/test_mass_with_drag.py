@@ -51,7 +51,7 @@ def test_terminal_speed_is_force_over_drag_coefficient(sled):
     assert one_tau.y / 1.5 == pytest.approx(0.632, abs=0.0005)
     (ninety,) = numbers.reach
     assert ninety.x / 0.4 == pytest.approx(2.303, abs=0.0005)
-    assert "5.400 km/h" in render(sled.sheet, ("txt",))["txt"]
+    assert "5.4 km/h" in render(sled.sheet, ("txt",))["txt"]
 
 
 PULSE_START, PULSE_WIDTH = 0.1, 0.3

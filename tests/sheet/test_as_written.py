@@ -16,8 +16,8 @@ def _order(latex: str, *pieces: str) -> list[int]:
 @pytest.mark.parametrize(
     "text, pieces",
     [
-        ("tau*dT/dt + T = T_inf", (r"\tau", r"\frac{dT}{dt}", "+ T", r"T_{\mathrm{inf}}")),
-        ("V*rho*c_p*dT/dt = Q - h*A*(T - T_inf)", ("V", r"\rho", "c_{p}", r"\frac{dT}{dt}", "Q -", r"h\,A")),
+        ("tau*dT/dt + T = T_inf", (r"\tau", r"\frac{dT}{dt}", "+ T", r"T_{\infty}")),
+        ("V*rho*c_p*dT/dt = Q - h*A*(T - T_inf)", ("V", r"\rho", r"c_{\mathrm{p}}", r"\frac{dT}{dt}", "Q -", r"h\,A")),
         ("R*C*dv/dt + v = 0", ("R", "C", r"\frac{dv}{dt}", "+ v")),
         ("T + tau*dT/dt = T_inf", ("T +", r"\tau", r"\frac{dT}{dt}")),
     ],

@@ -22,4 +22,4 @@ def test_a_tank_that_overflows_does_not_grow_without_bound():
     built = shared_builds.built("equalisation-tank-tracer")
     text = render(built.sheet, ("txt",))["txt"]
     assert "grows without bound" not in text
-    assert "Final value: none within the model: the tank overflows at t = 100.0 min" in text
+    assert "Final value: none within the model: the tank overflows at t = 100 min" in text

@@ -33,7 +33,7 @@ def _back(text: str, names: dict) -> sp.Expr:
 def test_a_sum_starts_with_a_positive_term_and_means_the_same():
     expr = -V_s + v_0
     assert plain(expr) == "v_0 - V_s"
-    assert latex(expr) == "v_{0} - V_{s}"
+    assert latex(expr) == r"v_{0} - V_{\mathrm{s}}"
     assert sp.simplify(_back(plain(expr), {"V_s": V_s, "v_0": v_0}) - expr) == 0
     assert plain(-V_s - v_0) == "-V_s - v_0"  # all terms negative: nothing to move
 
@@ -48,7 +48,9 @@ def test_every_exponential_is_written_exp_with_its_argument_on_the_line():
 
 def test_an_exponent_on_the_line_brackets_a_denominator_of_several_factors():
     A, h, V, c_p, rho = sp.symbols("A h V c_p rho", positive=True)
-    assert latex(sp.exp(A * h * t / (V * c_p * rho))) == r"\exp{\left(A\,h\,t/\left(V\,c_{p}\,\rho\right)\right)}"
+    assert (
+        latex(sp.exp(A * h * t / (V * c_p * rho))) == r"\exp{\left(A\,h\,t/\left(V\,c_{\mathrm{p}}\,\rho\right)\right)}"
+    )
     assert latex(sp.exp(-t / C)) == r"\exp{\left({-}t/C\right)}"
 
 

@@ -96,7 +96,7 @@ def test_the_response_peak_agrees_with_solve_ivp(lag):
 def test_the_caution_gives_both_peaks(lag):
     sheet = compose(lag)
     (note,) = [c for c in sheet.cautions if c.startswith("The input reached a higher value")]
-    assert "peaks at 100.0 degC at t = 0 s" in note
+    assert "peaks at 100 degC at t = 0 s" in note
     assert f"T peaks at {lag.driving.response_largest.value - 273.15:.2f} degC" in note
 
 
