@@ -10,6 +10,7 @@ PACKAGE = Path(__file__).resolve().parents[1] / "calcsheet"
 ORDER = [
     "errors",
     "formatting",
+    "unit_text",
     "symbol_spelling",
     "mathtext",
     "subjects",

@@ -24,6 +24,7 @@ from markupsafe import escape
 from calcsheet.errors import visible
 from calcsheet.load.package_file import Package
 from calcsheet.package.register import ROLES, Row
+from calcsheet.unit_text import units_after_numbers
 from calcsheet.writers.css_text import css_string
 from calcsheet.writers.fonts import FACES
 
@@ -198,7 +199,8 @@ def _front_html(package: Package, rows: list[Row], counts: dict[int, int], start
             f"<td>{page}</td></tr>"
         )
     basis = "".join(
-        f"<tr><td>{e(b.name)}</td><td>{e(b.value)}</td><td>{e(_range_text(b.entry))}</td>"
+        f"<tr><td>{e(b.name)}</td><td>{e(units_after_numbers(b.value))}</td>"
+        f"<td>{e(units_after_numbers(_range_text(b.entry)))}</td>"
         f"<td>{e(b.source or 'no source given')}</td></tr>"
         for b in package.basis.values()
     )

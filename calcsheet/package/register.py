@@ -13,6 +13,7 @@ from markupsafe import escape
 from calcsheet.errors import visible
 from calcsheet.load.package_file import Package
 from calcsheet.load.references import SheetEntry
+from calcsheet.unit_text import units_after_numbers
 
 ROLES = ("prepared", "checked", "approved")
 
@@ -192,8 +193,8 @@ def register_html(package: Package, rows: list[Row]) -> str:
         f", {failing} fail or did not build" if failing else ""
     )
     basis_rows = "".join(
-        f"<tr><td>{escape(visible(b.name))}</td><td>{escape(visible(b.value))}</td>"
-        f"<td>{escape(visible(_range_text(b.entry)))}</td>"
+        f"<tr><td>{escape(visible(b.name))}</td><td>{escape(units_after_numbers(visible(b.value)))}</td>"
+        f"<td>{escape(units_after_numbers(visible(_range_text(b.entry))))}</td>"
         f"<td>{escape(visible(b.source) or 'no source given')}</td></tr>"
         for b in package.basis.values()
     )

@@ -8,6 +8,7 @@ from decimal import Decimal
 import sympy as sp
 
 from calcsheet.formatting import SIGNIFICANT, number  # noqa: F401  (the sheet's formatter, re-exported)
+from calcsheet.unit_text import UNIT_PART, trade_part, trade_unit, units_after_numbers  # noqa: F401 (trade_unit re-exported)
 from calcsheet.model import Declared
 from calcsheet.errors import InputError
 from calcsheet.source.units import from_si, parse_unit
@@ -131,40 +132,11 @@ def _text_at(expr: sp.Expr, x: sp.Symbol, at: float, declared: Declared) -> str:
     return declared.text_of(value.real) if abs(value.imag) <= 1e-12 * max(1.0, abs(value.real)) else ""
 
 
-# Units as the trade prints them (HTML and PDF; the input and the text record keep the ASCII spelling):
-# SI Brochure, 9th edition, section 5.4 (symbols, the middle dot for a product, superscript powers; from memory).
-_TRADE_NAMES = {"ohm": "Ω", "degC": "°C", "degF": "°F", "delta_degC": "Δ°C", "percent": "%"}
-_MICRO = {"F", "H", "A", "V", "s", "m", "W", "g", "L", "J", "C", "T", "Pa", "S", "Wb", "N", "mol"}
-_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
-_UNIT_AFTER_NUMBER = re.compile(r"(?<=\d)([ \u00a0])([A-Za-z][A-Za-z0-9_^*/()\-]*)")
-_UNIT_PART = re.compile(r"[A-Za-z_]+|\^-?\d+|\*")
-
-
-def trade_unit(unit: str) -> str:
-    """An ASCII unit as written in an input ('W/(m^2*K)', 'kohm', 'uF', 'degC') as the trade prints it
-    ('W/(m²·K)', 'kΩ', 'µF', '°C'); pint reads both to the same unit (tests/sheet/test_trade_units.py)."""
-    return _UNIT_PART.sub(lambda m: _trade_part(m.group(0)), unit)
-
-
-def _trade_part(part: str) -> str:
-    if part == "*":
-        return "·"
-    if part.startswith("^"):
-        return part[1:].translate(_SUPERSCRIPT)
-    if part in _TRADE_NAMES:
-        return _TRADE_NAMES[part]
-    if part.endswith("ohm") and part[:-3] in ("k", "M", "G", "m"):
-        return part[:-3] + "Ω"
-    if part.startswith("u") and part[1:] in _MICRO:
-        return "µ" + part[1:]
-    return part
-
-
 def unit_latex(unit: str) -> str:
     """An ASCII unit as trade_unit prints it, in LaTeX for an equation: 'W/(m^2*K)' -> \\mathrm{W/(m^{2}\\cdot K)}."""
     if not unit:
         return ""
-    return r"\mathrm{" + _UNIT_PART.sub(lambda m: _latex_part(m.group(0)), unit) + "}"
+    return r"\mathrm{" + UNIT_PART.sub(lambda m: _latex_part(m.group(0)), unit) + "}"
 
 
 def _latex_part(part: str) -> str:
@@ -172,7 +144,7 @@ def _latex_part(part: str) -> str:
         return r"\cdot "
     if part.startswith("^"):
         return f"^{{{part[1:]}}}"
-    return _trade_part(part)
+    return trade_part(part)
 
 
 def number_latex(text: str) -> str:
@@ -193,7 +165,7 @@ def quantity_latex(shown: str) -> str:
 def trade_units(text: str) -> str:
     """Every unit written right after a number in ``text`` ('4.7 kohm', '25 degC') in its trade form, and a
     unit named after "in" ('T in degC', 'V in m^3') when pint reads it as one."""
-    text = _UNIT_AFTER_NUMBER.sub(lambda m: m.group(1) + trade_unit(m.group(2)), text)
+    text = units_after_numbers(text)
     return _UNIT_AFTER_IN.sub(lambda m: m.group(1) + _named_unit(m.group(2)), text)
 
 

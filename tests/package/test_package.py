@@ -200,6 +200,8 @@ def test_the_package_build_writes_every_sheet_in_dependency_order_and_the_regist
     html = (out / "register.html").read_text(encoding="utf-8")
     assert "Test package" in html and "design basis section 3" in html and "licensed engineer" in html
     assert cool["status"] == "" and html.count("<td>not stated</td>") == 3  # no sheet states its issue status
+    assert "<td>30 °C</td>" in html and "degC" not in html  # the page prints units as the sheets do
+    assert register["basis"][0]["value"] == "30 degC"  # the record keeps the input's spelling
     code, again, _ = run("build", folder, "--out", tmp_path / "again", "--format", "json,txt")
     for name in ("register.csv", "register.json", "register.html"):
         assert (out / name).read_bytes() == (tmp_path / "again" / name).read_bytes()
