@@ -55,7 +55,14 @@ def registry() -> pint.UnitRegistry:
 
 
 def parse_unit(text: str) -> pint.Unit:
-    """Parse a unit string such as ``kohm`` or ``W/(m^2*K)``; an empty string is dimensionless."""
+    """Parse a unit string such as ``kohm`` or ``W/(m^2*K)``; an empty string is dimensionless. A loaded
+    sheet parses the same few units many times (pint's parser is most of loading), so each text is parsed
+    once per process; a refusal is not kept and is raised again each time."""
+    return _parsed_unit(text)
+
+
+@functools.lru_cache(maxsize=4096)
+def _parsed_unit(text: str) -> pint.Unit:
     cleaned = text.strip().replace("·", "*").replace("μ", "µ")
     if not cleaned:
         return registry().dimensionless
