@@ -22,6 +22,7 @@ import functools
 import math
 import re
 
+from calcsheet.unit_text import units_after_numbers
 from calcsheet.writers.build_date import invalid_source_date_epoch_hidden
 
 INK = "#1b1f24"
@@ -348,7 +349,7 @@ class _Labels:
     def _draw(self, text, colour, xycoords, kind, rotated=False):
         self.count += 1
         return self.ax.annotate(
-            text,
+            label_text(text),
             (0.0, 0.0),
             xycoords=xycoords,
             xytext=(0.0, 0.0),
@@ -510,3 +511,8 @@ def _height_near(curve, x, side):
         if xa <= fx <= xb:
             return ya if xb == xa else ya + (yb - ya) * (fx - xa) / (xb - xa)
     return pts[-1][1]
+
+
+def label_text(label: str) -> str:
+    """A label as the sheet's text prints it: ≤ and ≥ for <= and >=, units in their trade form (60 °C)."""
+    return units_after_numbers(label.replace("<=", "≤").replace(">=", "≥"))

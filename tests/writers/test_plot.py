@@ -6,13 +6,14 @@ import base64
 import math
 import re
 import xml.etree.ElementTree as ET
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
 
 from calcsheet.sheet.document import Figure, Guide
 from calcsheet.sheet.figure import LEGEND
-from calcsheet.writers.plot import GUIDE_STYLE, build_figure, figure_svg
+from calcsheet.writers.plot import GUIDE_STYLE, label_text, build_figure, figure_svg
 from calcsheet.writers.svgmath import data_uri
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -141,7 +142,7 @@ def test_curve_independent_and_points(built):
 
 def test_guides_are_labelled(built):
     texts = {t.get_text() for t in built.axes[0].texts}
-    assert {g.label for g in FULL.levels + FULL.limits} <= texts
+    assert {label_text(g.label) for g in FULL.levels + FULL.limits} <= texts
 
 
 @pytest.mark.parametrize("status, style", [("", ":"), ("pass", "-"), ("fail", "--")])
@@ -250,7 +251,13 @@ def test_constant_curve_and_awkward_point_and_guide_labels():
     fig = build_figure(odd)
     low, high = fig.axes[0].get_ylim()
     assert low < 3.0 < high
-    assert {"q(2) -- $x$", "limit q <= 3 & more"} <= {t.get_text() for t in fig.axes[0].texts}
+    assert {"q(2) -- $x$", "limit q ≤ 3 & more"} <= {t.get_text() for t in fig.axes[0].texts}
+
+
+def test_labels_print_comparisons_and_units_as_the_sheet_does():
+    fig = build_figure(replace(FULL, levels=(Guide(60.0, "limit T(45 min) <= 60 degC", "pass"),)))
+    texts = {t.get_text() for t in fig.axes[0].texts}
+    assert "limit T(45 min) ≤ 60 °C" in texts and not any("<=" in t or "degC" in t for t in texts)
 
 
 def test_a_limit_at_one_point_is_drawn_at_that_point_not_across_the_plot():
