@@ -8,6 +8,7 @@ whichever test files it runs.
 
 from __future__ import annotations
 
+import html
 import re
 import shutil
 import subprocess
@@ -16,7 +17,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from calcsheet.sheet import document as doc
-from calcsheet.sheet.quantities import trade_units
+from calcsheet.writers.unbroken import unbroken
 from calcsheet.writers.visible_text import visible
 from tests import shared_builds
 
@@ -65,35 +66,41 @@ def squeeze(text: str) -> str:
     return "".join(unicodedata.normalize("NFKC", text).replace("\u2060", "").replace("-", "").split())
 
 
-def locate(block, pages: list[str], cursor: int) -> tuple[int, int]:
+def locate(block, pages: list[str], cursor: int, symbols: tuple[str, ...] = ()) -> tuple[int, int]:
     """The pages where a block starts and ends, searching from page ``cursor`` on (-1 where not found).
 
     A table is followed row by row, each row found by all its text cells, so that a row whose words
     repeat an earlier row's is still placed on its own page."""
     if isinstance(block, doc.Table):
         head = block.caption or next((h for h in block.header if squeeze(h)), "")
-        start = end = find_page(pages, squeeze(shown(head))[:30], cursor)
+        start = end = find_page(pages, squeeze(shown(head, symbols))[:30], cursor)
         for row in block.rows:
-            cells = [squeeze(shown(c))[:30] for c in row if isinstance(c, str) and squeeze(c)]
+            cells = [squeeze(shown(c, symbols))[:30] for c in row if isinstance(c, str) and squeeze(c)]
             if cells and end >= 0:
                 end = next((i for i in range(end, len(pages)) if all(c in pages[i] for c in cells)), -1)
         return start, end
     if isinstance(block, doc.ItemList):
-        first, last = squeeze(shown(block.items[0])), squeeze(shown(block.items[-1]))
+        first, last = squeeze(shown(block.items[0], symbols)), squeeze(shown(block.items[-1], symbols))
     else:
         text = {doc.Paragraph: "text", doc.Note: "text"}.get(type(block))
         if isinstance(block, (doc.Equation, doc.Figure)):  # drawn, with their words as the Sheet has them
-            words = squeeze(visible(block.math.text if isinstance(block, doc.Equation) else block.caption))
+            words = squeeze(
+                visible(block.math.text) if isinstance(block, doc.Equation) else shown(block.caption, symbols)
+            )
         else:
-            words = squeeze(shown(getattr(block, text)))
+            words = squeeze(shown(getattr(block, text), symbols))
         first = last = words
     start = find_page(pages, first[:40], cursor)
     return start, find_page(pages, last[-40:], max(start, cursor))
 
 
-def shown(text: str) -> str:
-    """User-facing text as the HTML and PDF show it: units after numbers in the trade's form."""
-    return trade_units(visible(text))
+def shown(text: str, symbols: tuple[str, ...] = ()) -> str:
+    """User-facing text as the HTML and PDF show it (writers/unbroken.py: trade units, ≤ and ≥, the sheet's
+    symbols set as its equations set them), as a reader of the page gets it: without the markup."""
+    return html.unescape(_TAG.sub("", str(unbroken(text, symbols))))
+
+
+_TAG = re.compile(r"<[^>]+>")
 
 
 def find_page(pages: list[str], words: str, start: int) -> int:
@@ -117,7 +124,7 @@ def break_problems(printed_sheet: Printed) -> list[str]:
             continue
         cursor, spans = heading, []
         for block in section.blocks:
-            start, end = locate(block, pages, cursor)
+            start, end = locate(block, pages, cursor, sheet.symbols)
             if start < 0 or end < 0:
                 problems.append(f"{title!r}: a {type(block).__name__} not found (block {len(spans) + 1})")
                 spans.append(None)
@@ -164,7 +171,7 @@ def split_pairs(printed_sheet: Printed) -> list[str]:
     lines = {" ".join(line.split()) for line in said.splitlines()}
     text = "\n".join(lines)
     cells = [
-        " ".join(unicodedata.normalize("NFKC", shown(cell)).split())
+        " ".join(unicodedata.normalize("NFKC", shown(cell, printed_sheet.sheet.symbols)).replace("\u2060", "").split())
         for section in printed_sheet.sheet.sections
         for block in section.blocks
         if isinstance(block, doc.Table)
