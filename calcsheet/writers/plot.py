@@ -22,7 +22,7 @@ import functools
 import math
 import re
 
-from calcsheet.unit_text import units_after_numbers
+from calcsheet.unit_text import trade_unit, units_after_numbers
 from calcsheet.writers.build_date import invalid_source_date_epoch_hidden
 
 INK = "#1b1f24"
@@ -118,8 +118,8 @@ def _build(figure):
     fig = MplFigure(figsize=FIGSIZE_IN, layout="constrained")
     fig.get_layout_engine().set(w_pad=4 / 72, h_pad=4 / 72)
     ax = fig.add_subplot()
-    ax.set_xlabel(figure.x_label, parse_math=False)
-    ax.set_ylabel(figure.y_label, parse_math=False)
+    ax.set_xlabel(label_text(figure.x_label), parse_math=False)
+    ax.set_ylabel(label_text(figure.y_label), parse_math=False)
     ax.grid(True, color=GRID, linewidth=0.5)
     ax.set_axisbelow(True)
 
@@ -514,5 +514,10 @@ def _height_near(curve, x, side):
 
 
 def label_text(label: str) -> str:
-    """A label as the sheet's text prints it: ≤ and ≥ for <= and >=, units in their trade form (60 °C)."""
-    return units_after_numbers(label.replace("<=", "≤").replace(">=", "≥"))
+    """A label as the sheet's text prints it: ≤ and ≥ for <= and >=, units in their trade form (60 °C, and an
+    axis's unit in brackets, T [°C])."""
+    text = units_after_numbers(label.replace("<=", "≤").replace(">=", "≥"))
+    return _BRACKETED_UNIT.sub(lambda m: f"[{trade_unit(m.group(1))}]", text)
+
+
+_BRACKETED_UNIT = re.compile(r"\[([A-Za-z][A-Za-z0-9_^*/()\-]*)\]")

@@ -258,6 +258,7 @@ def test_labels_print_comparisons_and_units_as_the_sheet_does():
     fig = build_figure(replace(FULL, levels=(Guide(60.0, "limit T(45 min) <= 60 degC", "pass"),)))
     texts = {t.get_text() for t in fig.axes[0].texts}
     assert "limit T(45 min) ≤ 60 °C" in texts and not any("<=" in t or "degC" in t for t in texts)
+    assert label_text("T [degC]") == "T [°C]" and label_text("q [m^3/s]") == "q [m³/s]"
 
 
 def test_a_limit_at_one_point_is_drawn_at_that_point_not_across_the_plot():
