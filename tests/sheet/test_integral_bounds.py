@@ -15,6 +15,7 @@ import pytest
 from scipy.integrate import quad
 
 from calcsheet.pipeline import build_sheet
+from tests.sheet.sine_rc_input import SINE_RC
 from calcsheet.sheet.document import Note, Paragraph
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -27,24 +28,9 @@ def _power(t):
 
 # A series RC charged by a 1 Hz sinusoid from rest (invented values); i_v = v/R swings both ways, so its
 # extremes lie inside the window and the lower bound is negative.
-SINE = """
-[sheet]
-title = "Filtered sinusoid (test)"
-[model]
-kind = "series_rc"
-unknown = "v [V]"
-variable = "t [s]"
-[parameters]
-R = "10 kohm"
-C = "10 uF"
-[forcing]
-form = "sine"
-amplitude = "10 V"
-frequency = "1 Hz"
-[initial]
-at = "0 s"
-value = "0 V"
-[[derived]]
+SINE = (
+    SINE_RC
+    + """[[derived]]
 name = "i_v"
 expression = "v/R"
 unit = "mA"
@@ -52,6 +38,7 @@ integral_unit = "mC"
 [evaluate]
 integrals = ["integral(i_v, 0.2 s, 1.7 s)"]
 """
+)
 
 
 def test_the_discharge_energy_lies_within_bounds_from_the_integrands_extremes():

@@ -18,6 +18,7 @@ import pytest
 from scipy.integrate import solve_ivp
 
 from calcsheet.pipeline import build_sheet
+from tests.sheet.sine_rc_input import SINE_RC
 from calcsheet.sheet.document import Equation, Note, Table
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -53,29 +54,15 @@ reach = ["0.5 A"]
 """
 
 # An RC filter driven by a 1 Hz sinusoid from rest (invented values): no single exponential, found by the scan.
-SINE = """
-[sheet]
-title = "Filtered sinusoid (test)"
-[model]
-kind = "series_rc"
-unknown = "v [V]"
-variable = "t [s]"
-[parameters]
-R = "10 kohm"
-C = "10 uF"
-[forcing]
-form = "sine"
-amplitude = "10 V"
-frequency = "1 Hz"
-[initial]
-at = "0 s"
-value = "0 V"
-[evaluate]
+SINE = (
+    SINE_RC
+    + """[evaluate]
 reach = ["5 V"]
 [[criteria]]
 text = "above half the amplitude within 1 s"
 check = "reach(5 V) <= 1 s"
 """
+)
 
 
 def _built(tmp_path, name: str, text: str):
