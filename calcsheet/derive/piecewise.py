@@ -54,6 +54,9 @@ class SwitchedDerivation:
         return self.numbers.all_passed and self.verification.passed and (self.margin is None or self.margin.passed)
 
 
+INTERVAL_SCAN_POINTS = 801  # each interval is scanned at this many points for the levels it reaches
+
+
 def derive_piecewise(model: Model) -> SwitchedDerivation:
     intervals = _derive_intervals(model)
     grid, samples = _scan(intervals)
@@ -174,7 +177,7 @@ def _scan(intervals) -> tuple[np.ndarray, np.ndarray]:
     for interval in intervals:
         numbers = interval.derivation.numbers
         end = interval.end if interval.end is not None else interval.start + SEARCH_SCALES * numbers.scale
-        grid = np.linspace(interval.start, end, 801)
+        grid = np.linspace(interval.start, end, INTERVAL_SCAN_POINTS)
         values = interval.derivation.response.on_grid(grid)
         keep = np.isfinite(values)
         grids.append(grid[keep])

@@ -17,14 +17,14 @@ import mpmath
 import sympy as sp
 
 from calcsheet.derive.numbers import AT_LEVEL, INTERPOLATED, ROOT_RTOL, ROOT_XTOL, SEARCH_POINTS
+from calcsheet.derive.piecewise import INTERVAL_SCAN_POINTS
 from calcsheet.formatting import number
 from calcsheet.sheet.criterion_numbers import criterion_numbers
 from calcsheet.sheet.document import Equation, Math, Note, Paragraph
-from calcsheet.sheet.quantities import in_units, record_value
+from calcsheet.sheet.quantities import in_units, quantity_latex, record_value
 from calcsheet.source.units import from_si, is_offset
 
 MOST_DIGITS = 10
-SWITCHED_SCAN_POINTS = 801  # derive/piecewise.py samples each interval at this many points
 
 
 @dataclass(frozen=True)
@@ -168,7 +168,7 @@ def evaluate_line(parts: dict[str, str]) -> float:
 def _line_math(m, parts: dict[str, str], x_unit: str, y_unit: str, table: str) -> Math:
     def q(value: str, unit: str) -> tuple[str, str]:
         text = f"{value} {unit}".rstrip()
-        tex = rf"{value}\ \mathrm{{{unit}}}" if unit else value
+        tex = quantity_latex(text)  # the unit in its trade form (°C, kΩ), as every equation prints it
         return (f"({text})", rf"\left({tex}\right)") if value.startswith("-") else (text, tex)
 
     yk, yi, yl = q(parts["y_k"], y_unit), q(parts["y_inf"], y_unit), q(parts["y"], y_unit)
@@ -177,13 +177,9 @@ def _line_math(m, parts: dict[str, str], x_unit: str, y_unit: str, table: str) -
     lead_text, lead_tex = ("", "") if not start else (f"{q(start, x_unit)[0]} + ", f"{q(start, x_unit)[1]} + ")
     name = m.variable.name
     text = f"{name} = {lead_text}{tau[0]} × ln(({yk[0]} - {yi[0]})/({yl[0]} - {yi[0]})) = {table}"
-    value, _, unit = table.partition(" ")
     tex = (
         rf"{sp.latex(sp.Symbol(name))} = {lead_tex}{tau[1]} \times \ln\left(\frac{{{yk[1]} - {yi[1]}}}"
-        rf"{{{yl[1]} - {yi[1]}}}\right) = {value}\ \mathrm{{{unit}}}"
-        if unit
-        else rf"{sp.latex(sp.Symbol(name))} = {lead_tex}{tau[1]} \times \ln\left(\frac{{{yk[1]} - {yi[1]}}}"
-        rf"{{{yl[1]} - {yi[1]}}}\right) = {value}"
+        rf"{{{yl[1]} - {yi[1]}}}\right) = {quantity_latex(table)}"
     )
     return Math(tex, text)
 
@@ -225,7 +221,7 @@ def _general_line(m) -> Equation:
 def _method_words(m, scanned: list[ReachCheck], switched: bool) -> str:
     x = m.variable.name
     grid = (
-        f"{SWITCHED_SCAN_POINTS} equally spaced points in each interval"
+        f"{INTERVAL_SCAN_POINTS} equally spaced points in each interval"
         if switched
         else f"{SEARCH_POINTS} equally spaced points over the searched range"
     )
