@@ -24,6 +24,7 @@ import re
 
 from calcsheet.unit_text import trade_unit, units_after_numbers
 from calcsheet.writers.build_date import invalid_source_date_epoch_hidden
+from calcsheet.writers.unbroken import with_signs
 
 INK = "#1b1f24"
 GREY = "#6b7580"
@@ -516,7 +517,7 @@ def _height_near(curve, x, side):
 def label_text(label: str) -> str:
     """A label as the sheet's text prints it: ≤ and ≥ for <= and >=, units in their trade form (60 °C, and an
     axis's unit in brackets, T [°C])."""
-    text = units_after_numbers(label.replace("<=", "≤").replace(">=", "≥"))
+    text = units_after_numbers(with_signs(label))
     return _BRACKETED_UNIT.sub(lambda m: f"[{trade_unit(m.group(1))}]", text)
 
 

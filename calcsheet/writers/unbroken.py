@@ -30,9 +30,7 @@ def unbroken(text: str, symbols: tuple[str, ...] = ()) -> Markup:
     """``text`` with trade units, ≤ and ≥, the ``symbols`` set as the equations set them, and no-break spaces
     between each number and its unit and in a closing "at t =" ; control characters shown (visible_text.py) and
     the rest escaped, as HTML."""
-    text = trade_units(visible(text, keep="\n\t"))
-    for ascii_form, sign in _COMPARISONS.items():
-        text = text.replace(ascii_form, sign)
+    text = with_signs(trade_units(visible(text, keep="\n\t")))
     text = _NUMBER_AND_UNIT.sub(NO_BREAK, text)
     text = _UNIT_WITH_SLASH.sub(lambda m: m.group(0).replace("/", "/" + WORD_JOINER), text)
     text = _CLOSING_EQUALS.sub(rf"\1{NO_BREAK}\2{NO_BREAK}=", text)
@@ -41,6 +39,13 @@ def unbroken(text: str, symbols: tuple[str, ...] = ()) -> Markup:
         return Markup(escape(text))
     pieces = pattern.split(text)  # names at the odd places
     return Markup("").join(_symbol_html(piece) if k % 2 else escape(piece) for k, piece in enumerate(pieces))
+
+
+def with_signs(text: str) -> str:
+    """<= and >= between spaces as the signs ≤ and ≥ (the text record keeps the ASCII)."""
+    for ascii_form, sign in _COMPARISONS.items():
+        text = text.replace(ascii_form, sign)
+    return text
 
 
 @functools.lru_cache(maxsize=64)
