@@ -87,7 +87,6 @@ class DerivedCurve:
         self.piece = _DerivedPiece(self, piece)
         self._search = None
         self._antiderivative: tuple[sp.Expr | None, str] | None = None
-        self._final: tuple[float | None] | None = None
 
     def __call__(self, at: float) -> float:
         try:
@@ -121,12 +120,8 @@ class DerivedCurve:
         return replace(self.search().find(kind, window, text), of=self.quantity.name)
 
     def final(self) -> float | None:
-        """g as the variable grows without bound, from its closed form; None where there is none. Found once."""
-        if self._final is None:
-            self._final = (self._limit(),)
-        return self._final[0]
-
-    def _limit(self) -> float | None:
+        """g as the variable grows without bound, from its closed form; None where there is none. Costly (a
+        symbolic limit): the extreme search calls it once, and only when an open-ended window asks."""
         if self.closed is None:
             return None
         settled = self.closed.replace(sp.Heaviside, lambda *args: _settled_step(args[0], self.x))
