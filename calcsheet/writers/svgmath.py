@@ -33,8 +33,10 @@ def render(latex: str, size: float = FONT_SIZE) -> Rendered:
 
     ziafont.config.svg2 = False  # paths, not <symbol>/<use>: see the module's docstring
     from calcsheet.writers.ziamath_rows import measure_once
+    from calcsheet.writers.ziamath_style import copy_styles_directly
 
     measure_once()
+    copy_styles_directly()
     math = ziamath.Latex(latex, size=size)
     svg = math.svg()
     width, height = _viewbox_size(svg)

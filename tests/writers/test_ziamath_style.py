@@ -1,0 +1,70 @@
+"""Styles copied field by field (writers/ziamath_style.py) are exactly what ``dataclasses.asdict`` makes, and the
+equations ziamath draws with them are the same SVG. The reference is the standard library's ``asdict`` and
+ziamath's own drawing with it."""
+
+from __future__ import annotations
+
+import dataclasses
+
+import pytest
+
+ziamath = pytest.importorskip("ziamath")
+from ziamath import styles  # noqa: E402
+
+from calcsheet.writers import ziamath_style  # noqa: E402
+
+if not ziamath_style.copy_styles_directly():
+    pytest.skip("the change applies only to the ziamath version it was read from", allow_module_level=True)
+
+# shapes the sheets show: a sine-forced solution (nested brackets, scripts), a radical, an integral, styled letters
+EQUATIONS = [
+    r"S{\left(t \right)} = \left(S_{0} - \frac{Q_{0} k \left(k^{2} \omega^{2} + 1\right) - A k}{k^{2} \omega^{2} + 1}"
+    r"\right) e^{- \frac{t}{k}} + \frac{A k \left(\sin{\left(\omega t \right)} - k \omega \cos{\left(\omega t"
+    r" \right)}\right)}{k^{2} \omega^{2} + 1}",
+    r"\sqrt{\left(\frac{\left(a + b\right)}{c}\right)^{2} + 1}",
+    r"\int_{0}^{t} \left(\frac{\left(1 + s\right)}{2}\right) e^{\frac{s}{\tau}}\, ds",
+    r"\tau = R\,C = 47\ \mathrm{k\Omega} \cdot 10\ \mathrm{\mu F}",
+    r"\mathbf{F} = \mathrm{d}\mathit{p}/dt",
+    r"\mathsf{A}_{\mathbb{R}} + \mathcal{L}^{\prime}",
+]
+
+STYLES = [
+    styles.MathStyle(),
+    styles.MathStyle(
+        mathvariant=styles.MathVariant(style="sans", italic=True, bold=True, normal=False),
+        displaystyle=False,
+        mathcolor="red",
+        mathbackground="#eee",
+        mathsize="120%",
+        scriptlevel=2,
+    ),
+    styles.MathStyle(mathvariant=styles.MathVariant(style="double", normal=True), scriptlevel=1),
+]
+
+
+@pytest.mark.parametrize("style", STYLES)
+def test_the_copy_is_asdicts(style):
+    copied = ziamath_style.style_as_dict(style)
+    assert copied == dataclasses.asdict(style)
+    assert list(copied) == list(dataclasses.asdict(style))  # the same keys in the same order
+
+
+def test_every_field_of_the_style_is_copied():
+    """A ziamath that added a field would need the copy read again (the version check guards it too)."""
+    assert [f.name for f in dataclasses.fields(styles.MathStyle)] == list(
+        ziamath_style.style_as_dict(styles.MathStyle())
+    )
+    assert [f.name for f in dataclasses.fields(styles.MathVariant)] == list(
+        ziamath_style.style_as_dict(styles.MathStyle())["mathvariant"]
+    )
+
+
+@pytest.mark.parametrize("latex", EQUATIONS)
+def test_the_drawing_is_ziamaths_own(latex, monkeypatch):
+    drawn = ziamath.Latex(latex, size=13.5).svg()
+    monkeypatch.setattr(styles, "asdict", dataclasses.asdict)
+    assert ziamath.Latex(latex, size=13.5).svg() == drawn
+
+
+def test_ziamath_uses_the_copy():
+    assert styles.asdict is ziamath_style.style_as_dict
