@@ -138,7 +138,31 @@ def _is_zero(expr: sp.Expr) -> bool:
     """Exactly zero? Cheap rewritings first; full simplification (within budget) only if needed."""
     if expr == 0 or sp.expand(expr) == 0 or sp.cancel(sp.together(expr)) == 0:
         return True
-    if not expr.free_symbols:
+    if not expr.free_symbols or nonzero_at_a_point(expr):
         return False
     simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(expr), expr)
     return done and simplified == 0
+
+
+# Where a value proves an expression not identically zero; two points, since one may sit on a root by chance.
+# Each symbol gets its own value (a - b must not vanish by coincidence), of the sign its assumptions allow.
+_POINTS = (sp.Rational(3, 7), sp.Rational(29, 17))
+
+
+def nonzero_at_a_point(expr: sp.Expr) -> bool:
+    """Shown not to be identically zero: its exact value at a rational point is non-zero to 15 digits that sympy
+    guarantees (``evalf(strict=True)`` raises rather than guess, as for a value that is really zero). False means
+    "not shown", and the caller simplifies. A symbolic simplify of a non-zero expression only to learn that it
+    is non-zero cost most of the classification (a second for a plain sheet)."""
+    symbols = sorted(expr.free_symbols, key=sp.default_sort_key)
+    if any(s.is_integer or s.is_zero for s in symbols):
+        return False
+    for base in _POINTS:
+        point = {s: (-1 if s.is_nonpositive else 1) * (base + sp.Rational(i, 13)) for i, s in enumerate(symbols)}
+        try:
+            value = sp.N(expr.xreplace(point), 15, strict=True)
+        except (sp.core.evalf.PrecisionExhausted, ArithmeticError, TypeError, ValueError):
+            continue
+        if value.is_number and value.is_finite and value != 0:
+            return True
+    return False
