@@ -7,6 +7,8 @@ pairs is printed. CPU seconds and peak memory come from the kernel's accounting 
 
 - JSON only over a bare solve: ``calcsheet build X --format json`` against a script that imports sympy and
   calls ``dsolve`` and ``checkodesol`` on the same equation, for four cases of tests/reference/corpus.py.
+- The floor of that ratio: a process that only imports what every build must load (sympy, pint with numpy, and
+  scipy.integrate for the independent check), against the same bare solve; and the same without scipy.
 - PDF over HTML only: ``--format pdf`` against ``--format html`` for one demo.
 - CPU seconds per sheet, all four formats, the demos built in one command; and peak memory of one sheet with
   its PDF.
@@ -132,6 +134,22 @@ def json_over_bare_solve(folder: Path, pairs: int, cases: tuple[str, ...]) -> li
     return lines
 
 
+FLOOR_IMPORTS = {
+    "imports every build needs": "import sympy, numpy, scipy.integrate; import calcsheet.source.pint_import",
+    "the same without scipy": "import sympy, numpy; import calcsheet.source.pint_import",
+}
+
+
+def import_floor(pairs: int, case: str) -> list[str]:
+    """What no change to calcsheet's own code can go below: its libraries' imports, over the bare solve."""
+    theirs = [sys.executable, str(Path(__file__).resolve()), "--checkout", str(ROOT), "--bare-solve", case]
+    lines = []
+    for label, statement in FLOOR_IMPORTS.items():
+        results = paired([sys.executable, "-c", statement], theirs, pairs)
+        lines.append(ratio_line(f"  {label} / bare solve ({case})", results))
+    return lines
+
+
 def pdf_over_html(folder: Path, pairs: int) -> list[str]:
     demo = ROOT / "inputs" / PDF_DEMO_NAME
     results = paired(build([demo], folder / "pdf", "pdf"), build([demo], folder / "html", "html"), pairs)
@@ -182,6 +200,7 @@ def main(argv: list[str] | None = None) -> int:
         folder = Path(directory)
         for section in (
             lambda: json_over_bare_solve(folder, args.pairs, cases),
+            lambda: import_floor(args.pairs, cases[0]),
             lambda: pdf_over_html(folder, args.pairs),
             lambda: demos_all_formats(folder, demos),
             lambda: [] if args.quick else sine_reservoir(folder),

@@ -1,13 +1,16 @@
-"""Copy a parent's math style field by field, not through ``dataclasses.asdict``.
+"""Read a node's math style from plain dicts, not through ``dataclasses.asdict`` and a ``ChainMap``.
 
-ziamath (0.13) reads every node's style as its own attributes over its parent's style turned into a dict, and
+ziamath (0.13) reads every node's style as its own attributes over its parent's style turned into a dict: it
 turns the parent's style into a dict with ``dataclasses.asdict``, which walks the nested variant recursively and
-deep-copies every value. An equation makes a node per glyph run, per row and per script, each laid out more
-than once, so ``asdict`` was about a quarter of all of ziamath's time on a sine-forced sheet's PDF.
-``style_as_dict`` makes the same dict (the same keys, the variant as a nested dict, values that are strings,
-numbers and booleans, which need no copy) without the walk. It is put in place of ``asdict`` in ziamath's
-styles module only, and only for the ziamath version it was read from; the SVGs are the same, compared in
-``tests/writers/test_ziamath_style.py``.
+deep-copies every value, and looks the attributes up through a ``collections.ChainMap``, whose every lookup is
+Python code. An equation makes a node per glyph run, per row and per script, each laid out more than once, so
+the two were about 40 % of all of ziamath's time on a sine-forced sheet's PDF.
+
+``style_as_dict`` makes the same dict as ``asdict`` (the same keys, the variant as a nested dict, values that
+are strings, numbers and booleans, which need no copy) without the walk; ``attributes_over_parent`` gives the
+lookups the same answers as ``ChainMap(attributes, parent)`` from one merged dict (ziamath only reads it). Both
+are put in place of those two names in ziamath's styles module only, and only for the ziamath version they were
+read from; the SVGs are the same, compared in ``tests/writers/test_ziamath_style.py``.
 """
 
 from __future__ import annotations
@@ -36,10 +39,15 @@ def style_as_dict(style) -> dict:
     }
 
 
+def attributes_over_parent(attributes, parent: dict) -> dict:
+    """What ``ChainMap(attributes, parent)`` answers to a read: an attribute of the node's own, else the parent's."""
+    return {**parent, **attributes}
+
+
 def copy_styles_directly() -> bool:
-    """Make ziamath's style parsing use ``style_as_dict`` (once per process); False if the version differs."""
+    """Make ziamath's style parsing use the two above (once per process); False if the version differs."""
     if ziamath.__version__ != READ_FROM_VERSION:
         return False
-    if styles.asdict is not style_as_dict:
-        styles.asdict = style_as_dict
+    styles.asdict = style_as_dict
+    styles.ChainMap = attributes_over_parent
     return True

@@ -1,10 +1,11 @@
-"""Styles copied field by field (writers/ziamath_style.py) are exactly what ``dataclasses.asdict`` makes, and the
-equations ziamath draws with them are the same SVG. The reference is the standard library's ``asdict`` and
-ziamath's own drawing with it."""
+"""Styles read from plain dicts (writers/ziamath_style.py) are exactly what ``dataclasses.asdict`` and a
+``ChainMap`` give, and the equations ziamath draws with them are the same SVG. The references are the standard
+library's ``asdict`` and ``ChainMap``, and ziamath's own drawing with them."""
 
 from __future__ import annotations
 
 import dataclasses
+from collections import ChainMap
 
 import pytest
 
@@ -63,8 +64,23 @@ def test_every_field_of_the_style_is_copied():
 def test_the_drawing_is_ziamaths_own(latex, monkeypatch):
     drawn = ziamath.Latex(latex, size=13.5).svg()
     monkeypatch.setattr(styles, "asdict", dataclasses.asdict)
+    monkeypatch.setattr(styles, "ChainMap", ChainMap)
     assert ziamath.Latex(latex, size=13.5).svg() == drawn
 
 
-def test_ziamath_uses_the_copy():
+@pytest.mark.parametrize(
+    "attributes",
+    [{}, {"mathcolor": "red"}, {"displaystyle": "false", "scriptlevel": "1"}, {"style": "color: blue;", "x": "1"}],
+)
+def test_the_merged_dict_reads_as_the_chain(attributes):
+    parent = ziamath_style.style_as_dict(STYLES[1])
+    merged, chain = ziamath_style.attributes_over_parent(attributes, parent), ChainMap(attributes, parent)
+    for key in [*parent, *attributes, "display", "missing"]:
+        assert (key in merged) == (key in chain)
+        assert merged.get(key, "default") == chain.get(key, "default")
+    assert dict(merged) == dict(chain)
+
+
+def test_ziamath_uses_both():
     assert styles.asdict is ziamath_style.style_as_dict
+    assert styles.ChainMap is ziamath_style.attributes_over_parent
