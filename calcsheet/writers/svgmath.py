@@ -33,10 +33,10 @@ def render(latex: str, size: float = FONT_SIZE) -> Rendered:
 
     ziafont.config.svg2 = False  # paths, not <symbol>/<use>: see the module's docstring
     from calcsheet.writers.ziamath_rows import measure_once
-    from calcsheet.writers.ziamath_style import copy_styles_directly
+    from calcsheet.writers.ziamath_lookups import cheap_lookups
 
     measure_once()
-    copy_styles_directly()
+    cheap_lookups()
     math = ziamath.Latex(latex, size=size)
     svg = math.svg()
     width, height = _viewbox_size(svg)

@@ -1,4 +1,4 @@
-"""Styles read from plain dicts (writers/ziamath_style.py) are exactly what ``dataclasses.asdict`` and a
+"""Styles read from plain dicts (writers/ziamath_lookups.py) are exactly what ``dataclasses.asdict`` and a
 ``ChainMap`` give, and the equations ziamath draws with them are the same SVG. The references are the standard
 library's ``asdict`` and ``ChainMap``, and ziamath's own drawing with them."""
 
@@ -11,10 +11,11 @@ import pytest
 
 ziamath = pytest.importorskip("ziamath")
 from ziamath import styles  # noqa: E402
+from ziamath.nodes.mnode import Mnode  # noqa: E402
 
-from calcsheet.writers import ziamath_style  # noqa: E402
+from calcsheet.writers import ziamath_lookups  # noqa: E402
 
-if not ziamath_style.copy_styles_directly():
+if not ziamath_lookups.cheap_lookups():
     pytest.skip("the change applies only to the ziamath version it was read from", allow_module_level=True)
 
 # shapes the sheets show: a sine-forced solution (nested brackets, scripts), a radical, an integral, styled letters
@@ -45,7 +46,7 @@ STYLES = [
 
 @pytest.mark.parametrize("style", STYLES)
 def test_the_copy_is_asdicts(style):
-    copied = ziamath_style.style_as_dict(style)
+    copied = ziamath_lookups.style_as_dict(style)
     assert copied == dataclasses.asdict(style)
     assert list(copied) == list(dataclasses.asdict(style))  # the same keys in the same order
 
@@ -53,10 +54,10 @@ def test_the_copy_is_asdicts(style):
 def test_every_field_of_the_style_is_copied():
     """A ziamath that added a field would need the copy read again (the version check guards it too)."""
     assert [f.name for f in dataclasses.fields(styles.MathStyle)] == list(
-        ziamath_style.style_as_dict(styles.MathStyle())
+        ziamath_lookups.style_as_dict(styles.MathStyle())
     )
     assert [f.name for f in dataclasses.fields(styles.MathVariant)] == list(
-        ziamath_style.style_as_dict(styles.MathStyle())["mathvariant"]
+        ziamath_lookups.style_as_dict(styles.MathStyle())["mathvariant"]
     )
 
 
@@ -65,6 +66,7 @@ def test_the_drawing_is_ziamaths_own(latex, monkeypatch):
     drawn = ziamath.Latex(latex, size=13.5).svg()
     monkeypatch.setattr(styles, "asdict", dataclasses.asdict)
     monkeypatch.setattr(styles, "ChainMap", ChainMap)
+    monkeypatch.setattr(Mnode, "size_px", Mnode.size_px.computed)
     assert ziamath.Latex(latex, size=13.5).svg() == drawn
 
 
@@ -73,8 +75,8 @@ def test_the_drawing_is_ziamaths_own(latex, monkeypatch):
     [{}, {"mathcolor": "red"}, {"displaystyle": "false", "scriptlevel": "1"}, {"style": "color: blue;", "x": "1"}],
 )
 def test_the_merged_dict_reads_as_the_chain(attributes):
-    parent = ziamath_style.style_as_dict(STYLES[1])
-    merged, chain = ziamath_style.attributes_over_parent(attributes, parent), ChainMap(attributes, parent)
+    parent = ziamath_lookups.style_as_dict(STYLES[1])
+    merged, chain = ziamath_lookups.attributes_over_parent(attributes, parent), ChainMap(attributes, parent)
     for key in [*parent, *attributes, "display", "missing"]:
         assert (key in merged) == (key in chain)
         assert merged.get(key, "default") == chain.get(key, "default")
@@ -82,5 +84,12 @@ def test_the_merged_dict_reads_as_the_chain(attributes):
 
 
 def test_ziamath_uses_both():
-    assert styles.asdict is ziamath_style.style_as_dict
-    assert styles.ChainMap is ziamath_style.attributes_over_parent
+    assert styles.asdict is ziamath_lookups.style_as_dict
+    assert styles.ChainMap is ziamath_lookups.attributes_over_parent
+
+
+@pytest.mark.parametrize("size", ["thinmathspace", "negativemediummathspace", "0.2em", "3px", "1.5", "2ex", "bad", ""])
+@pytest.mark.parametrize("fontsize", [None, 9.45, 13.5])
+def test_a_remembered_size_is_the_computed_one(size, fontsize):
+    node = ziamath.Latex("x", size=13.5).node  # any node: the size reads its glyph size only
+    assert node.size_px(size, fontsize) == Mnode.size_px.computed(node, size, fontsize)
