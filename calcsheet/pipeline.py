@@ -63,6 +63,28 @@ def build_model(model) -> Built:
     return Built(Path(model.path), derivation, seal(compose(derivation), model.sheet))
 
 
+def import_libraries(formats: tuple[str, ...]) -> None:
+    """Import what deriving a sheet and rendering ``formats`` will load (sympy, scipy, pint and numpy; Jinja2 and
+    matplotlib for HTML or PDF; ziamath for PDF), so that worker processes forked afterwards share one import
+    instead of making one each (about 3 CPU s a worker). WeasyPrint is left to the workers: it loads native
+    libraries whose state is not for sharing across a fork."""
+    import calcsheet.derive.derivation  # noqa: F401 - sympy, scipy.integrate, pint, numpy
+    import calcsheet.derive.margin  # noqa: F401 - scipy.optimize
+    import calcsheet.derive.piecewise  # noqa: F401
+    import calcsheet.review.seal  # noqa: F401
+    import calcsheet.sheet.compose  # noqa: F401
+
+    if {"html", "pdf"} & set(formats):
+        import matplotlib.backends.backend_agg  # noqa: F401 - what writers/plot.py draws and measures with
+        import matplotlib.backends.backend_svg  # noqa: F401
+        import matplotlib.figure  # noqa: F401
+        import matplotlib.style  # noqa: F401
+
+        import calcsheet.writers.html  # noqa: F401 - Jinja2
+    if "pdf" in formats:
+        import ziamath  # noqa: F401
+
+
 SWEEP_FORMATS = ("csv", "svg", "png")
 DEFAULT_SWEEP_FORMATS = ("csv", "svg")
 

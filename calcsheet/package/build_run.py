@@ -128,7 +128,9 @@ class BuildRun:
                 if on_step:
                     on_step(job.path)
 
-        run_steps(steps, self._start, finish, workers)
+        from calcsheet.pipeline import import_libraries
+
+        run_steps(steps, self._start, finish, workers, prepare=lambda: import_libraries(self.formats))
         return self.worst
 
     def _entry(self, job):

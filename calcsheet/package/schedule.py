@@ -1,6 +1,8 @@
 """Running sheets in dependency order, in a pool of worker processes: a sheet starts once every sheet whose
 results it uses has finished, and each finished sheet is handed back to the main process (which alone writes
-files). Workers are forked and live for the whole run, so each imports the heavy libraries once."""
+files). Workers are forked and live for the whole run, so each imports the heavy libraries once; and where the
+caller names them (``prepare``), the main process imports them once before forking, so no worker imports them
+at all."""
 
 from __future__ import annotations
 
@@ -39,11 +41,12 @@ def _die_with_parent(parent: int) -> None:
         os._exit(1)
 
 
-def run_steps(steps: list[Step], start, finish, jobs: int) -> None:
+def run_steps(steps: list[Step], start, finish, jobs: int, prepare=None) -> None:
     """For each step once its ``after`` steps are done: ``start(step)`` returns ``("done", result)`` when the
     main process settles it at once (a cache hit), or ``("work", function, argument)`` for a worker; then
     ``finish(step, result)`` runs in the main process. Steps become ready in the order given; with one job the
-    work runs here, in order, with no pool."""
+    work runs here, in order, with no pool. ``prepare()`` runs here once, just before the first worker is forked
+    (never when every step is settled at once or there is one job): the imports the workers would each make."""
     pending = list(steps)
     finished: set = set()
     running: dict[Future, Step] = {}
@@ -62,6 +65,8 @@ def run_steps(steps: list[Step], start, finish, jobs: int) -> None:
                     finished.add(step.name)
                 else:
                     if pool is None:
+                        if prepare is not None:
+                            prepare()
                         pool = ProcessPoolExecutor(
                             max_workers=jobs,
                             mp_context=multiprocessing.get_context("fork"),
