@@ -84,7 +84,9 @@ def lines_for(latex: str, width: float) -> tuple[list[str], float]:
         return [latex], 1.0
     tokens = []
     for piece in split_top_level(latex, (" = ",)):
-        tokens.extend([piece] if render(piece).width <= width else split_top_level(piece, (" + ", " - ")))
+        terms = split_top_level(piece, (" + ", " - "))
+        # a piece with no '+' or '-' to break at stays whole whatever its width: typesetting it decides nothing
+        tokens.extend(terms if len(terms) > 1 and render(piece).width > width else [piece])
     lines = _pack(tokens, width)
     widest = max(render(line).width for line in lines)
     return lines, min(1.0, width / widest)

@@ -46,3 +46,25 @@ def test_the_plot_and_each_equation_are_drawn_once_for_all_four_formats(sheet, m
     assert sum(plots.values()) == 1, plots
     assert equations and max(equations.values()) == 1, [text for text, n in equations.items() if n > 1]
     assert mathml_forms and max(mathml_forms.values()) == 1
+
+
+def test_a_long_piece_with_nothing_to_break_at_is_not_typeset_on_its_own(monkeypatch):
+    """Breaking a wide equation typesets the whole, the pieces it can break further, and the lines; a piece with
+    no top-level '+' or '-' stays whole whatever its width, so typesetting it alone would decide nothing."""
+    import ziamath
+
+    typeset = Counter()
+    latex = ziamath.Latex
+
+    def counted_latex(text, *args, **kwargs):
+        typeset[text] += 1
+        return latex(text, *args, **kwargs)
+
+    monkeypatch.setattr(ziamath, "Latex", counted_latex)
+    svgmath.render.cache_clear()
+    wide = r"\frac{" + r" \cdot ".join(f"a_{{{i}}}" for i in range(40)) + "}{2}"
+    lines, _ = svgmath.lines_for(f"y = {wide}", 200.0)
+    assert lines == ["y", rf"\quad = {wide}"]
+    assert f"= {wide}" not in typeset
+    assert set(typeset) == {f"y = {wide}", *lines}
+    svgmath.render.cache_clear()
