@@ -3,8 +3,9 @@ equation's LaTeX and in a paragraph or a table cell, from the one table below, s
 T_inf in a table and T with a subscript infinity in the equation above it.
 
 A subscript that describes (c_p, Q_in, V_s) is set upright and one that names a quantity (v_C, t_V) or
-counts (t_k) is set italic, as ISO 80000-2 asks (from memory). The text record and the JSON keep the names
-as written.
+counts (t_k) is set italic, as ISO 80000-2 asks (from memory). A name of several subscripts (Q_in_amp, the
+amplitude of a forcing of Q_in) sets them apart with commas, Q with subscript "in,amp" (common practice, no
+source). The text record and the JSON keep the names as written.
 """
 
 from __future__ import annotations
@@ -48,13 +49,15 @@ GREEK = {
 }
 SIGNS = {"inf": (r"\infty", "∞")}  # subscripts written as a sign: T_inf is T with subscript infinity
 COUNTING = frozenset("ijk")  # one-letter subscripts that count (t_k), italic
-_NAME = re.compile(r"^([A-Za-z]+)(?:_([A-Za-z0-9]+))?$")
+_NAME = re.compile(r"^([A-Za-z]+)((?:_[A-Za-z0-9]+)*)$")
+SUBSCRIPT_SEPARATOR = ","  # between the subscripts of one name
 
 
 def parts(name: str) -> tuple[str, str] | None:
-    """(base, subscript) of a name this table spells (subscript "" for none); None for any other name."""
+    """(base, subscript) of a name this table spells (subscript "" for none, several joined by commas); None for
+    any other name."""
     match = _NAME.match(name)
-    return (match.group(1), match.group(2) or "") if match else None
+    return (match.group(1), SUBSCRIPT_SEPARATOR.join(match.group(2).split("_")[1:])) if match else None
 
 
 def symbol_tex(name: str) -> str | None:
@@ -73,6 +76,8 @@ def symbol_tex(name: str) -> str | None:
 
 
 def _subscript_tex(subscript: str) -> str:
+    if SUBSCRIPT_SEPARATOR in subscript:
+        return SUBSCRIPT_SEPARATOR.join(_subscript_tex(part) for part in subscript.split(SUBSCRIPT_SEPARATOR))
     if subscript in SIGNS:
         return SIGNS[subscript][0]
     if subscript in GREEK:
@@ -90,11 +95,13 @@ def symbol_text(name: str) -> tuple[str, str]:
         return name, ""
     base, subscript = found
     base = GREEK[base][1] if base in GREEK else base
+    return base, SUBSCRIPT_SEPARATOR.join(_subscript_text(part) for part in subscript.split(SUBSCRIPT_SEPARATOR))
+
+
+def _subscript_text(subscript: str) -> str:
     if subscript in SIGNS:
-        subscript = SIGNS[subscript][1]
-    elif subscript in GREEK:
-        subscript = GREEK[subscript][1]
-    return base, subscript
+        return SIGNS[subscript][1]
+    return GREEK[subscript][1] if subscript in GREEK else subscript
 
 
 def respelled(name: str) -> bool:

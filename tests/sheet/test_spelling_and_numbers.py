@@ -35,6 +35,9 @@ ROOT = Path(__file__).resolve().parents[2]
         ("v_C", "v_{C}", ("v", "C")),  # names a quantity: italic
         ("t_k", "t_{k}", ("t", "k")),  # counts: italic
         ("T_0", "T_{0}", ("T", "0")),
+        # a forcing's value of a source with its own subscript: several subscripts, set apart by commas
+        ("Q_in_amp", r"Q_{\mathrm{in},\mathrm{amp}}", ("Q", "in,amp")),
+        ("T_inf_offset", r"T_{\infty,\mathrm{offset}}", ("T", "∞,offset")),
     ],
 )
 def test_one_spelling_in_equations_and_prose(name, tex, text):
