@@ -35,14 +35,14 @@ def compact(expr: sp.Expr, seconds: float = SIMPLIFY_SECONDS) -> sp.Expr:
 @functools.lru_cache(maxsize=1024)
 def _compact(expr: sp.Expr, seconds: float) -> sp.Expr:
     candidates = [expr]
-    for transform in (lambda e: sp.powsimp(sp.expand(e)), _simplified):
+    for transform in (lambda e: sp.powsimp(sp.expand(e)), simplified):
         result, done = within(seconds, lambda: transform(expr), None)
         if done and result is not None:
             candidates.append(exp_of_logs_to_powers(result))
     return min(candidates, key=lambda e: (sp.count_ops(e), len(sp.srepr(e))))
 
 
-def _simplified(expr: sp.Expr) -> sp.Expr:
+def simplified(expr: sp.Expr) -> sp.Expr:
     """sympy's simplify; where the expression is linear in its sines and cosines (a sinusoidal forcing's
     response), with each of them held as a symbol.
 
