@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 import sympy as sp
 
+from calcsheet.derive import exp_sinusoid
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, NOT_FINITE_AT_START, within
 from calcsheet.derive.classify import Classification
 from calcsheet.derive.readable import choose_branches, compact, exp_of_logs_to_powers
@@ -193,10 +194,14 @@ def _free_name(name: str, taken: set[str]) -> str:
 def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.Expr, bool, str]:
     """∫ expr dx under the time budget: (result, closed, the code of why not closed).
 
-    The quick rule-based integrator goes first; the full algorithm only when it fails.
+    A sinusoid times an exponential is written down (exp_sinusoid.py); otherwise the quick rule-based
+    integrator goes first, the full algorithm only when it fails.
     """
 
     def attempt() -> sp.Expr:
+        known = exp_sinusoid.antiderivative(expr, x)
+        if known is not None:
+            return known
         result = sp.integrate(expr, x, manual=True)
         if result.has(sp.Integral):
             result = sp.integrate(expr, x)

@@ -35,11 +35,36 @@ def compact(expr: sp.Expr, seconds: float = SIMPLIFY_SECONDS) -> sp.Expr:
 @functools.lru_cache(maxsize=1024)
 def _compact(expr: sp.Expr, seconds: float) -> sp.Expr:
     candidates = [expr]
-    for transform in (lambda e: sp.powsimp(sp.expand(e)), sp.simplify):
+    for transform in (lambda e: sp.powsimp(sp.expand(e)), simplified):
         result, done = within(seconds, lambda: transform(expr), None)
         if done and result is not None:
             candidates.append(exp_of_logs_to_powers(result))
     return min(candidates, key=lambda e: (sp.count_ops(e), len(sp.srepr(e))))
+
+
+def simplified(expr: sp.Expr) -> sp.Expr:
+    """sympy's simplify; where the expression is linear in its sines and cosines (a sinusoidal forcing's
+    response), with each of them held as a symbol.
+
+    simplify's trigonometric pass (trigsimp) tries identity after identity and factors at each step: most of
+    a second per expression, several on larger ones, for a response of a * sin + b * cos where no identity
+    shortens anything but a numeric ratio of a to b. Every other pass still runs, and an identity with the
+    sines held as symbols holds for any values of them, so the result equals the expression. Its form may
+    differ from full simplify's (a common factor taken out or not); the sine-forced demos and test sheets
+    read the same either way (checked by building them with both).
+    """
+    trig = sorted(expr.atoms(sp.sin, sp.cos), key=sp.default_sort_key)
+    if not trig:
+        return sp.simplify(expr)
+    taken = {s.name for s in expr.free_symbols}
+    names = (f"trig{k}" for k in range(len(trig) + len(taken) + 1))
+    free = (n for n in names if n not in taken)
+    held = {f: sp.Symbol(next(free), **({"real": True} if f.is_real else {})) for f in trig}
+    abstracted = expr.xreplace(held)
+    symbols = list(held.values())
+    if any(sp.diff(abstracted, u, v) != 0 for i, u in enumerate(symbols) for v in symbols[i:]):
+        return sp.simplify(expr)  # a product or power of sines, or one in a denominator: identities may help
+    return sp.simplify(abstracted).xreplace({s: f for f, s in held.items()})
 
 
 def choose_branches(expr: sp.Expr, values: Mapping[sp.Symbol, float]) -> tuple[sp.Expr, tuple[str, ...]]:

@@ -112,7 +112,8 @@ def test_no_closed_form_uses_quadrature_and_still_verifies(tmp_path):
 def test_time_budget_falls_back_to_quadrature(tmp_path):
     # sympy caches what it integrated before in this process; a cached answer would take no CPU time at all
     sp.core.cache.clear_cache()
-    m = model(tmp_path, "tau*dy/dt + y = Y*sin(w*t)", 'tau = "1 s"\nY = "1 m"\nw = "2 rad/s"', at='"2 s"')
+    # a squared sine: exp(t) sin(w t) alone is written down without sympy's integrator (derive/exp_sinusoid.py)
+    m = model(tmp_path, "tau*dy/dt + y = Y*sin(w*t)^2", 'tau = "1 s"\nY = "1 m"\nw = "2 rad/s"', at='"2 s"')
     s = solve(m, classify(m), forcing_seconds=1e-4)
     assert not s.closed_form and s.fallback_codes == ("budget_exceeded",)
 
@@ -173,3 +174,25 @@ def _raises(thunk):
     except Exception as error:  # the type is the answer
         return type(error)
     return None
+
+
+def test_a_probe_point_decides_only_a_value_clearly_away_from_zero():
+    from calcsheet.derive.classify import _clearly_nonzero, _is_zero
+
+    t, a = sp.symbols("t a", positive=True)
+    point = {t: sp.Float(0.3183, 30), a: sp.Float(2.5, 30)}
+    assert _clearly_nonzero(a * sp.sin(t) + 1, point)
+    # zero by an identity, with 15-digit coefficients: round-off is not taken for a value
+    assert not _clearly_nonzero(3.1 * sp.sin(t) ** 2 + 3.1 * sp.cos(t) ** 2 - 3.1, point)
+    assert not _clearly_nonzero(1 / (t - sp.Float(0.3183, 30)), point)  # a pole
+    assert not _clearly_nonzero(sp.sqrt(t - 5), point)  # complex there
+    # the probe never turns a zero into a non-zero: the identity still goes to simplify
+    assert _is_zero(a * sp.sin(t) ** 2 + a * sp.cos(t) ** 2 - a, (point,))
+    assert not _is_zero(a * sp.sin(t) - a, (point,))
+
+
+def test_a_sine_forced_model_is_not_homogeneous_and_a_zero_source_is(tmp_path):
+    m = model(tmp_path, "tau*dy/dt + y = Y*sin(w*t + q)", 'tau = "1 s"\nY = "1 m"\nw = "2 rad/s"\nq = "0.5"')
+    assert not classify(m).homogeneous and not classify(m).homogeneous_with_values
+    zero = model(tmp_path, "tau*dy/dt + y = Y*sin(w*t)", 'tau = "1 s"\nY = "0 m"\nw = "2 rad/s"')
+    assert not classify(zero).homogeneous and classify(zero).homogeneous_with_values
