@@ -176,19 +176,18 @@ def _raises(thunk):
     return None
 
 
-def test_a_probe_point_decides_only_a_value_clearly_away_from_zero():
-    from calcsheet.derive.classify import _clearly_nonzero, _is_zero
+def test_a_point_decides_only_a_value_shown_away_from_zero():
+    from calcsheet.derive.classify import _is_zero, nonzero_at_a_point
 
     t, a = sp.symbols("t a", positive=True)
-    point = {t: sp.Float(0.3183, 30), a: sp.Float(2.5, 30)}
-    assert _clearly_nonzero(a * sp.sin(t) + 1, point)
+    assert nonzero_at_a_point(a * sp.sin(t) + 1)
     # zero by an identity, with 15-digit coefficients: round-off is not taken for a value
-    assert not _clearly_nonzero(3.1 * sp.sin(t) ** 2 + 3.1 * sp.cos(t) ** 2 - 3.1, point)
-    assert not _clearly_nonzero(1 / (t - sp.Float(0.3183, 30)), point)  # a pole
-    assert not _clearly_nonzero(sp.sqrt(t - 5), point)  # complex there
-    # the probe never turns a zero into a non-zero: the identity still goes to simplify
-    assert _is_zero(a * sp.sin(t) ** 2 + a * sp.cos(t) ** 2 - a, (point,))
-    assert not _is_zero(a * sp.sin(t) - a, (point,))
+    assert not nonzero_at_a_point(3.1 * sp.sin(t) ** 2 + 3.1 * sp.cos(t) ** 2 - 3.1)
+    assert nonzero_at_a_point(1 / (t - sp.Rational(3, 7)))  # a pole at the first point: the second decides
+    assert nonzero_at_a_point(sp.sqrt(t - 5))  # complex there, and not zero
+    # the point never turns a zero into a non-zero: the identity still goes to simplify
+    assert _is_zero(a * sp.sin(t) ** 2 + a * sp.cos(t) ** 2 - a)
+    assert not _is_zero(a * sp.sin(t) - a)
 
 
 def test_a_sine_forced_model_is_not_homogeneous_and_a_zero_source_is(tmp_path):
