@@ -18,7 +18,7 @@ import sympy as sp
 from scipy import integrate
 
 from calcsheet.derive.integrating_factor import Solution
-from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, has_infinity, real_float
+from calcsheet.derive.safe_numeric import BoundFunction, NotFinite, SafeFunction, has_infinity, real_float
 from calcsheet.errors import ModelRefused
 from calcsheet.model import Model
 
@@ -171,19 +171,6 @@ class _Compiled:
     open_terms: tuple[SafeFunction, ...]
 
 
-class _Bound:
-    """A SafeFunction of (x, parameters) with the parameters fixed: called, and its limit taken, in x alone."""
-
-    def __init__(self, function: SafeFunction, values: tuple[float, ...]):
-        self.function, self.values = function, values
-
-    def __call__(self, x) -> float:
-        return self.function(x, *self.values)
-
-    def limit(self, x) -> float:
-        return self.function.limit(x, *self.values)
-
-
 def evaluator_for(model: Model, solution: Solution, scale: float = 1.0) -> ResponseEvaluator:
     """make_evaluator's evaluator for a Model whose parameters moved, without substituting and compiling anew:
     the solution is compiled once with its parameters as arguments and called with this Model's values.
@@ -196,7 +183,7 @@ def evaluator_for(model: Model, solution: Solution, scale: float = 1.0) -> Respo
     """
     x = model.variable.symbol
     values = {**model.numeric_values(), **solution.initial_values(model)}
-    compiled = _compiled(solution, x, tuple(sorted(values, key=lambda s: s.name)), scale)
+    compiled = _compiled(solution, x, tuple(sorted(values, key=lambda s: s.name)))
     if compiled is None:
         return make_evaluator(model, solution, scale)
     floats = tuple(float(values[a]) for a in compiled.arguments)
@@ -204,9 +191,12 @@ def evaluator_for(model: Model, solution: Solution, scale: float = 1.0) -> Respo
     evaluator = ResponseEvaluator(
         closed=lambda at: compiled.closed(at, *precise),
         closed_vector=lambda grid: compiled.closed_vector(grid, *floats),
-        open_parts=[(_Bound(compiled.P, floats), _Bound(term, floats)) for term in compiled.open_terms],
+        open_parts=[
+            (BoundFunction(compiled.P.with_scale(scale), floats), BoundFunction(term.with_scale(scale), floats))
+            for term in compiled.open_terms
+        ],
         x0=model.initial_at.si,
-        closed_limit=_Bound(compiled.closed_limit, floats),
+        closed_limit=BoundFunction(compiled.closed_limit.with_scale(scale), floats),
     )
     start = evaluator._closed_at(model.initial_at.si)
     if not math.isfinite(start):
@@ -214,10 +204,10 @@ def evaluator_for(model: Model, solution: Solution, scale: float = 1.0) -> Respo
     return evaluator
 
 
-def _compiled(solution: Solution, x: sp.Symbol, known: tuple[sp.Symbol, ...], scale: float) -> "_Compiled | None":
+def _compiled(solution: Solution, x: sp.Symbol, known: tuple[sp.Symbol, ...]) -> "_Compiled | None":
     """The compiled functions of ``solution``; None where its closed form holds an infinity as written, or a
     symbol the values do not give."""
-    key = (solution, x, known, scale)
+    key = (solution, x, known)
     if key not in _COMPILED:
         if len(_COMPILED) >= _COMPILED_KEPT:
             _COMPILED.clear()
@@ -231,9 +221,9 @@ def _compiled(solution: Solution, x: sp.Symbol, known: tuple[sp.Symbol, ...], sc
                 arguments=known,
                 closed=sp.lambdify(arguments, closed, modules="mpmath", docstring_limit=0),
                 closed_vector=sp.lambdify(arguments, closed, modules=["scipy", "numpy"], docstring_limit=0),
-                closed_limit=SafeFunction(closed, arguments, scale=scale),
-                P=SafeFunction(solution.P, arguments, scale=scale),
-                open_terms=tuple(SafeFunction(term, arguments, scale=scale) for term in solution.open_terms),
+                closed_limit=SafeFunction(closed, arguments),
+                P=SafeFunction(solution.P, arguments),
+                open_terms=tuple(SafeFunction(term, arguments) for term in solution.open_terms),
             )
     return _COMPILED[key]
 

@@ -21,7 +21,7 @@ import sympy as sp
 from scipy import optimize
 
 from calcsheet.derive.budget import within
-from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, real_float
+from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, bound, real_float
 from calcsheet.derive.verify import _jumps as forcing_jumps
 from calcsheet.model import Model, Window
 
@@ -87,16 +87,22 @@ class Extreme:
 class Piece:
     """One stretch of the response under one law, from ``start`` to ``end`` (None: no end)."""
 
-    def __init__(self, model: Model, solution, cls, y, start: float, end: float | None, scale: float = 1.0):
+    def __init__(
+        self, model: Model, solution, cls, y, start: float, end: float | None, scale: float = 1.0, compiled=False
+    ):
+        """``compiled``: p and r compiled once per form with the parameters as arguments (safe_numeric.bound)."""
         x = model.variable.symbol
         values = {**model.numeric_values(), **solution.initial_values(model)}
         self.x, self.y, self.start, self.end, self.x0 = x, y, start, end, model.initial_at.si
         self.corners = tuple(forcing_jumps(model, start, end if end is not None else math.inf)) + _kinks(
             model.residual.subs(model.numeric_values()), x, start, end
         )
-        p = (solution.p if solution.p is not None else cls.p).subs(values)
-        r = (solution.r if solution.r is not None else cls.r).subs(values)
-        self.p, self.r = SafeFunction(p, x, scale=scale), SafeFunction(r, x, scale=scale)
+        p = solution.p if solution.p is not None else cls.p
+        r = solution.r if solution.r is not None else cls.r
+        if compiled:
+            self.p, self.r = bound(p, x, values, scale=scale), bound(r, x, values, scale=scale)
+        else:
+            self.p, self.r = SafeFunction(p.subs(values), x, scale=scale), SafeFunction(r.subs(values), x, scale=scale)
         self.derivative = None  # sympy dy/dx of the particular solution, when it is in closed form
         if solution.closed_form:
             expr = sp.diff(solution.particular.subs(values), x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)

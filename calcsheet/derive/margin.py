@@ -226,7 +226,7 @@ class _Study:
             reach = [abs(p.si) for p in model.evaluate_at] + [abs(model.initial_at.si)]
             y = evaluator_for(model, self.d.solution, scale=max(reach + [1.0]))
             final = self.final_forms[0](model) if self.final_forms[0] else None
-            numbers = compute_numbers(model, self.d.classification, self.d.solution, y, final=final)
+            numbers = compute_numbers(model, self.d.classification, self.d.solution, y, final=final, compiled=True)
         criteria = numbers.verdicts[: len(self.model.criteria)]
         found = Outcome(
             quantities=tuple(_finite(v.actual) for v in numbers.verdicts),
@@ -619,7 +619,7 @@ def _switched_numbers(model: Model, nominal, final_forms):
         d0 = done.derivation
         y = evaluator_for(local, d0.solution, scale=max(abs(local.initial_at.si), 1.0))
         final = final_forms[k](local) if final_forms[k] else None
-        numbers = compute_numbers(local, d0.classification, d0.solution, y, final=final)
+        numbers = compute_numbers(local, d0.classification, d0.solution, y, final=final, compiled=True)
         d = Derivation(local, d0.classification, d0.solution, numbers, None, (), None, y)
         intervals.append(Interval(done.start, done.end, done.text, d, done.carried))
         if done.end is not None:
