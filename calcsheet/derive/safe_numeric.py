@@ -63,7 +63,9 @@ class SafeFunction:
         plain = in_plain_arithmetic(expr)
         self._plain = plain is not None
         if plain is not None:  # the same numbers as mpmath at 53 bits, some ten times faster (see the function)
-            self.fast = sp.lambdify(symbols, plain, modules=[_PLAIN_NAMES, "mpmath"], docstring_limit=0)
+            self.fast = sp.lambdify(
+                symbols, plain, modules=[_PLAIN_NAMES, "mpmath"], printer=_plain_printer(), docstring_limit=0
+            )
         else:
             self.fast = sp.lambdify(symbols, expr, modules=["math", "mpmath"], docstring_limit=0)
         self.precise = sp.lambdify(symbols, expr, modules="mpmath", docstring_limit=0)
@@ -215,6 +217,22 @@ def _exact_double(value) -> float:
 
 
 _PLAIN_NAMES = {"mpf": _exact_double, "_calcsheet_square": lambda v: v * v}
+
+
+def _plain_printer():
+    """mpmath's printer with each Float written as the double it is (repr gives it back exactly) and each
+    fraction as p/q (rounded once, as mpf(p)/mpf(q) is at 53 bits): constants folded when the code is compiled,
+    not converted at every call."""
+    from sympy.printing.pycode import MpmathPrinter
+
+    class PlainPrinter(MpmathPrinter):
+        def _print_Float(self, e):
+            return repr(float(e))
+
+        def _print_Rational(self, e):
+            return f"({e.p}/{e.q})"
+
+    return PlainPrinter({"fully_qualified_modules": False, "inline": True, "allow_unknown_functions": True})
 
 
 def in_plain_arithmetic(expr: sp.Expr) -> sp.Expr | None:
