@@ -193,7 +193,7 @@ class _DerivedPiece:
             derivative = sp.diff(curve.closed, curve.x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
             if not has_infinity(derivative):
                 self.derivative = derivative
-                self._precise = sp.lambdify(curve.x, derivative, modules="mpmath", docstring_limit=0)
+                self._precise = by_shape.precise_function(derivative, curve.x)
 
     def slope(self, at: float) -> float:
         if self.derivative is not None:
@@ -224,7 +224,7 @@ def derived_values(model: Model, curves: dict[str, DerivedCurve], applies) -> tu
 
 def _difference(antiderivative: sp.Expr, x: sp.Symbol, a: float, b: float) -> float:
     """F(b) - F(a) in 30 digits; NaN where F has no finite value at an end."""
-    f = sp.lambdify(x, antiderivative, modules="mpmath", docstring_limit=0)
+    f = by_shape.precise_function(antiderivative, x)
     with mpmath.workdps(DIGITS):
         try:
             return real_float(f(mpmath.mpf(b)) - f(mpmath.mpf(a)))

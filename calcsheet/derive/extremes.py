@@ -21,6 +21,7 @@ import numpy as np
 import sympy as sp
 from scipy import optimize
 
+from calcsheet.derive import by_shape
 from calcsheet.derive.budget import within
 from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, bound, real_float
 from calcsheet.derive.verify import _jumps as forcing_jumps
@@ -127,7 +128,7 @@ class Piece:
 
     @functools.cached_property
     def _precise(self):
-        return sp.lambdify(self.x, self.derivative, modules="mpmath", docstring_limit=0)
+        return by_shape.precise_function(self.derivative, self.x)
 
     def slope(self, at: float) -> float:
         """dy/dx at a point: the closed form's derivative in 30 digits, else r - p*y from the equation."""
