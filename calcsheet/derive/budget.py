@@ -21,7 +21,8 @@ T = TypeVar("T")
 # Each is set so that every shipped and tested input finishes well inside it on a machine four times
 # slower than a developer's: benchmarks/bench_budget_headroom.py rebuilds the demos with every budget
 # divided by four (SCALE = 0.25) and compares the records (a measurement, not a test: it depends on the
-# machine). The slowest step of a demo takes about 5 s here (the probe's error-function integral).
+# machine). The slowest step of a demo used to be the probe's bell-shaped forcing (about 5 s in sympy before
+# it gave up); that integral is now decided by its form (no_elementary.py) and never reaches sympy.
 INTEGRATE_SECONDS = 40.0
 SIMPLIFY_SECONDS = 15.0
 LIMIT_SECONDS = 15.0

@@ -12,6 +12,7 @@ finished within its budget is kept with the shape, so every set of numbers of on
 
 from __future__ import annotations
 
+import mpmath
 import sympy as sp
 
 from calcsheet.derive.budget import within
@@ -53,3 +54,24 @@ def _antiderivative(expr: sp.Expr, x: sp.Symbol) -> sp.Expr | None:
         return sp.integrate(expr, x)
     except Exception:
         return None
+
+
+_functions: dict[tuple[sp.Expr, sp.Symbol], tuple[tuple[sp.Symbol, ...], object]] = {}
+_FUNCTIONS_KEPT = 256  # a bound on the entries kept, for a process that builds many sheets
+
+
+def precise_function(expr: sp.Expr, x: sp.Symbol):
+    """lambdify(x, expr, modules="mpmath"), compiled once per shape: the numbers become arguments, each made an
+    mpf from its Float's exact binary form at every call, as the printed code would make it, so a call in a
+    higher working precision (mpmath.workdps) computes as the substituted code did, up to the order of
+    operations, which the working precision's rounding makes invisible in a double."""
+    shape, numbers = as_shape(expr)
+    key = (shape, x)
+    if key not in _functions:
+        if len(_functions) >= _FUNCTIONS_KEPT:
+            _functions.clear()
+        symbols = tuple(sorted(numbers, key=lambda s: s.name))
+        _functions[key] = (symbols, sp.lambdify((x, *symbols), shape, modules="mpmath", docstring_limit=0))
+    symbols, function = _functions[key]
+    exact = tuple(numbers[s]._mpf_ for s in symbols)
+    return lambda at: function(at, *(mpmath.mpf(e) for e in exact))

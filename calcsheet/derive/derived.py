@@ -9,6 +9,7 @@ window (sympy within a budget; else adaptive quadrature with its error estimate)
 
 from __future__ import annotations
 
+import functools
 import math
 import warnings
 from dataclasses import dataclass, replace
@@ -21,7 +22,7 @@ from scipy import integrate
 from calcsheet.derive import by_shape
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, LIMIT_SECONDS, NO_CLOSED_FORM, within
 from calcsheet.derive.extremes import NOISE, Extreme, ExtremeSearch, Piece, precise_at
-from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, has_infinity, real_float
+from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, bound, bound_vector, has_infinity, real_float
 from calcsheet.model import DerivedQuantity, Model, Point, Window
 
 # How an integral over a window was found (WindowIntegral.method); the sheet words each one.
@@ -65,7 +66,11 @@ class DerivedValues:
 class DerivedCurve:
     """One derived quantity along the response: g(x), its slope, its extremes and integrals over windows."""
 
-    def __init__(self, quantity: DerivedQuantity, model: Model, solution, cls, y, piece: Piece, analysed, scale):
+    def __init__(
+        self, quantity: DerivedQuantity, model: Model, solution, cls, y, piece: Piece, analysed, scale, compiled=False
+    ):
+        """``compiled``: g and its slope compiled once per form with the parameters as arguments
+        (safe_numeric.bound), for the margin study's many evaluations of one solution."""
         x, ys = model.variable.symbol, model.unknown.symbol
         self.quantity, self.x, self.y, self.analysed = quantity, x, y, analysed
         values = {**model.numeric_values(), **solution.initial_values(model)}
@@ -74,10 +79,15 @@ class DerivedCurve:
         slope = r - p * ys
         self.of_response = quantity.expr.subs(model.derivative, slope)
         numeric = self.of_response.subs(values)
-        total = sp.diff(numeric, x) + sp.diff(numeric, ys) * slope.subs(values)
-        self._g = SafeFunction(numeric, (x, ys), scale=scale)
-        self._g_grid = sp.lambdify((x, ys), numeric, modules=["scipy", "numpy"], docstring_limit=0)
-        self._slope = SafeFunction(total, (x, ys), scale=scale)
+        if compiled:
+            self._g = bound(self.of_response, (x, ys), values, scale=scale)
+            self._g_grid = bound_vector(self.of_response, (x, ys), values)
+            self._slope = bound(_slope_along(self.of_response, slope, x, ys), (x, ys), values, scale=scale)
+        else:
+            total = sp.diff(numeric, x) + sp.diff(numeric, ys) * slope.subs(values)
+            self._g = SafeFunction(numeric, (x, ys), scale=scale)
+            self._g_grid = sp.lambdify((x, ys), numeric, modules=["scipy", "numpy"], docstring_limit=0)
+            self._slope = SafeFunction(total, (x, ys), scale=scale)
         self.closed = None
         if solution.closed_form:
             particular = solution.particular.subs(values)
@@ -183,7 +193,7 @@ class _DerivedPiece:
             derivative = sp.diff(curve.closed, curve.x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
             if not has_infinity(derivative):
                 self.derivative = derivative
-                self._precise = sp.lambdify(curve.x, derivative, modules="mpmath", docstring_limit=0)
+                self._precise = by_shape.precise_function(derivative, curve.x)
 
     def slope(self, at: float) -> float:
         if self.derivative is not None:
@@ -214,12 +224,18 @@ def derived_values(model: Model, curves: dict[str, DerivedCurve], applies) -> tu
 
 def _difference(antiderivative: sp.Expr, x: sp.Symbol, a: float, b: float) -> float:
     """F(b) - F(a) in 30 digits; NaN where F has no finite value at an end."""
-    f = sp.lambdify(x, antiderivative, modules="mpmath", docstring_limit=0)
+    f = by_shape.precise_function(antiderivative, x)
     with mpmath.workdps(DIGITS):
         try:
             return real_float(f(mpmath.mpf(b)) - f(mpmath.mpf(a)))
         except (ArithmeticError, ValueError, TypeError, ZeroDivisionError):
             return math.nan
+
+
+@functools.lru_cache(maxsize=64)
+def _slope_along(g: sp.Expr, slope: sp.Expr, x: sp.Symbol, y: sp.Symbol) -> sp.Expr:
+    """dG/dx along a solution, dG/dx|y + dG/dy (r - p y), in symbols: once per form."""
+    return sp.diff(g, x) + sp.diff(g, y) * slope
 
 
 def _settled_step(argument: sp.Expr, x: sp.Symbol) -> sp.Expr:

@@ -18,7 +18,7 @@ import sympy as sp
 from scipy import integrate
 
 from calcsheet.derive.integrating_factor import Solution
-from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, has_infinity, real_float
+from calcsheet.derive.safe_numeric import BoundFunction, NotFinite, SafeFunction, has_infinity, real_float
 from calcsheet.errors import ModelRefused
 from calcsheet.model import Model
 
@@ -151,6 +151,81 @@ def make_evaluator(model: Model, solution: Solution, scale: float = 1.0) -> Resp
         x0=model.initial_at.si,
         closed_limit=SafeFunction(closed_expr, x, scale=scale),
     )
+
+
+# Compiled once per solution (the margin study and a sweep evaluate one solution at many parameter sets); a
+# bound on the entries kept, for a process that builds many sheets.
+_COMPILED: dict[tuple, "_Compiled | None"] = {}
+_COMPILED_KEPT = 64
+
+
+@dataclass(frozen=True)
+class _Compiled:
+    """make_evaluator's functions of one solution, with the parameters as arguments after the variable."""
+
+    arguments: tuple[sp.Symbol, ...]
+    closed: callable
+    closed_vector: callable
+    closed_limit: SafeFunction
+    P: SafeFunction
+    open_terms: tuple[SafeFunction, ...]
+
+
+def evaluator_for(model: Model, solution: Solution, scale: float = 1.0) -> ResponseEvaluator:
+    """make_evaluator's evaluator for a Model whose parameters moved, without substituting and compiling anew:
+    the solution is compiled once with its parameters as arguments and called with this Model's values.
+
+    The same functions, so the same values up to rounding: substituting first rounds each number the
+    parameters make (R*C, say) to a double before the 30-digit evaluation, this route computes them in the
+    evaluation, so the two agree to about 1e-16 relative, far inside the 1e-10 the margin study relies on
+    (margin.EVALUATION_PRECISION). Where the values make the closed form infinite or undefined at the
+    initial point (a divisor that vanishes there), make_evaluator decides, as it would have.
+    """
+    x = model.variable.symbol
+    values = {**model.numeric_values(), **solution.initial_values(model)}
+    compiled = _compiled(solution, x, tuple(sorted(values, key=lambda s: s.name)))
+    if compiled is None:
+        return make_evaluator(model, solution, scale)
+    floats = tuple(float(values[a]) for a in compiled.arguments)
+    precise = tuple(mpmath.mpf(v) for v in floats)
+    evaluator = ResponseEvaluator(
+        closed=lambda at: compiled.closed(at, *precise),
+        closed_vector=lambda grid: compiled.closed_vector(grid, *floats),
+        open_parts=[
+            (BoundFunction(compiled.P.with_scale(scale), floats), BoundFunction(term.with_scale(scale), floats))
+            for term in compiled.open_terms
+        ],
+        x0=model.initial_at.si,
+        closed_limit=BoundFunction(compiled.closed_limit.with_scale(scale), floats),
+    )
+    start = evaluator._closed_at(model.initial_at.si)
+    if not math.isfinite(start):
+        return make_evaluator(model, solution, scale)
+    return evaluator
+
+
+def _compiled(solution: Solution, x: sp.Symbol, known: tuple[sp.Symbol, ...]) -> "_Compiled | None":
+    """The compiled functions of ``solution``; None where its closed form holds an infinity as written, or a
+    symbol the values do not give."""
+    key = (solution, x, known)
+    if key not in _COMPILED:
+        if len(_COMPILED) >= _COMPILED_KEPT:
+            _COMPILED.clear()
+        closed = solution.natural + solution.forced_closed
+        parts = (closed, solution.P, *solution.open_terms)
+        if has_infinity(closed) or not set().union(*(e.free_symbols for e in parts)) <= {x, *known}:
+            _COMPILED[key] = None
+        else:
+            arguments = (x, *known)
+            _COMPILED[key] = _Compiled(
+                arguments=known,
+                closed=sp.lambdify(arguments, closed, modules="mpmath", docstring_limit=0),
+                closed_vector=sp.lambdify(arguments, closed, modules=["scipy", "numpy"], docstring_limit=0),
+                closed_limit=SafeFunction(closed, arguments),
+                P=SafeFunction(solution.P, arguments),
+                open_terms=tuple(SafeFunction(term, arguments) for term in solution.open_terms),
+            )
+    return _COMPILED[key]
 
 
 def _constant_as_limit(model: Model, solution: Solution, values: dict, scale: float) -> sp.Expr:

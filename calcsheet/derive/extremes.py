@@ -11,6 +11,7 @@ every candidate. Facts only: numbers in SI and codes; the sheet words them.
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -20,8 +21,9 @@ import numpy as np
 import sympy as sp
 from scipy import optimize
 
+from calcsheet.derive import by_shape
 from calcsheet.derive.budget import within
-from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, real_float
+from calcsheet.derive.safe_numeric import NotFinite, SafeFunction, bound, real_float
 from calcsheet.derive.verify import _jumps as forcing_jumps
 from calcsheet.model import Model, Window
 
@@ -87,22 +89,46 @@ class Extreme:
 class Piece:
     """One stretch of the response under one law, from ``start`` to ``end`` (None: no end)."""
 
-    def __init__(self, model: Model, solution, cls, y, start: float, end: float | None, scale: float = 1.0):
+    def __init__(
+        self, model: Model, solution, cls, y, start: float, end: float | None, scale: float = 1.0, compiled=False
+    ):
+        """``compiled``: p and r compiled once per form with the parameters as arguments (safe_numeric.bound)."""
         x = model.variable.symbol
-        values = {**model.numeric_values(), **solution.initial_values(model)}
         self.x, self.y, self.start, self.end, self.x0 = x, y, start, end, model.initial_at.si
         self.corners = tuple(forcing_jumps(model, start, end if end is not None else math.inf)) + _kinks(
             model.residual.subs(model.numeric_values()), x, start, end
         )
-        p = (solution.p if solution.p is not None else cls.p).subs(values)
-        r = (solution.r if solution.r is not None else cls.r).subs(values)
-        self.p, self.r = SafeFunction(p, x, scale=scale), SafeFunction(r, x, scale=scale)
-        self.derivative = None  # sympy dy/dx of the particular solution, when it is in closed form
-        if solution.closed_form:
-            expr = sp.diff(solution.particular.subs(values), x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
-            if not expr.has(sp.oo, -sp.oo, sp.zoo, sp.nan):
-                self.derivative = expr
-                self._precise = sp.lambdify(x, expr, modules="mpmath", docstring_limit=0)
+        # p, r and the derivative are made when first asked: a derived quantity's curve needs only the corners
+        self._values = {**model.numeric_values(), **solution.initial_values(model)}
+        self._solution, self._cls, self._scale, self._compiled = solution, cls, scale, compiled
+
+    @functools.cached_property
+    def p(self):
+        p = self._solution.p if self._solution.p is not None else self._cls.p
+        return self._equation_function(p)
+
+    @functools.cached_property
+    def r(self):
+        r = self._solution.r if self._solution.r is not None else self._cls.r
+        return self._equation_function(r)
+
+    def _equation_function(self, expr: sp.Expr):
+        if self._compiled:
+            return bound(expr, self.x, self._values, scale=self._scale)
+        return SafeFunction(expr.subs(self._values), self.x, scale=self._scale)
+
+    @functools.cached_property
+    def derivative(self) -> sp.Expr | None:
+        """sympy dy/dx of the particular solution, when it is in closed form (None otherwise)."""
+        if not self._solution.closed_form:
+            return None
+        particular = self._solution.particular.subs(self._values)
+        expr = sp.diff(particular, self.x).replace(sp.DiracDelta, lambda *args: sp.S.Zero)
+        return None if expr.has(sp.oo, -sp.oo, sp.zoo, sp.nan) else expr
+
+    @functools.cached_property
+    def _precise(self):
+        return by_shape.precise_function(self.derivative, self.x)
 
     def slope(self, at: float) -> float:
         """dy/dx at a point: the closed form's derivative in 30 digits, else r - p*y from the equation."""

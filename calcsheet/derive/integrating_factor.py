@@ -14,6 +14,7 @@ import sympy as sp
 from calcsheet.derive import exp_sinusoid
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, NOT_FINITE_AT_START, within
 from calcsheet.derive.classify import Classification
+from calcsheet.derive.no_elementary import lorentzian_under_exponential
 from calcsheet.derive.readable import choose_branches, compact, exp_of_logs_to_powers
 from calcsheet.errors import ModelRefused
 from calcsheet.mathtext import plain
@@ -194,9 +195,12 @@ def _free_name(name: str, taken: set[str]) -> str:
 def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.Expr, bool, str]:
     """∫ expr dx under the time budget: (result, closed, the code of why not closed).
 
-    A sinusoid times an exponential is written down (exp_sinusoid.py); otherwise the quick rule-based
-    integrator goes first, the full algorithm only when it fails.
+    A sinusoid times an exponential is written down (exp_sinusoid.py), and a form known to have no closed form
+    (no_elementary.py) is not tried; otherwise the quick rule-based integrator goes first, the full algorithm only
+    when it fails.
     """
+    if lorentzian_under_exponential(expr, x):
+        return sp.Integral(expr, x), False, NO_CLOSED_FORM
 
     def attempt() -> sp.Expr:
         known = exp_sinusoid.antiderivative(expr, x)

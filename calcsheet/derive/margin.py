@@ -221,12 +221,12 @@ class _Study:
         if self.switched:
             numbers, y = _switched_numbers(model, self.d, self.final_forms)
         else:
-            from calcsheet.derive.evaluate import make_evaluator
+            from calcsheet.derive.evaluate import evaluator_for
 
             reach = [abs(p.si) for p in model.evaluate_at] + [abs(model.initial_at.si)]
-            y = make_evaluator(model, self.d.solution, scale=max(reach + [1.0]))
+            y = evaluator_for(model, self.d.solution, scale=max(reach + [1.0]))
             final = self.final_forms[0](model) if self.final_forms[0] else None
-            numbers = compute_numbers(model, self.d.classification, self.d.solution, y, final=final)
+            numbers = compute_numbers(model, self.d.classification, self.d.solution, y, final=final, compiled=True)
         criteria = numbers.verdicts[: len(self.model.criteria)]
         found = Outcome(
             quantities=tuple(_finite(v.actual) for v in numbers.verdicts),
@@ -608,7 +608,7 @@ def _switched_numbers(model: Model, nominal, final_forms):
     evaluated with the new numbers, joined as derive_piecewise joins them, without the verification; and the
     joined response y(x)."""
     from calcsheet.derive.derivation import Derivation
-    from calcsheet.derive.evaluate import make_evaluator
+    from calcsheet.derive.evaluate import evaluator_for
     from calcsheet.derive.numbers import asks_for_extremes, verdict_for
     from calcsheet.derive.piecewise import Interval, Joined, _extreme_search, _scan, interval_model
     from calcsheet.derive.switched_derived import joined_curves
@@ -617,9 +617,9 @@ def _switched_numbers(model: Model, nominal, final_forms):
     for k, done in enumerate(nominal.intervals):
         local = replace(interval_model(model, k, y_start), plot_to=None, derived=())  # joined_curves evaluates them
         d0 = done.derivation
-        y = make_evaluator(local, d0.solution, scale=max(abs(local.initial_at.si), 1.0))
+        y = evaluator_for(local, d0.solution, scale=max(abs(local.initial_at.si), 1.0))
         final = final_forms[k](local) if final_forms[k] else None
-        numbers = compute_numbers(local, d0.classification, d0.solution, y, final=final)
+        numbers = compute_numbers(local, d0.classification, d0.solution, y, final=final, compiled=True)
         d = Derivation(local, d0.classification, d0.solution, numbers, None, (), None, y)
         intervals.append(Interval(done.start, done.end, done.text, d, done.carried))
         if done.end is not None:

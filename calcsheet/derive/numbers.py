@@ -128,10 +128,13 @@ def compute_numbers(
     y: ResponseEvaluator,
     final: tuple[float | None, str] | None = None,
     bound_integrals: bool = False,
+    compiled: bool = False,
 ) -> Numbers:
     """``final``: the final value and its code when the caller already has them (derive/margin.py evaluates one
     symbolic limit for every set of parameter values). ``bound_integrals``: give each integral shown its bounds
-    (integral_bounds.py), which only the sheet's own derivation needs."""
+    (integral_bounds.py), which only the sheet's own derivation needs. ``compiled``: the functions of the
+    equation and of derived quantities compiled once per form with the parameters as arguments
+    (safe_numeric.bound), for derive/margin.py, which evaluates one solution at many parameter sets."""
     x = model.variable.symbol
     values = model.numeric_values()
     cls = _as_solved(cls, solution, model)
@@ -181,10 +184,14 @@ def compute_numbers(
     stop = (OVERFLOWS, domain_end) if overflow else _stop(limit, domain_end, searched_to)
     reaches = tuple(reach_for(level, y, searched, samples, final, stop=stop) for level in model.reach)
     analysed = (x0, float(searched[-1]) if len(searched) else x0 + scale)
-    piece = Piece(model, solution, cls, y, x0, None, scale=scale) if asks_for_extremes(model) or model.derived else None
+    needs_piece = asks_for_extremes(model) or model.derived
+    piece = Piece(model, solution, cls, y, x0, None, scale=scale, compiled=compiled) if needs_piece else None
     search = ExtremeSearch([piece], y, analysed, final) if asks_for_extremes(model) else None
     asked = tuple(search.find(e.kind, e.window, e.text) for e in model.extremes)
-    curves = {q.name: DerivedCurve(q, model, solution, cls, y, piece, analysed, scale) for q in model.derived}
+    curves = {
+        q.name: DerivedCurve(q, model, solution, cls, y, piece, analysed, scale, compiled=compiled)
+        for q in model.derived
+    }
     integrals = tuple(curves[i.of].integral(i.window, i.text) for i in model.integrals)
     verdicts = tuple(
         verdict_for(

@@ -5,6 +5,8 @@ exponentials, sines, offsets, with negative numbers among them."""
 
 from __future__ import annotations
 
+import math
+
 import mpmath
 import pytest
 import sympy as sp
@@ -64,3 +66,32 @@ def test_an_error_inside_sympy_means_no_antiderivative_not_a_crash(monkeypatch):
     monkeypatch.setattr(by_shape.sp, "integrate", broken)
     monkeypatch.setattr(by_shape, "_integrals", {})  # what is found here must not stay for other tests
     assert by_shape.integrate(F(7.5) * sp.sin(F(1.7) * t) ** 3, t, 40.0) == (None, True)
+
+
+PRECISE = FORMS + [
+    sp.Float("0.1234567890123456789", 20) * sp.exp(-F(0.05) * t),  # 67 bits: exact only above 53 bits
+    F(-2.0) * t * sp.exp(-F(0.75) * t) * sp.cos(F(2.0) * t - F(0.3)),
+]
+
+
+@pytest.mark.parametrize("form", PRECISE, ids=range(len(PRECISE)))
+def test_a_function_compiled_by_shape_is_the_one_compiled_with_its_numbers_in_place(form):
+    # both in 30 digits, as derive/ calls them: they differ only in the order of operations, each rounded at
+    # 30 digits, so 1e-25 relative holds with room
+    direct = sp.lambdify(t, form, modules="mpmath")
+    by_form = by_shape.precise_function(form, t)
+    with mpmath.workdps(30):
+        for at in ("0", "0.37", "2.5", "11.0"):
+            a, b = direct(mpmath.mpf(at)), by_form(mpmath.mpf(at))
+            assert abs(a - b) <= mpmath.mpf("1e-25") * max(abs(a), mpmath.mpf("1e-300"))
+
+
+def test_one_shape_is_compiled_once_whatever_its_numbers(monkeypatch):
+    by_shape.precise_function(F(3.5) * sp.exp(-F(0.25) * t) + F(1.5), t)
+    compiled = []
+    lambdify = sp.lambdify
+    monkeypatch.setattr(by_shape.sp, "lambdify", lambda *a, **k: compiled.append(a) or lambdify(*a, **k))
+    found = by_shape.precise_function(F(4.25) * sp.exp(-F(0.5) * t) + F(1.75), t)
+    with mpmath.workdps(30):
+        assert float(found(mpmath.mpf(2))) == pytest.approx(4.25 * math.exp(-1.0) + 1.75, rel=1e-15)
+    assert compiled == []
