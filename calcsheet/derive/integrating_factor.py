@@ -40,6 +40,9 @@ class Solution:
     branches: tuple[str, ...]  # sympy case splits decided by the stated values
     fallback_codes: tuple[str, ...] = ()  # why terms stayed integrals: budget.NO_CLOSED_FORM or BUDGET_EXCEEDED
     special_case: tuple[tuple[str, str], ...] = ()  # (symbol, value) the stated values force, e.g. q_in = q_out
+    # the conditions on the parameters this form was chosen under (sympy's cases, a special case's equality):
+    # where other values break one, another form holds there (solution_at)
+    chosen_under: tuple[sp.Basic, ...] = ()
     p: sp.Expr = None  # p and r as solved (the classification's, unless a special case applies)
     r: sp.Expr = None
 
@@ -60,11 +63,13 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
     values = model.numeric_values()
     x0, y0 = _initial_symbols(model)
     p, r = cls.p, cls.r
-    P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS)
+    conditions: list = []
+    P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS, conditions)
     special = _special_case(P, values) if closed else {}
     if special:  # e.g. q_in = q_out: the general integral divides by their difference
         p, r = p.subs(special), r.subs(special)
-        P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS)
+        conditions = [sp.Eq(k, v) for k, v in special.items()]
+        P, closed, why = _integrate(p, x, values, INTEGRATE_SECONDS, conditions)
     if not closed:
         raise ModelRefused(
             f"the integrating factor needs the integral of p = {p}, and {_REASONS[why]}; "
@@ -78,7 +83,7 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
     closed_parts, open_terms, singular, reasons, notes = [], [], [], [], []
     start = {**values, x0: model.initial_at.si} if isinstance(x0, sp.Symbol) else values
     for term in sp.Add.make_args(r) if not cls.homogeneous else ():
-        integral, done, reason = _integrate(sp.powsimp(mu * term), x, values, forcing_seconds)
+        integral, done, reason = _integrate(sp.powsimp(mu * term), x, values, forcing_seconds, conditions)
         if done and not _finite_at(integral, x, x0, start):
             done, reason = False, NOT_FINITE_AT_START
         if done:
@@ -93,7 +98,7 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         _refuse_unless_finite_at_start(sp.powsimp(mu * combined), x, start, model)
         open_terms.append(combined)
         reasons.append(NOT_FINITE_AT_START)
-    F, branch_notes = choose_branches(compact(sp.Add(*closed_parts)), values)
+    F, branch_notes = choose_branches(compact(sp.Add(*closed_parts)), values, conditions)
     notes.extend(branch_notes)
     k_value = compact(y0 * mu.subs(x, x0) - F.subs(x, x0))
     natural = compact(k_value / mu)
@@ -122,7 +127,40 @@ def solve(model: Model, cls: Classification, forcing_seconds: float = INTEGRATE_
         special_case=tuple((plain(k), plain(v)) for k, v in special.items()),
         p=p,
         r=r,
+        chosen_under=tuple(dict.fromkeys(c for c in conditions if c.free_symbols)),
     )
+
+
+# Solutions solved anew where the nominal form does not hold, by the form and the verdicts on its conditions
+_SOLVED_AT: dict = {}
+_SOLVED_AT_KEPT = 64
+
+
+def solution_at(model: Model, cls: Classification, solution: Solution) -> Solution:
+    """The solution whose form holds at this Model's values: ``solution`` itself where every condition it was
+    chosen under still holds (or cannot be decided), else the one solved anew for these values, once per
+    combination of verdicts. A tolerance or sweep that reaches T_1 = T_2 from a sheet stated with T_1 != T_2 (or
+    leaves it from one stated with equality) must not evaluate the other case's formula there."""
+    if not solution.chosen_under:
+        return solution
+    values = model.numeric_values()
+    verdicts = tuple(_verdict(c.subs(values)) for c in solution.chosen_under)
+    if False not in verdicts:
+        return solution
+    key = (solution, verdicts)
+    if key not in _SOLVED_AT:
+        if len(_SOLVED_AT) >= _SOLVED_AT_KEPT:
+            _SOLVED_AT.clear()
+        _SOLVED_AT[key] = solve(model, cls)
+    return _SOLVED_AT[key]
+
+
+def _verdict(condition) -> bool | None:
+    if condition is sp.true or condition == True:  # noqa: E712  (sympy booleans)
+        return True
+    if condition is sp.false or condition == False:  # noqa: E712
+        return False
+    return None
 
 
 _REASONS = {  # for the refusal when p itself cannot be integrated; the sheet's words are in compose
@@ -192,8 +230,11 @@ def _free_name(name: str, taken: set[str]) -> str:
     return name
 
 
-def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.Expr, bool, str]:
-    """∫ expr dx under the time budget: (result, closed, the code of why not closed).
+def _integrate(
+    expr: sp.Expr, x: sp.Symbol, values, seconds: float, conditions: list | None = None
+) -> tuple[sp.Expr, bool, str]:
+    """∫ expr dx under the time budget: (result, closed, the code of why not closed); the conditions of the cases
+    the values chose are added to ``conditions``.
 
     A sinusoid times an exponential is written down (exp_sinusoid.py), and a form known to have no closed form
     (no_elementary.py) is not tried; otherwise the quick rule-based integrator goes first, the full algorithm only
@@ -214,7 +255,7 @@ def _integrate(expr: sp.Expr, x: sp.Symbol, values, seconds: float) -> tuple[sp.
     result, done = within(seconds, attempt, None)
     if not done:
         return sp.Integral(expr, x), False, BUDGET_EXCEEDED
-    result, _ = choose_branches(result, values)
+    result, _ = choose_branches(result, values, conditions)
     if result.has(sp.Integral) or result.has(sp.Piecewise):
         return sp.Integral(expr, x), False, NO_CLOSED_FORM
     return result, True, ""

@@ -222,11 +222,14 @@ class _Study:
             numbers, y = _switched_numbers(model, self.d, self.final_forms)
         else:
             from calcsheet.derive.evaluate import evaluator_for
+            from calcsheet.derive.integrating_factor import solution_at
 
             reach = [abs(p.si) for p in model.evaluate_at] + [abs(model.initial_at.si)]
-            y = evaluator_for(model, self.d.solution, scale=max(reach + [1.0]))
-            final = self.final_forms[0](model) if self.final_forms[0] else None
-            numbers = compute_numbers(model, self.d.classification, self.d.solution, y, final=final, compiled=True)
+            solution = solution_at(model, self.d.classification, self.d.solution)
+            y = evaluator_for(model, solution, scale=max(reach + [1.0]))
+            nominal_form = solution is self.d.solution
+            final = self.final_forms[0](model) if self.final_forms[0] and nominal_form else None
+            numbers = compute_numbers(model, self.d.classification, solution, y, final=final, compiled=True)
         criteria = numbers.verdicts[: len(self.model.criteria)]
         found = Outcome(
             quantities=tuple(_finite(v.actual) for v in numbers.verdicts),
@@ -319,6 +322,8 @@ class _Study:
         probe = self.probes[q]
         if self.switched or not d.solution.closed_form or t.interval or probe.criterion.of:
             return None  # a derived quantity's sensitivity is by central differences
+        if any(isinstance(c, sp.Eq) for c in d.solution.chosen_under):
+            return None  # a form that holds only where two values are equal has no slope along either
         found, done = within(SOLVE_SECONDS, lambda: self._symbolic(probe, q, t.parameter.symbol), None)
         return found if done else None
 
@@ -609,6 +614,7 @@ def _switched_numbers(model: Model, nominal, final_forms):
     joined response y(x)."""
     from calcsheet.derive.derivation import Derivation
     from calcsheet.derive.evaluate import evaluator_for
+    from calcsheet.derive.integrating_factor import solution_at
     from calcsheet.derive.numbers import asks_for_extremes, verdict_for
     from calcsheet.derive.piecewise import Interval, Joined, _extreme_search, _scan, interval_model
     from calcsheet.derive.switched_derived import joined_curves
@@ -617,10 +623,11 @@ def _switched_numbers(model: Model, nominal, final_forms):
     for k, done in enumerate(nominal.intervals):
         local = replace(interval_model(model, k, y_start), plot_to=None, derived=())  # joined_curves evaluates them
         d0 = done.derivation
-        y = evaluator_for(local, d0.solution, scale=max(abs(local.initial_at.si), 1.0))
-        final = final_forms[k](local) if final_forms[k] else None
-        numbers = compute_numbers(local, d0.classification, d0.solution, y, final=final, compiled=True)
-        d = Derivation(local, d0.classification, d0.solution, numbers, None, (), None, y)
+        solution = solution_at(local, d0.classification, d0.solution)
+        y = evaluator_for(local, solution, scale=max(abs(local.initial_at.si), 1.0))
+        final = final_forms[k](local) if final_forms[k] and solution is d0.solution else None
+        numbers = compute_numbers(local, d0.classification, solution, y, final=final, compiled=True)
+        d = Derivation(local, d0.classification, solution, numbers, None, (), None, y)
         intervals.append(Interval(done.start, done.end, done.text, d, done.carried))
         if done.end is not None:
             y_start = Point.derived(y(done.end), model.unknown)
@@ -729,7 +736,7 @@ def _side(t: Toleranced, value: float) -> str:
         return MIN
     if math.isclose(value, high, rel_tol=1e-9):
         return MAX
-    return f"{value!r}"
+    return f"{float(value):.10g}"  # ten figures, as the record rounds every value (numpy's repr names its type)
 
 
 def _halton(index: int, dimensions: int) -> tuple[float, ...]:

@@ -67,23 +67,31 @@ def simplified(expr: sp.Expr) -> sp.Expr:
     return sp.simplify(abstracted).xreplace({s: f for f, s in held.items()})
 
 
-def choose_branches(expr: sp.Expr, values: Mapping[sp.Symbol, float]) -> tuple[sp.Expr, tuple[str, ...]]:
+def choose_branches(
+    expr: sp.Expr, values: Mapping[sp.Symbol, float], taken: list | None = None
+) -> tuple[sp.Expr, tuple[str, ...]]:
     """Replace each Piecewise by the branch that holds for the stated parameter values.
 
     sympy splits cases such as ``a*tau != 1``; the stated numbers decide which case applies, and
     the sheet says which one was taken. A branch whose condition cannot be decided is left alone.
+    ``taken``, where given, receives each condition the choice rests on (the chosen branch's, and the negation
+    of each branch passed over), so that values elsewhere can be checked against the form chosen here.
     """
     notes: list[str] = []
 
     def pick(piecewise: sp.Piecewise) -> sp.Expr:
+        passed_over = []
         for branch, condition in piecewise.args:
             verdict = condition.subs(values) if condition is not sp.true else sp.true
             if verdict is sp.true or verdict == True:  # noqa: E712  (sympy booleans)
                 if condition is not sp.true:
                     notes.append(sp.sstr(condition).replace("**", "^"))
+                if taken is not None:
+                    taken.extend([*passed_over, *([condition] if condition is not sp.true else [])])
                 return branch
             if verdict is not sp.false and verdict != False:  # noqa: E712
                 return piecewise
+            passed_over.append(sp.Not(condition))
         return piecewise
 
     return expr.replace(lambda e: isinstance(e, sp.Piecewise), pick), tuple(notes)

@@ -55,6 +55,12 @@ def has_margin(d) -> bool:
     return getattr(d, "margin", None) is not None
 
 
+def _chosen_for_a_case(d) -> bool:
+    """Whether a solution of the sheet holds only under conditions its stated values meet (sympy's cases)."""
+    pieces = [i.derivation for i in d.intervals] if getattr(d, "intervals", None) else [d]
+    return any(getattr(p.solution, "chosen_under", ()) for p in pieces)
+
+
 # ----------------------------------------------------------------------------- the step
 def margin_section(d, key: str = "margin", title: str = "Sensitivity and tolerances") -> Section:
     mg: Margin = d.margin
@@ -62,8 +68,15 @@ def margin_section(d, key: str = "margin", title: str = "Sensitivity and toleran
     blocks = [
         Paragraph(
             "The input gives these parameters a range. Each result below is taken again with the "
-            "parameters moved within their ranges; the symbolic solution above holds for every value "
-            "in them, so it is evaluated with the new numbers rather than solved again."
+            "parameters moved within their ranges; "
+            + (
+                "the symbolic solution above is the form for the case the stated values select, so it is "
+                "evaluated with the new numbers wherever that case still holds, and the equation is solved "
+                "again for values that leave it."
+                if _chosen_for_a_case(d)
+                else "the symbolic solution above holds for every value in them, so it is evaluated with the new "
+                "numbers rather than solved again."
+            )
         ),
         Table(
             ("Parameter", "Nominal", "Range as stated", "Lowest", "Highest"),
