@@ -128,10 +128,23 @@ class BuildRun:
                 if on_step:
                     on_step(job.path)
 
+        run_steps(steps, self._start, finish, workers, prepare=self._preparation(jobs, workers))
+        return self.worst
+
+    def _preparation(self, jobs: list, workers: int):
+        """What the main process imports before forking its workers, so that they share one import: the libraries
+        of a build, when at least two sheets certainly build (no cache entry for them yet); else nothing, so that a
+        rebuild with one sheet to redo, or one broken input, costs the main process no import it would not use."""
         from calcsheet.pipeline import import_libraries
 
-        run_steps(steps, self._start, finish, workers, prepare=lambda: import_libraries(self.formats))
-        return self.worst
+        cached = not (self.force or self.overrides or self.since is not None)
+        certain = sum(
+            1
+            for job in jobs
+            if not (cached and job.session is not None and job.whole_package)
+            or not cache.entry_file(self.out_dir, self._stem(job)).exists()
+        )
+        return (lambda: import_libraries(self.formats)) if workers > 1 and certain >= 2 else None
 
     def _entry(self, job):
         return next(e for e in job.session.entries if e.path == job.path)

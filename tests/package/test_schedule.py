@@ -66,3 +66,29 @@ def test_the_build_prepares_the_libraries_of_its_formats():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.split("\n")
     assert out[0] == "True False False"
     assert out[1] == "True True True False"  # WeasyPrint's native libraries are left to each worker
+
+
+def _main_process_modules(tmp_path, *inputs: str) -> set[str]:
+    import subprocess
+
+    probe = (
+        "import sys, atexit\n"
+        "atexit.register(lambda: print('MODULES', ' '.join(sorted(sys.modules)), file=sys.stderr))\n"
+        "from calcsheet.cli import main\n"
+        f"main(['build', *{list(inputs)!r}, '--out', {str(tmp_path / 'out')!r}, '--format', 'json', '--jobs', '2'])\n"
+    )
+    done = subprocess.run([sys.executable, "-c", probe], cwd=tmp_path, capture_output=True, text=True)
+    line = next(line for line in done.stderr.splitlines() if line.startswith("MODULES"))
+    return {m.split(".")[0] for m in line.split()[1:]}
+
+
+def test_two_sheets_to_build_are_prepared_for_and_one_is_not(tmp_path):
+    """The build prepares (imports in the main process) only when at least two sheets certainly build: one
+    broken input, or one sheet to redo, costs the main process no import it would not use."""
+    from pathlib import Path
+
+    demos = sorted(str(p) for p in (Path(__file__).resolve().parents[2] / "inputs").glob("*-*.toml"))[:2]
+    for folder in ("two", "one"):
+        (tmp_path / folder).mkdir()
+    assert "sympy" in _main_process_modules(tmp_path / "two", *demos)
+    assert "sympy" not in _main_process_modules(tmp_path / "one", demos[0])
