@@ -88,7 +88,9 @@ def compiled_checkout() -> None:
 def run(command: list[str]) -> dict:
     """Wall seconds, CPU seconds (user + system) and peak resident memory (MiB) of one child process."""
     start = time.perf_counter()
-    child = subprocess.Popen(command, env=_env(), stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    # run from the checkout: ``python -m`` puts the working directory ahead of PYTHONPATH, so a child started
+    # elsewhere in another checkout would measure that one's code
+    child = subprocess.Popen(command, env=_env(), cwd=ROOT, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     _, status, usage = os.wait4(child.pid, 0)
     wall = time.perf_counter() - start
     child.returncode = os.waitstatus_to_exitcode(status)
@@ -178,8 +180,8 @@ def demos_all_formats(folder: Path, demos: list[Path]) -> list[str]:
 
 def sine_reservoir(folder: Path) -> list[str]:
     starter = folder / "sine_reservoir.toml"
-    subprocess.run([sys.executable, "-m", "calcsheet.cli", "new", "linear_reservoir", str(starter)], env=_env(),
-                   check=True, capture_output=True)  # fmt: skip
+    new = [sys.executable, "-m", "calcsheet.cli", "new", "linear_reservoir", str(starter)]
+    subprocess.run(new, env=_env(), cwd=ROOT, check=True, capture_output=True)
     text = starter.read_text(encoding="utf-8")
     lines = [line for line in text.splitlines(keepends=True) if not line.startswith("Q_in = ")]
     starter.write_text("".join(lines) + SINE_FORCING, encoding="utf-8")
