@@ -156,15 +156,7 @@ def bound(expr: sp.Expr, symbols, values: dict, scale: float = 1.0) -> SafeFunct
     say) are computed at each call instead of rounded to a double once: the two agree to about 1e-16 relative.
     Where the expression holds a symbol the values do not give, or an infinity as written, it is substituted
     and compiled as before."""
-    symbols = tuple(symbols) if isinstance(symbols, (tuple, list)) else (symbols,)
-    known = tuple(sorted((s for s in values if s not in symbols), key=lambda s: s.name))
-    key = (expr, symbols, known)
-    if key not in _COMPILED:
-        if len(_COMPILED) >= _COMPILED_KEPT:
-            _COMPILED.clear()
-        usable = expr.free_symbols <= {*symbols, *known} and not has_infinity(expr)
-        _COMPILED[key] = SafeFunction(expr, symbols + known) if usable else None
-    function = _COMPILED[key]
+    symbols, known, function = _compiled_once(_COMPILED, expr, symbols, values, SafeFunction)
     if function is None:
         return SafeFunction(expr.subs(values), symbols, scale=scale)
     return BoundFunction(function.with_scale(scale), tuple(float(values[s]) for s in known))
@@ -176,21 +168,29 @@ _VECTOR: dict[tuple, object] = {}
 def bound_vector(expr: sp.Expr, symbols, values: dict):
     """lambdify(symbols, expr.subs(values), ["scipy", "numpy"]) for whole grids, compiled once per expression as
     ``bound`` is (the same conditions, the same agreement)."""
+
+    def vector(e, arguments):
+        return sp.lambdify(arguments, e, modules=["scipy", "numpy"], docstring_limit=0)
+
+    symbols, known, function = _compiled_once(_VECTOR, expr, symbols, values, vector)
+    if function is None:
+        return vector(expr.subs(values), symbols)
+    fixed = tuple(float(values[s]) for s in known)
+    return lambda *args: function(*args, *fixed)
+
+
+def _compiled_once(cache: dict, expr: sp.Expr, symbols, values: dict, compile_):
+    """(symbols, the value symbols after them, ``compile_(expr, symbols + those)`` kept in ``cache``), the
+    compiled function None where the values do not give every symbol or the expression holds an infinity."""
     symbols = tuple(symbols) if isinstance(symbols, (tuple, list)) else (symbols,)
     known = tuple(sorted((s for s in values if s not in symbols), key=lambda s: s.name))
     key = (expr, symbols, known)
-    if key not in _VECTOR:
-        if len(_VECTOR) >= _COMPILED_KEPT:
-            _VECTOR.clear()
+    if key not in cache:
+        if len(cache) >= _COMPILED_KEPT:
+            cache.clear()
         usable = expr.free_symbols <= {*symbols, *known} and not has_infinity(expr)
-        _VECTOR[key] = (
-            sp.lambdify(symbols + known, expr, modules=["scipy", "numpy"], docstring_limit=0) if usable else None
-        )
-    function = _VECTOR[key]
-    if function is None:
-        return sp.lambdify(symbols, expr.subs(values), modules=["scipy", "numpy"], docstring_limit=0)
-    fixed = tuple(float(values[s]) for s in known)
-    return lambda *args: function(*args, *fixed)
+        cache[key] = compile_(expr, symbols + known) if usable else None
+    return symbols, known, cache[key]
 
 
 # ----------------------------------------------------------------------------- plain arithmetic in doubles
