@@ -136,14 +136,14 @@ def _refuse_bad_coefficient(p: sp.Expr, model: Model) -> None:
 
 
 def _is_zero(expr: sp.Expr) -> bool:
-    """Exactly zero? Cheap rewritings first; a value clearly not zero at a probe point proves it is not; full
-    simplification (within budget) only if neither decides (a sine forcing took a trigsimp each time)."""
+    """Exactly zero? Cheap rewritings first; a value at a rational point shown non-zero (nonzero_at_a_point)
+    proves it is not; full simplification (within budget) only if neither decides."""
     if expr == 0 or sp.expand(expr) == 0 or sp.cancel(sp.together(expr)) == 0:
         return True
     if not expr.free_symbols or nonzero_at_a_point(expr):
         return False
-    simplified, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(expr), expr)
-    return done and simplified == 0
+    result, done = within(SIMPLIFY_SECONDS, lambda: sp.simplify(expr), expr)
+    return done and result == 0
 
 
 # Where a value proves an expression not identically zero; two points, since one may sit on a root by chance.

@@ -15,7 +15,7 @@ from calcsheet.derive import exp_sinusoid
 from calcsheet.derive.budget import BUDGET_EXCEEDED, INTEGRATE_SECONDS, NO_CLOSED_FORM, NOT_FINITE_AT_START, within
 from calcsheet.derive.classify import Classification
 from calcsheet.derive.no_elementary import lorentzian_under_exponential
-from calcsheet.derive.readable import choose_branches, compact, exp_of_logs_to_powers
+from calcsheet.derive.readable import choose_branches, compact, decided, exp_of_logs_to_powers
 from calcsheet.errors import ModelRefused
 from calcsheet.mathtext import plain
 from calcsheet.model import Model
@@ -144,7 +144,7 @@ def solution_at(model: Model, cls: Classification, solution: Solution) -> Soluti
     if not solution.chosen_under:
         return solution
     values = model.numeric_values()
-    verdicts = tuple(_verdict(c.subs(values)) for c in solution.chosen_under)
+    verdicts = tuple(decided(c.subs(values)) for c in solution.chosen_under)
     if False not in verdicts:
         return solution
     key = (solution, verdicts)
@@ -153,14 +153,6 @@ def solution_at(model: Model, cls: Classification, solution: Solution) -> Soluti
             _SOLVED_AT.clear()
         _SOLVED_AT[key] = solve(model, cls)
     return _SOLVED_AT[key]
-
-
-def _verdict(condition) -> bool | None:
-    if condition is sp.true or condition == True:  # noqa: E712  (sympy booleans)
-        return True
-    if condition is sp.false or condition == False:  # noqa: E712
-        return False
-    return None
 
 
 _REASONS = {  # for the refusal when p itself cannot be integrated; the sheet's words are in compose

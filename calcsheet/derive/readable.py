@@ -82,16 +82,25 @@ def choose_branches(
     def pick(piecewise: sp.Piecewise) -> sp.Expr:
         passed_over = []
         for branch, condition in piecewise.args:
-            verdict = condition.subs(values) if condition is not sp.true else sp.true
-            if verdict is sp.true or verdict == True:  # noqa: E712  (sympy booleans)
+            verdict = decided(condition.subs(values)) if condition is not sp.true else True
+            if verdict is True:
                 if condition is not sp.true:
                     notes.append(sp.sstr(condition).replace("**", "^"))
                 if taken is not None:
                     taken.extend([*passed_over, *([condition] if condition is not sp.true else [])])
                 return branch
-            if verdict is not sp.false and verdict != False:  # noqa: E712
+            if verdict is None:
                 return piecewise
             passed_over.append(sp.Not(condition))
         return piecewise
 
     return expr.replace(lambda e: isinstance(e, sp.Piecewise), pick), tuple(notes)
+
+
+def decided(condition) -> bool | None:
+    """A sympy condition with numbers put in: True, False, or None where it is still undecided."""
+    if condition is sp.true or condition == True:  # noqa: E712  (sympy booleans)
+        return True
+    if condition is sp.false or condition == False:  # noqa: E712
+        return False
+    return None
