@@ -324,9 +324,9 @@ check = "integral(P_R, 0 s, 2 s) <= 500 J"
 def _normalised_energy_slope(T: float, R: float = 2200.0, C: float = 1100e-6) -> float:
     """(dE/dR) R / E for E = C v0^2/2 (1 - exp(-2T/(RC))), the energy into R over [0, T] (from memory of the
     standard result: P = v^2/R with v = v0 exp(-t/(RC)), integrated by hand), with mpmath at 30 digits."""
-    mpmath.mp.dps = 30
-    a = 2 * mpmath.mpf(T) / (mpmath.mpf(R) * mpmath.mpf(C))
-    return float(-a * mpmath.exp(-a) / (1 - mpmath.exp(-a)))
+    with mpmath.workdps(30):  # mpmath's precision is global: set for this computation only
+        a = 2 * mpmath.mpf(T) / (mpmath.mpf(R) * mpmath.mpf(C))
+        return float(-a * mpmath.exp(-a) / (1 - mpmath.exp(-a)))
 
 
 def test_a_central_difference_below_the_evaluations_precision_is_reported_as_flat(tmp_path):

@@ -58,9 +58,9 @@ def test_a_sheet_stated_at_equal_time_constants_takes_the_general_form_to_its_co
     assert worst["corner"] == {"T_1": "max"}
     assert worst["value"]["value"] == pytest.approx(stated(1.5), rel=1e-9)  # the t e^(-t) form gave 0.2707 V
     (slope,) = [s for s in r["sensitivities"] if s["quantity"] == "y(3 s)"]
-    mpmath.mp.dps = 40
     general = lambda t1: (mpmath.e**-3 - mpmath.exp(-3 / t1)) / (1 - t1)  # noqa: E731
-    by_hand = float(mpmath.diff(general, mpmath.mpf(1) + mpmath.mpf(10) ** -15))  # 1.5 e^-3: the limit at T_1 = 1
+    with mpmath.workdps(40):  # mpmath's precision is global: set for this computation only
+        by_hand = float(mpmath.diff(general, mpmath.mpf(1) + mpmath.mpf(10) ** -15))  # 1.5 e^-3, the limit at T_1 = 1
     assert slope["derivative"]["value"] == pytest.approx(by_hand, rel=1e-6)  # a central difference, step 1e-5
 
 
